@@ -1,0 +1,119 @@
+package api
+
+import (
+	"errors"
+	"net/http"
+
+	"github.com/gin-gonic/gin"
+
+	"ringsieve/data"
+	"ringsieve/screening"
+)
+
+// Problem is an RFC 9457 problem details body (application/problem+json).
+type Problem struct {
+	Type     string `json:"type"`
+	Title    string `json:"title"`
+	Status   int    `json:"status"`
+	Detail   string `json:"detail"`
+	Instance string `json:"instance,omitempty"`
+	// Position is the 0-based character offset of a SMILES error.
+	Position *int `json:"position,omitempty"`
+	// Field names the request field at fault, when known.
+	Field string `json:"field,omitempty"`
+	// RequestID repeats the X-Request-ID of the request.
+	RequestID string `json:"request_id,omitempty"`
+}
+
+// Errors of the HTTP layer itself.
+var (
+	errMalformed    = errors.New("malformed request body")
+	errTooLarge     = errors.New("request body too large")
+	errUnsupported  = errors.New("unsupported media type")
+	errNotFoundPath = errors.New("no such endpoint")
+	errPrecondition = errors.New("precondition failed")
+	errUnauthorized = errors.New("missing or invalid API key")
+	errRateLimited  = errors.New("rate limit exceeded")
+	errJobFinished  = errors.New("job already finished")
+)
+
+// requestError wraps a sentinel with a message safe to show the client.
+type requestError struct {
+	kind  error
+	msg   string
+	field string
+}
+
+func (e *requestError) Error() string { return e.msg }
+func (e *requestError) Unwrap() error { return e.kind }
+
+func badRequest(kind error, field, msg string) error {
+	return &requestError{kind: kind, msg: msg, field: field}
+}
+
+// errorMap is the one table from domain and HTTP-layer errors to status codes and problem types.
+// The first entry whose sentinel matches (errors.Is) wins; anything unmatched is a 500 whose
+// detail never shows internals.
+var errorMap = []struct {
+	err    error
+	status int
+	typ    string
+	title  string
+}{
+	{errMalformed, http.StatusBadRequest, "malformed-request", "Malformed request"},
+	{errTooLarge, http.StatusRequestEntityTooLarge, "body-too-large", "Request body too large"},
+	{errUnsupported, http.StatusUnsupportedMediaType, "unsupported-media-type", "Unsupported media type"},
+	{screening.ErrSMILES, http.StatusUnprocessableEntity, "invalid-smiles", "Invalid SMILES"},
+	{screening.ErrInvalid, http.StatusUnprocessableEntity, "invalid-value", "Invalid value"},
+	{data.ErrNotFound, http.StatusNotFound, "not-found", "Not found"},
+	{errNotFoundPath, http.StatusNotFound, "not-found", "Not found"},
+	{data.ErrConflict, http.StatusPreconditionFailed, "version-conflict", "Version conflict"},
+	{errPrecondition, http.StatusPreconditionFailed, "precondition-failed", "Precondition failed"},
+	{errUnauthorized, http.StatusUnauthorized, "unauthorized", "Unauthorized"},
+	{errRateLimited, http.StatusTooManyRequests, "rate-limited", "Too many requests"},
+	{errJobFinished, http.StatusConflict, "job-finished", "Job already finished"},
+}
+
+const problemBase = "https://ringsieve.invalid/problems/"
+
+// problemFor maps an error to its problem body.
+func problemFor(err error) Problem {
+	for _, e := range errorMap {
+		if errors.Is(err, e.err) {
+			p := Problem{Type: problemBase + e.typ, Title: e.title, Status: e.status, Detail: err.Error()}
+			var se *screening.SMILESError
+			if errors.As(err, &se) {
+				pos := se.Pos
+				p.Position = &pos
+				p.Field = "smiles"
+			}
+			var fe *screening.FieldError
+			if errors.As(err, &fe) {
+				p.Field = fe.Field
+			}
+			var re *requestError
+			if errors.As(err, &re) && re.field != "" {
+				p.Field = re.field
+			}
+			return p
+		}
+	}
+	return Problem{Type: problemBase + "internal", Title: "Internal error", Status: http.StatusInternalServerError,
+		Detail: "the server could not complete the request; it has been logged"}
+}
+
+// fail writes err as problem+json and aborts the request.
+func fail(c *gin.Context, err error) {
+	p := problemFor(err)
+	p.Instance = c.Request.URL.Path
+	p.RequestID = c.GetString(ctxRequestID)
+	if p.Status >= 500 {
+		c.Error(err) // logged by the logging middleware, never sent
+	}
+	writeProblem(c, p)
+}
+
+func writeProblem(c *gin.Context, p Problem) {
+	c.Header("Content-Type", "application/problem+json")
+	c.AbortWithStatusJSON(p.Status, p) // keeps the Content-Type set above
+}

@@ -1,0 +1,454 @@
+package api
+
+import (
+	"context"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"math"
+	"net/http"
+	"sort"
+	"strings"
+
+	"github.com/gin-gonic/gin"
+
+	"ringsieve/data"
+	"ringsieve/screening"
+)
+
+// ConditionsIn are the reaction conditions of a request; every field is optional (defaults:
+// 25 °C, 1.0 mol/L, ru-nhc).
+type ConditionsIn struct {
+	TemperatureC    *float64 `json:"temperature_c,omitempty" example:"25"`
+	TemperatureK    *float64 `json:"temperature_k,omitempty"`
+	MonomerConcMolL *float64 `json:"monomer_conc_mol_l,omitempty" example:"1.0"`
+	// Bulk screens the neat monomer: the concentration is estimated from the structure.
+	Bulk     bool   `json:"bulk,omitempty"`
+	Catalyst string `json:"catalyst,omitempty" enums:"ru-phosphine,ru-nhc,ru-pyridine,mo-w-imido,classical" example:"ru-nhc"`
+}
+
+// toConditions validates the conditions (errors are *screening.FieldError with the field).
+func (ci *ConditionsIn) toConditions() (screening.Conditions, error) {
+	c := screening.DefaultConditions()
+	if ci == nil {
+		return c, nil
+	}
+	if ci.TemperatureC != nil && ci.TemperatureK != nil {
+		return c, &screening.FieldError{Field: "conditions.temperature_k", Msg: "give temperature_c or temperature_k, not both"}
+	}
+	if ci.TemperatureC != nil {
+		t, err := screening.TempFromCelsius(*ci.TemperatureC)
+		if err != nil {
+			return c, reField(err, "conditions.temperature_c")
+		}
+		c.Temp = t
+	}
+	if ci.TemperatureK != nil {
+		t, err := screening.NewTempK(*ci.TemperatureK)
+		if err != nil {
+			return c, reField(err, "conditions.temperature_k")
+		}
+		c.Temp = t
+	}
+	if ci.MonomerConcMolL != nil {
+		if ci.Bulk {
+			return c, &screening.FieldError{Field: "conditions.bulk", Msg: "give monomer_conc_mol_l or bulk, not both"}
+		}
+		v, err := screening.NewConcMolL(*ci.MonomerConcMolL)
+		if err != nil {
+			return c, reField(err, "conditions.monomer_conc_mol_l")
+		}
+		c.Conc = v
+	}
+	c.Bulk = ci.Bulk
+	if ci.Catalyst != "" {
+		cat, err := screening.ParseCatalystClass(ci.Catalyst)
+		if err != nil {
+			return c, reField(err, "conditions.catalyst")
+		}
+		c.Catalyst = cat
+	}
+	return c, nil
+}
+
+// MonomerSource names exactly one monomer: a SMILES, a descriptor record, or a stored monomer.
+type MonomerSource struct {
+	SMILES      string                 `json:"smiles,omitempty" example:"C1=CC2CCC1C2"`
+	Descriptors *screening.Descriptors `json:"descriptors,omitempty"`
+	MonomerID   string                 `json:"monomer_id,omitempty"`
+}
+
+// ScreenRequest is the body of POST /v1/screen.
+type ScreenRequest struct {
+	MonomerSource
+	Conditions *ConditionsIn `json:"conditions,omitempty"`
+	// Save stores the result in the history of the stored monomer (monomer_id only).
+	Save bool `json:"save,omitempty"`
+}
+
+// ScreenResponse is a screening result, with the saved result's id when saved.
+type ScreenResponse struct {
+	screening.Result
+	MonomerID     string `json:"monomer_id,omitempty"`
+	SavedResultID int64  `json:"saved_result_id,omitempty"`
+}
+
+// reField renames the field of a *screening.FieldError.
+func reField(err error, field string) error {
+	var fe *screening.FieldError
+	if errors.As(err, &fe) {
+		return &screening.FieldError{Field: field, Msg: fe.Msg}
+	}
+	return err
+}
+
+// prefixField tags an error with the JSON path of the item it concerns.
+func prefixField(err error, prefix string) error {
+	var fe *screening.FieldError
+	if errors.As(err, &fe) {
+		return &screening.FieldError{Field: prefix + fe.Field, Msg: fe.Msg}
+	}
+	return err
+}
+
+// screenSource screens one monomer source under conditions c.
+func (s *Server) screenSource(ctx context.Context, src MonomerSource, c screening.Conditions) (screening.Result, error) {
+	n := 0
+	if strings.TrimSpace(src.SMILES) != "" {
+		n++
+	}
+	if src.Descriptors != nil {
+		n++
+	}
+	if src.MonomerID != "" {
+		n++
+	}
+	if n != 1 {
+		return screening.Result{}, &screening.FieldError{Field: "smiles", Msg: "give exactly one monomer source: smiles, descriptors or monomer_id"}
+	}
+	switch {
+	case src.SMILES != "":
+		r, err := screening.ScreenSMILES(src.SMILES, c)
+		s.count(r, err)
+		return r, err
+	case src.Descriptors != nil:
+		r, err := screening.ScreenDescriptors(*src.Descriptors, c)
+		if err != nil {
+			return r, err
+		}
+		s.count(r, nil)
+		return r, nil
+	default:
+		m, err := s.store.GetMonomer(ctx, src.MonomerID)
+		if err != nil {
+			return screening.Result{}, err
+		}
+		return s.screenStored(m, c)
+	}
+}
+
+// screenStored screens a stored monomer: its SMILES when it has one, else its record.
+func (s *Server) screenStored(m data.Monomer, c screening.Conditions) (screening.Result, error) {
+	if m.SMILES != "" {
+		r, err := screening.ScreenSMILES(m.SMILES, c)
+		s.count(r, err)
+		return r, err
+	}
+	var d screening.Descriptors
+	if err := json.Unmarshal(m.Descriptors, &d); err != nil {
+		return screening.Result{}, fmt.Errorf("stored descriptors of %s: %w", m.ID, err)
+	}
+	r, err := screening.ScreenDescriptors(d, c)
+	s.count(r, err)
+	return r, err
+}
+
+func (s *Server) count(r screening.Result, err error) {
+	if err != nil {
+		s.metrics.screenings.WithLabelValues("error").Inc()
+		return
+	}
+	s.metrics.screenings.WithLabelValues(r.Verdict).Inc()
+}
+
+// screen godoc
+//
+//	@Summary		Screen one monomer
+//	@Description	Derives the ROMP descriptors (from SMILES, a descriptor record or a stored monomer), estimates ΔH_p and ΔS_p°, evaluates ΔG_p, T_c, [M]eq and equilibrium conversion at the conditions, and returns a verdict with reasons and cautions.
+//	@Tags			screening
+//	@Accept			json
+//	@Produce		json
+//	@Param			request	body		ScreenRequest	true	"monomer source and conditions"
+//	@Success		200		{object}	ScreenResponse
+//	@Failure		400		{object}	Problem	"malformed JSON or unknown field"
+//	@Failure		404		{object}	Problem	"monomer_id not found"
+//	@Failure		422		{object}	Problem	"invalid SMILES (with position) or out-of-range value"
+//	@Router			/v1/screen [post]
+func (s *Server) screen(c *gin.Context) {
+	var req ScreenRequest
+	if err := decodeJSON(c, &req); err != nil {
+		fail(c, err)
+		return
+	}
+	cond, err := req.Conditions.toConditions()
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	if req.Save && req.MonomerID == "" {
+		fail(c, &screening.FieldError{Field: "save", Msg: "save needs monomer_id (results are kept in a stored monomer's history)"})
+		return
+	}
+	r, err := s.screenSource(c.Request.Context(), req.MonomerSource, cond)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	resp := ScreenResponse{Result: r, MonomerID: req.MonomerID}
+	if req.Save {
+		condJSON, _ := json.Marshal(r.Conditions)
+		resJSON, _ := json.Marshal(r)
+		saved, err := s.store.SaveResult(c.Request.Context(), data.SavedResult{MonomerID: req.MonomerID, Conditions: condJSON,
+			Verdict: r.Verdict, Score: r.Score, Result: resJSON, EngineVersion: r.EngineVersion})
+		if err != nil {
+			fail(c, err)
+			return
+		}
+		resp.SavedResultID = saved.ID
+	}
+	c.JSON(http.StatusOK, resp)
+}
+
+// BatchItem is one monomer of a batch, with the caller's identifier.
+type BatchItem struct {
+	ID string `json:"id" example:"a1"`
+	MonomerSource
+}
+
+// BatchRequest is the body of POST /v1/screen/batch and of JSON job submissions.
+type BatchRequest struct {
+	Items      []BatchItem   `json:"items"`
+	Conditions *ConditionsIn `json:"conditions,omitempty"`
+}
+
+// BatchResult is one ranked result: the screen result, or error in its place.
+type BatchResult struct {
+	ID   string `json:"id"`
+	Rank int    `json:"rank"`
+	*screening.Result
+	Error *Problem `json:"error,omitempty"`
+}
+
+// BatchResponse lists results by rank (score descending, ties by ΔG_p), failed items last.
+type BatchResponse struct {
+	Results []BatchResult `json:"results"`
+}
+
+// rankResults sorts by score descending, then ΔG_p ascending, then submission order; failed
+// items go last in submission order; ranks are 1-based positions.
+func rankResults(rs []BatchResult) {
+	idx := make(map[*BatchResult]int, len(rs))
+	for i := range rs {
+		idx[&rs[i]] = i
+	}
+	order := make([]int, len(rs))
+	for i := range order {
+		order[i] = i
+	}
+	sort.SliceStable(order, func(a, b int) bool { return lessResult(&rs[order[a]], &rs[order[b]]) })
+	out := make([]BatchResult, len(rs))
+	for k, i := range order {
+		out[k] = rs[i]
+		out[k].Rank = k + 1
+	}
+	copy(rs, out)
+}
+
+func lessResult(a, b *BatchResult) bool {
+	if (a.Result == nil) != (b.Result == nil) {
+		return a.Result != nil
+	}
+	if a.Result == nil {
+		return false
+	}
+	if a.Score != b.Score {
+		return a.Score > b.Score
+	}
+	return dgOf(a.Result) < dgOf(b.Result)
+}
+
+func dgOf(r *screening.Result) float64 {
+	if r.Thermo == nil {
+		return math.Inf(1)
+	}
+	return r.Thermo.DGkJmol
+}
+
+// batch godoc
+//
+//	@Summary		Screen and rank many monomers
+//	@Description	Screens every item synchronously and returns them ranked by score (ties broken by ΔG_p). An item that cannot be screened carries a problem in "error" and ranks after all screened items; the batch itself still succeeds.
+//	@Tags			screening
+//	@Accept			json
+//	@Produce		json
+//	@Param			request	body		BatchRequest	true	"items and shared conditions"
+//	@Success		200		{object}	BatchResponse
+//	@Failure		400		{object}	Problem
+//	@Failure		422		{object}	Problem	"invalid conditions or too many items"
+//	@Router			/v1/screen/batch [post]
+func (s *Server) batch(c *gin.Context) {
+	var req BatchRequest
+	if err := decodeJSON(c, &req); err != nil {
+		fail(c, err)
+		return
+	}
+	cond, err := req.Conditions.toConditions()
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	if len(req.Items) == 0 {
+		fail(c, &screening.FieldError{Field: "items", Msg: "give at least one item"})
+		return
+	}
+	if len(req.Items) > s.cfg.BatchLimit {
+		fail(c, &screening.FieldError{Field: "items", Msg: fmt.Sprintf("%d items is more than the synchronous limit of %d: submit a job (POST /v1/jobs)", len(req.Items), s.cfg.BatchLimit)})
+		return
+	}
+	results := s.screenItems(c.Request.Context(), req.Items, cond)
+	rankResults(results)
+	c.JSON(http.StatusOK, BatchResponse{Results: results})
+}
+
+// screenItems screens items in order; failures become problems in place.
+func (s *Server) screenItems(ctx context.Context, items []BatchItem, cond screening.Conditions) []BatchResult {
+	out := make([]BatchResult, len(items))
+	for i, it := range items {
+		id := it.ID
+		if id == "" {
+			id = fmt.Sprintf("%d", i+1)
+		}
+		r, err := s.screenSource(ctx, it.MonomerSource, cond)
+		out[i] = itemResult(id, i, r, err)
+	}
+	return out
+}
+
+func itemResult(id string, i int, r screening.Result, err error) BatchResult {
+	if err != nil {
+		p := problemFor(prefixField(err, fmt.Sprintf("items[%d].", i)))
+		return BatchResult{ID: id, Error: &p}
+	}
+	rr := r
+	return BatchResult{ID: id, Result: &rr}
+}
+
+// SweepRange is a temperature range in °C.
+type SweepRange struct {
+	FromC float64 `json:"from_c" example:"-20"`
+	ToC   float64 `json:"to_c" example:"150"`
+	StepC float64 `json:"step_c" example:"5"`
+}
+
+// SweepRequest is the body of POST /v1/sweep.
+type SweepRequest struct {
+	MonomerSource
+	Conditions *ConditionsIn `json:"conditions,omitempty"`
+	Sweep      *SweepRange   `json:"sweep,omitempty"`
+}
+
+// SweepResponse gives the thermodynamics used and one point per temperature.
+type SweepResponse struct {
+	Verdict string                 `json:"verdict"`
+	Thermo  *screening.Thermo      `json:"thermo"`
+	Points  []screening.SweepPoint `json:"points"`
+}
+
+// sweep godoc
+//
+//	@Summary		Temperature sweep of ΔG_p, [M]eq and equilibrium conversion
+//	@Description	Screens the monomer at the conditions, then evaluates ΔG_p, [M]eq and equilibrium conversion from from_c to to_c (default −20 to 150 °C in 5 °C steps) at the same concentration, for plotting.
+//	@Tags			screening
+//	@Accept			json
+//	@Produce		json
+//	@Param			request	body		SweepRequest	true	"monomer source, conditions and range"
+//	@Success		200		{object}	SweepResponse
+//	@Failure		400		{object}	Problem
+//	@Failure		422		{object}	Problem
+//	@Router			/v1/sweep [post]
+func (s *Server) sweep(c *gin.Context) {
+	var req SweepRequest
+	if err := decodeJSON(c, &req); err != nil {
+		fail(c, err)
+		return
+	}
+	cond, err := req.Conditions.toConditions()
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	rg := SweepRange{FromC: -20, ToC: 150, StepC: 5}
+	if req.Sweep != nil {
+		rg = *req.Sweep
+	}
+	r, err := s.screenSource(c.Request.Context(), req.MonomerSource, cond)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	resp := SweepResponse{Verdict: r.Verdict, Thermo: r.Thermo, Points: []screening.SweepPoint{}}
+	if r.Thermo != nil {
+		pts, err := screening.Sweep(r.Thermo.DHkJmol, r.Thermo.DSJmolK, screening.ConcMolL(r.Thermo.ConcMolL), rg.FromC, rg.ToC, rg.StepC)
+		if err != nil {
+			fail(c, err)
+			return
+		}
+		resp.Points = pts
+	}
+	c.JSON(http.StatusOK, resp)
+}
+
+// RingTableRow is one row of the strain table as served.
+type RingTableRow struct {
+	Name        string   `json:"name"`
+	SMILES      string   `json:"smiles"`
+	SkeletonKey string   `json:"skeleton_key"`
+	RSCHkJmol   float64  `json:"ring_correction_h_kj_mol"`
+	RSCSJmolK   float64  `json:"ring_correction_s_j_mol_k"`
+	UHkJmol     float64  `json:"uncertainty_h_kj_mol"`
+	USJmolK     float64  `json:"uncertainty_s_j_mol_k"`
+	AnchorDH    *float64 `json:"measured_dh_kj_mol,omitempty"`
+	AnchorDS    *float64 `json:"measured_ds_j_mol_k,omitempty"`
+	Evidence    string   `json:"evidence"`
+	Source      string   `json:"source"`
+	Note        string   `json:"note,omitempty"`
+}
+
+// RingTableResponse lists the strain table and the fitted condensed-phase offsets.
+type RingTableResponse struct {
+	OffsetHkJmol    float64        `json:"condensed_offset_h_kj_mol"`
+	OffsetHUnc      float64        `json:"condensed_offset_h_uncertainty_kj_mol"`
+	OffsetSJmolK    float64        `json:"condensed_offset_s_j_mol_k"`
+	OffsetSUnc      float64        `json:"condensed_offset_s_uncertainty_j_mol_k"`
+	Rows            []RingTableRow `json:"rows"`
+	EngineVersion   string         `json:"engine_version"`
+	ConversionsNote string         `json:"note"`
+}
+
+// ringTable godoc
+//
+//	@Summary	The ring-system strain table with sources
+//	@Tags		screening
+//	@Produce	json
+//	@Success	200	{object}	RingTableResponse
+//	@Router		/v1/tables/ring-systems [get]
+func (s *Server) ringTable(c *gin.Context) {
+	dh, udh, ds, uds := screening.Offsets()
+	resp := RingTableResponse{OffsetHkJmol: dh, OffsetHUnc: udh, OffsetSJmolK: ds, OffsetSUnc: uds, EngineVersion: screening.EngineVersion,
+		ConversionsNote: "ring corrections are ideal-gas Benson-type values at 298.15 K; 1 cal = 4.184 J"}
+	for _, r := range screening.TableRows() {
+		resp.Rows = append(resp.Rows, RingTableRow{Name: r.Name, SMILES: r.SMILES, SkeletonKey: r.Key, RSCHkJmol: r.RSCH, RSCSJmolK: r.RSCS,
+			UHkJmol: r.UH, USJmolK: r.US, AnchorDH: r.AnchorDH, AnchorDS: r.AnchorDS, Evidence: r.Evidence, Source: r.Source, Note: r.Note})
+	}
+	c.JSON(http.StatusOK, resp)
+}

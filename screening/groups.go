@@ -1,0 +1,407 @@
+package screening
+
+import "sort"
+
+// Functional-group inventory used by the catalyst-compatibility rules. Each detector is a small
+// hand-written graph pattern; names are the stable identifiers returned to callers.
+
+// Functional-group identifiers.
+const (
+	FGCarboxylicAcid   = "carboxylic_acid"
+	FGCarboxylate      = "carboxylate"
+	FGAlcohol          = "alcohol"
+	FGPhenol           = "phenol"
+	FGAldehyde         = "aldehyde"
+	FGKetone           = "ketone"
+	FGEster            = "ester"
+	FGAmide            = "amide"
+	FGImide            = "imide"
+	FGAnhydride        = "anhydride"
+	FGNitrile          = "nitrile"
+	FGPrimaryAmine     = "primary_amine"
+	FGSecondaryAmine   = "secondary_amine"
+	FGHinderedAmine    = "hindered_secondary_amine"
+	FGTertiaryAmine    = "tertiary_amine"
+	FGAmmonium         = "ammonium_salt"
+	FGPyridineN        = "pyridine_n"
+	FGThiol            = "thiol"
+	FGThioether        = "thioether"
+	FGThioester        = "thioester"
+	FGPhosphine        = "phosphine"
+	FGPhosphineBorane  = "phosphine_borane"
+	FGSulfone          = "sulfone"
+	FGSulfonamide      = "sulfonamide"
+	FGSulfoxide        = "sulfoxide"
+	FGHalide           = "halide"
+	FGSilylEther       = "silyl_ether"
+	FGVinylEther       = "vinyl_ether"
+	FGTerminalOlefin   = "acyclic_terminal_olefin"
+	FGAcyclicOlefin    = "acyclic_internal_olefin"
+	FGAlkyne           = "alkyne"
+	FGCarbamate        = "carbamate"
+	FGEther            = "ether"
+	FGEpoxide          = "epoxide"
+	FGNitro            = "nitro"
+	FGWater            = "water"
+	FGCyclicEnolEther  = "cyclic_enol_ether"
+	FGPhosphite        = "phosphite"
+	FGBoronicEster     = "boronic_ester"
+	FGAromaticNHetero  = "pyrrole_type_nh"
+)
+
+// KnownFunctionalGroups lists every identifier the inventory can report; descriptor records may
+// only name these.
+var KnownFunctionalGroups = []string{
+	FGCarboxylicAcid, FGCarboxylate, FGAlcohol, FGPhenol, FGAldehyde, FGKetone, FGEster, FGAmide, FGImide,
+	FGAnhydride, FGNitrile, FGPrimaryAmine, FGSecondaryAmine, FGHinderedAmine, FGTertiaryAmine, FGAmmonium, FGPyridineN,
+	FGThiol, FGThioether, FGThioester, FGPhosphine, FGPhosphineBorane, FGSulfone, FGSulfonamide,
+	FGSulfoxide, FGHalide, FGSilylEther, FGVinylEther, FGTerminalOlefin, FGAcyclicOlefin, FGAlkyne,
+	FGCarbamate, FGEther, FGEpoxide, FGNitro, FGWater, FGCyclicEnolEther, FGPhosphite,
+	FGBoronicEster, FGAromaticNHetero,
+}
+
+// IsKnownFunctionalGroup reports whether name is an identifier of the inventory.
+func IsKnownFunctionalGroup(name string) bool {
+	for _, g := range KnownFunctionalGroups {
+		if g == name {
+			return true
+		}
+	}
+	return false
+}
+
+// doubleTo returns the atoms joined to a by a non-aromatic double bond with atomic number z
+// (z = 0: any).
+func (m *Molecule) doubleTo(a, z int) []int {
+	var out []int
+	for _, bi := range m.adj[a] {
+		b := &m.Bonds[bi]
+		if b.Order == bondDouble && !b.Aromatic {
+			o := m.Other(bi, a)
+			if z == 0 || m.Atoms[o].Z == z {
+				out = append(out, o)
+			}
+		}
+	}
+	return out
+}
+
+// isCarbonyl reports a carbon with a C=O.
+func (m *Molecule) isCarbonyl(a int) bool {
+	return m.Atoms[a].Z == 6 && len(m.doubleTo(a, 8)) > 0
+}
+
+func (m *Molecule) heavyNbrs(a int) []int {
+	var out []int
+	for _, bi := range m.adj[a] {
+		o := m.Other(bi, a)
+		if m.Atoms[o].Z != 1 {
+			out = append(out, o)
+		}
+	}
+	return out
+}
+
+func (m *Molecule) totalH(a int) int {
+	h := m.Atoms[a].HCount
+	for _, bi := range m.adj[a] {
+		if m.Atoms[m.Other(bi, a)].Z == 1 {
+			h++
+		}
+	}
+	return h
+}
+
+// FunctionalGroups returns the sorted set of functional groups found in the atoms of comp
+// (indices into m), with the ring bond perception p. The ring olefins themselves are not listed.
+func FunctionalGroups(p *Perceived, comp []int) []string {
+	m := p.Mol
+	in := map[int]bool{}
+	for _, a := range comp {
+		in[a] = true
+	}
+	found := map[string]bool{}
+	for _, a := range comp {
+		at := &m.Atoms[a]
+		nb := m.heavyNbrs(a)
+		h := m.totalH(a)
+		switch at.Z {
+		case 8:
+			if len(nb) == 0 && h == 2 {
+				found[FGWater] = true
+				continue
+			}
+			if at.Charge == -1 && len(nb) == 1 && m.isCarbonyl(nb[0]) {
+				found[FGCarboxylate] = true
+				continue
+			}
+			if len(m.doubleTo(a, 0)) > 0 || at.Charge != 0 {
+				continue
+			}
+			if len(nb) == 1 && h == 1 {
+				c := nb[0]
+				switch {
+				case m.isCarbonyl(c):
+					found[FGCarboxylicAcid] = true
+				case m.Atoms[c].Aromatic:
+					found[FGPhenol] = true
+				case m.Atoms[c].Z == 6:
+					found[FGAlcohol] = true
+				}
+				continue
+			}
+			if len(nb) == 2 {
+				c1, c2 := nb[0], nb[1]
+				carb1, carb2 := m.isCarbonyl(c1), m.isCarbonyl(c2)
+				switch {
+				case carb1 && carb2:
+					found[FGAnhydride] = true
+				case carb1 || carb2:
+					c := c1
+					if carb2 {
+						c = c2
+					}
+					hasN := false
+					for _, x := range m.heavyNbrs(c) {
+						if m.Atoms[x].Z == 7 {
+							hasN = true
+						}
+					}
+					if hasN {
+						found[FGCarbamate] = true
+					} else {
+						found[FGEster] = true
+					}
+				case m.Atoms[c1].Z == 14 || m.Atoms[c2].Z == 14:
+					found[FGSilylEther] = true
+				case m.Atoms[c1].Z == 5 || m.Atoms[c2].Z == 5:
+					found[FGBoronicEster] = true
+				case m.Atoms[c1].Z == 15 || m.Atoms[c2].Z == 15:
+					// phosphite / phosphate ester oxygens are counted on P
+				default:
+					vinyl := false
+					for _, c := range nb {
+						for _, d := range m.doubleTo(c, 6) {
+							if p.BondRingSize[m.bondBetween(c, d)] == 0 {
+								vinyl = true
+							} else if !m.Atoms[c].Aromatic {
+								found[FGCyclicEnolEther] = true
+							}
+						}
+					}
+					if vinyl {
+						found[FGVinylEther] = true
+					} else if p.AtomRingSize[a] == 3 {
+						found[FGEpoxide] = true
+					} else {
+						found[FGEther] = true
+					}
+				}
+			}
+		case 6:
+			if at.Aromatic {
+				continue
+			}
+			if os := m.doubleTo(a, 8); len(os) > 0 {
+				var cN, cO, cS, cC int
+				for _, x := range nb {
+					if x == os[0] {
+						continue
+					}
+					switch m.Atoms[x].Z {
+					case 7:
+						cN++
+					case 8:
+						cO++
+					case 16:
+						cS++
+					case 6:
+						cC++
+					}
+				}
+				switch {
+				case cS > 0:
+					found[FGThioester] = true
+				case cN > 0 && cO == 0:
+					// amide unless the N carries a second acyl (imide)
+					imide := false
+					for _, x := range nb {
+						if m.Atoms[x].Z != 7 {
+							continue
+						}
+						acyl := 0
+						for _, y := range m.heavyNbrs(x) {
+							if m.isCarbonyl(y) {
+								acyl++
+							}
+						}
+						if acyl >= 2 {
+							imide = true
+						}
+					}
+					if imide {
+						found[FGImide] = true
+					} else if cN == 1 {
+						found[FGAmide] = true
+					}
+				case cO == 0 && cN == 0:
+					if cC >= 2 {
+						found[FGKetone] = true
+					} else {
+						found[FGAldehyde] = true
+					}
+				}
+			}
+			for _, bi := range m.adj[a] {
+				b := &m.Bonds[bi]
+				o := m.Other(bi, a)
+				if b.Order == bondTriple && m.Atoms[o].Z == 7 {
+					found[FGNitrile] = true
+				}
+				if b.Order == bondTriple && m.Atoms[o].Z == 6 {
+					found[FGAlkyne] = true
+				}
+				if b.Order == bondDouble && !b.Aromatic && m.Atoms[o].Z == 6 && p.BondRingSize[bi] == 0 && a < o {
+					if m.totalH(a) == 2 || m.totalH(o) == 2 {
+						found[FGTerminalOlefin] = true
+					} else {
+						found[FGAcyclicOlefin] = true
+					}
+				}
+				if (m.Atoms[o].Z == 9 || m.Atoms[o].Z == 17 || m.Atoms[o].Z == 35 || m.Atoms[o].Z == 53) && b.Order == bondSingle {
+					found[FGHalide] = true
+				}
+			}
+		case 7:
+			if at.Aromatic {
+				if h > 0 {
+					found[FGAromaticNHetero] = true
+				} else if len(nb) == 2 && at.Charge == 0 {
+					found[FGPyridineN] = true
+				} else if at.Charge == 1 && h > 0 {
+					found[FGAmmonium] = true
+				}
+				continue
+			}
+			if at.Charge == 1 {
+				if len(m.doubleTo(a, 8)) > 0 {
+					found[FGNitro] = true
+				} else if len(m.doubleTo(a, 0)) == 0 {
+					found[FGAmmonium] = true
+				}
+				continue
+			}
+			if at.Charge != 0 || len(m.doubleTo(a, 0)) > 0 {
+				if len(m.doubleTo(a, 8)) > 0 {
+					found[FGNitro] = true
+				}
+				continue
+			}
+			triple := false
+			for _, bi := range m.adj[a] {
+				if m.Bonds[bi].Order == bondTriple {
+					triple = true
+				}
+			}
+			if triple {
+				continue
+			}
+			acyl, sulfonyl, nN := 0, 0, 0
+			for _, x := range nb {
+				if m.isCarbonyl(x) || (m.Atoms[x].Z == 6 && len(m.doubleTo(x, 16)) > 0) {
+					acyl++
+				}
+				if m.Atoms[x].Z == 16 && len(m.doubleTo(x, 8)) >= 2 {
+					sulfonyl++
+				}
+				if m.Atoms[x].Z == 7 {
+					nN++
+				}
+				if m.Atoms[x].Z == 6 && len(m.doubleTo(x, 7)) > 0 {
+					acyl++ // amidine / imine carbon: not a basic amine here
+				}
+			}
+			if sulfonyl > 0 {
+				found[FGSulfonamide] = true
+				continue
+			}
+			if acyl > 0 || nN > 0 {
+				continue // amide, imide, carbamate, hydrazine-type N: handled on the acyl carbon
+			}
+			switch {
+			case len(nb) == 1 && h == 2:
+				found[FGPrimaryAmine] = true
+			case len(nb) == 2 && h == 1:
+				// flanked by two fully substituted carbons (e.g. 2,2,6,6-tetramethylpiperidine)
+				if len(m.heavyNbrs(nb[0])) == 4 && len(m.heavyNbrs(nb[1])) == 4 {
+					found[FGHinderedAmine] = true
+				} else {
+					found[FGSecondaryAmine] = true
+				}
+			case len(nb) == 3:
+				found[FGTertiaryAmine] = true
+			case len(nb) == 0:
+				// ammonia: treat as primary amine for catalyst purposes
+				found[FGPrimaryAmine] = true
+			}
+		case 16:
+			if at.Aromatic {
+				continue
+			}
+			os := m.doubleTo(a, 8)
+			if len(os) >= 2 {
+				if len(nb) == 4 {
+					hasN := false
+					for _, x := range nb {
+						if m.Atoms[x].Z == 7 {
+							hasN = true
+						}
+					}
+					if !hasN {
+						found[FGSulfone] = true
+					}
+				}
+				continue
+			}
+			if len(os) == 1 {
+				found[FGSulfoxide] = true
+				continue
+			}
+			if at.Charge != 0 {
+				continue
+			}
+			if len(nb) == 1 && h == 1 {
+				found[FGThiol] = true
+			} else if len(nb) == 2 && !m.isCarbonyl(nb[0]) && !m.isCarbonyl(nb[1]) {
+				found[FGThioether] = true
+			}
+		case 15:
+			if len(m.doubleTo(a, 0)) > 0 {
+				continue
+			}
+			boron, oxy := false, 0
+			for _, x := range nb {
+				if m.Atoms[x].Z == 5 {
+					boron = true
+				}
+				if m.Atoms[x].Z == 8 {
+					oxy++
+				}
+			}
+			switch {
+			case boron:
+				found[FGPhosphineBorane] = true
+			case oxy == 3 && len(nb) == 3:
+				found[FGPhosphite] = true
+			case len(nb)+h == 3 && at.Charge == 0:
+				found[FGPhosphine] = true
+			}
+		}
+	}
+	var out []string
+	for g := range found {
+		out = append(out, g)
+	}
+	sort.Strings(out)
+	return out
+}

@@ -1,0 +1,525 @@
+package screening
+
+import (
+	"fmt"
+	"sort"
+	"strconv"
+	"strings"
+)
+
+// Perception: rings, ring systems, aromaticity, formula and masses of a parsed molecule.
+
+// Ring is one ring of the smallest set of smallest rings, as atom indices in ring order and the
+// bond indices joining them.
+type Ring struct {
+	Atoms []int
+	Bonds []int
+}
+
+// Perceived holds what perception derives from a molecule.
+type Perceived struct {
+	Mol *Molecule
+	// BondRingSize is, per bond, the size of the smallest ring containing it (0: acyclic).
+	BondRingSize []int
+	// AtomRingSize is, per atom, the size of the smallest ring containing it (0: acyclic).
+	AtomRingSize []int
+	// SSSR is a smallest set of smallest rings; its length is the cyclomatic number.
+	SSSR []Ring
+	// Aromatic atoms and bonds after Hückel perception.
+	AromaticAtom []bool
+	AromaticBond []bool
+}
+
+// Perceive computes rings and aromaticity. It never fails on a molecule that ParseSMILES
+// returned.
+func Perceive(m *Molecule) *Perceived {
+	p := &Perceived{Mol: m}
+	p.BondRingSize = make([]int, len(m.Bonds))
+	p.AtomRingSize = make([]int, len(m.Atoms))
+	var candidates []Ring
+	for bi := range m.Bonds {
+		path := m.shortestPathAvoiding(m.Bonds[bi].A, m.Bonds[bi].B, bi)
+		if path == nil {
+			continue
+		}
+		p.BondRingSize[bi] = len(path)
+		candidates = append(candidates, m.ringFromPath(path))
+	}
+	for bi, sz := range p.BondRingSize {
+		if sz == 0 {
+			continue
+		}
+		for _, a := range []int{m.Bonds[bi].A, m.Bonds[bi].B} {
+			if p.AtomRingSize[a] == 0 || sz < p.AtomRingSize[a] {
+				p.AtomRingSize[a] = sz
+			}
+		}
+	}
+	p.SSSR = m.selectSSSR(candidates)
+	p.perceiveAromaticity()
+	return p
+}
+
+// shortestPathAvoiding returns the atoms on a shortest path from a to b that does not use bond
+// skip (a first, b last), or nil.
+func (m *Molecule) shortestPathAvoiding(a, b, skip int) []int {
+	prev := make([]int, len(m.Atoms))
+	for i := range prev {
+		prev[i] = -2
+	}
+	prev[a] = -1
+	q := []int{a}
+	for k := 0; k < len(q); k++ {
+		x := q[k]
+		if x == b {
+			break
+		}
+		for _, bi := range m.adj[x] {
+			if bi == skip {
+				continue
+			}
+			o := m.Other(bi, x)
+			if prev[o] == -2 {
+				prev[o] = x
+				q = append(q, o)
+			}
+		}
+	}
+	if prev[b] == -2 {
+		return nil
+	}
+	var path []int
+	for x := b; x != -1; x = prev[x] {
+		path = append(path, x)
+	}
+	// reverse to run a -> b
+	for i, j := 0, len(path)-1; i < j; i, j = i+1, j-1 {
+		path[i], path[j] = path[j], path[i]
+	}
+	return path
+}
+
+func (m *Molecule) ringFromPath(path []int) Ring {
+	r := Ring{Atoms: append([]int(nil), path...)}
+	for i := range path {
+		j := (i + 1) % len(path)
+		r.Bonds = append(r.Bonds, m.bondBetween(path[i], path[j]))
+	}
+	return r
+}
+
+// cyclomatic returns bonds − atoms + connected components.
+func (m *Molecule) cyclomatic() int {
+	comps := len(m.components)
+	if comps == 0 {
+		m.findComponents()
+		comps = len(m.components)
+	}
+	return len(m.Bonds) - len(m.Atoms) + comps
+}
+
+// selectSSSR picks linearly independent rings (over GF(2) on bond sets), smallest first, until the
+// cyclomatic number is reached; if the per-bond candidates do not span the cycle space, candidates
+// through every atom are added (a Horton-type set).
+func (m *Molecule) selectSSSR(cands []Ring) []Ring {
+	need := m.cyclomatic()
+	if need <= 0 {
+		return nil
+	}
+	pick := func(cands []Ring) []Ring {
+		sort.SliceStable(cands, func(i, j int) bool { return len(cands[i].Bonds) < len(cands[j].Bonds) })
+		words := (len(m.Bonds) + 63) / 64
+		var basis [][]uint64 // reduced rows with pivot
+		var pivots []int
+		var out []Ring
+		seen := map[string]bool{}
+		for _, c := range cands {
+			key := ringKey(c)
+			if seen[key] {
+				continue
+			}
+			seen[key] = true
+			v := make([]uint64, words)
+			for _, bi := range c.Bonds {
+				v[bi/64] |= 1 << (bi % 64)
+			}
+			for k, row := range basis {
+				pv := pivots[k]
+				if v[pv/64]&(1<<(pv%64)) != 0 {
+					for w := range v {
+						v[w] ^= row[w]
+					}
+				}
+			}
+			pv := -1
+			for w := range v {
+				if v[w] != 0 {
+					for bit := 0; bit < 64; bit++ {
+						if v[w]&(1<<bit) != 0 {
+							pv = w*64 + bit
+							break
+						}
+					}
+					break
+				}
+			}
+			if pv < 0 {
+				continue
+			}
+			// keep rows reduced at the new pivot
+			for k, row := range basis {
+				if row[pv/64]&(1<<(pv%64)) != 0 {
+					for w := range row {
+						basis[k][w] ^= v[w]
+					}
+				}
+			}
+			basis = append(basis, v)
+			pivots = append(pivots, pv)
+			out = append(out, c)
+			if len(out) == need {
+				break
+			}
+		}
+		return out
+	}
+	out := pick(cands)
+	if len(out) == need {
+		return out
+	}
+	// Horton-type candidates: for each atom v and bond (x,y), P(v,x) + (x,y) + P(y,v).
+	more := append([]Ring(nil), cands...)
+	for v := range m.Atoms {
+		prev := m.bfsTree(v)
+		for bi, b := range m.Bonds {
+			px := treePath(prev, b.A)
+			py := treePath(prev, b.B)
+			if px == nil || py == nil {
+				continue
+			}
+			if len(px) > 1 && len(py) > 1 && px[len(px)-2] == py[len(py)-2] {
+				continue
+			}
+			set := map[int]bool{}
+			ok := true
+			for _, a := range px {
+				set[a] = true
+			}
+			for _, a := range py[:len(py)-1] {
+				if set[a] && a != v {
+					ok = false
+					break
+				}
+			}
+			if !ok || m.bondBetween(b.A, b.B) != bi {
+				continue
+			}
+			// ring: v..x then y..v (reverse)
+			path := append([]int(nil), px...)
+			for i := len(py) - 1; i >= 1; i-- {
+				path = append(path, py[i])
+			}
+			if len(path) < 3 {
+				continue
+			}
+			more = append(more, m.ringFromPath(path))
+		}
+		if len(more) > 20000 {
+			break
+		}
+	}
+	return pick(more)
+}
+
+func (m *Molecule) bfsTree(s int) []int {
+	prev := make([]int, len(m.Atoms))
+	for i := range prev {
+		prev[i] = -2
+	}
+	prev[s] = -1
+	q := []int{s}
+	for k := 0; k < len(q); k++ {
+		x := q[k]
+		for _, bi := range m.adj[x] {
+			o := m.Other(bi, x)
+			if prev[o] == -2 {
+				prev[o] = x
+				q = append(q, o)
+			}
+		}
+	}
+	return prev
+}
+
+// treePath returns the path from the tree root to x, or nil if x is unreachable.
+func treePath(prev []int, x int) []int {
+	if prev[x] == -2 {
+		return nil
+	}
+	var p []int
+	for ; x != -1; x = prev[x] {
+		p = append(p, x)
+	}
+	for i, j := 0, len(p)-1; i < j; i, j = i+1, j-1 {
+		p[i], p[j] = p[j], p[i]
+	}
+	return p
+}
+
+func ringKey(r Ring) string {
+	b := append([]int(nil), r.Bonds...)
+	sort.Ints(b)
+	var sb strings.Builder
+	for _, x := range b {
+		sb.WriteString(strconv.Itoa(x))
+		sb.WriteByte(',')
+	}
+	return sb.String()
+}
+
+// piElectrons returns the number of π electrons an atom gives to a ring, or -1 when the atom
+// cannot be part of an aromatic ring. The counting is the usual Hückel one: an atom in a ring
+// double bond gives 1; a ring carbon with an exocyclic double bond to a more electronegative atom
+// gives 0; a lone-pair donor (pyrrole-type N, furan O, thiophene S, carbanion) gives 2; a
+// carbocation or boron with an empty p orbital gives 0.
+func (p *Perceived) piElectrons(a int, ring map[int]bool) int {
+	m := p.Mol
+	at := &m.Atoms[a]
+	deg := len(m.adj[a]) + at.HCount
+	inRingDouble, exoDouble := false, -1
+	for _, bi := range m.adj[a] {
+		b := &m.Bonds[bi]
+		if b.Order == bondTriple {
+			return -1
+		}
+		if b.Order == bondDouble {
+			o := m.Other(bi, a)
+			if ring[o] {
+				inRingDouble = true
+			} else {
+				exoDouble = o
+			}
+		}
+	}
+	switch at.Z {
+	case 6:
+		if inRingDouble {
+			return 1
+		}
+		if exoDouble >= 0 {
+			if z := m.Atoms[exoDouble].Z; z == 7 || z == 8 || z == 16 {
+				return 0
+			}
+			return -1
+		}
+		if at.Charge == -1 && deg <= 3 {
+			return 2
+		}
+		if at.Charge == 1 && deg <= 3 {
+			return 0
+		}
+		return -1
+	case 7, 15:
+		if inRingDouble {
+			return 1
+		}
+		if at.Charge == 0 && deg == 3 {
+			return 2
+		}
+		if at.Charge == -1 && deg == 2 {
+			return 2
+		}
+		return -1
+	case 8, 16, 34, 52:
+		if inRingDouble {
+			return 1
+		}
+		if at.Charge == 0 && deg == 2 {
+			return 2
+		}
+		return -1
+	case 5:
+		if inRingDouble {
+			return 1
+		}
+		if at.Charge == 0 && deg == 3 {
+			return 0
+		}
+		return -1
+	}
+	return -1
+}
+
+// perceiveAromaticity marks atoms and bonds aromatic for each SSSR ring, and each pair of
+// bond-sharing SSSR rings, whose π-electron count is 4n+2 with every atom contributing.
+func (p *Perceived) perceiveAromaticity() {
+	m := p.Mol
+	p.AromaticAtom = make([]bool, len(m.Atoms))
+	p.AromaticBond = make([]bool, len(m.Bonds))
+	mark := func(atoms []int, bonds []int) {
+		for _, a := range atoms {
+			p.AromaticAtom[a] = true
+		}
+		for _, b := range bonds {
+			p.AromaticBond[b] = true
+		}
+	}
+	huckel := func(atoms []int) bool {
+		set := make(map[int]bool, len(atoms))
+		for _, a := range atoms {
+			set[a] = true
+		}
+		n := 0
+		for _, a := range atoms {
+			e := p.piElectrons(a, set)
+			if e < 0 {
+				return false
+			}
+			n += e
+		}
+		return n%4 == 2
+	}
+	for _, r := range p.SSSR {
+		if len(r.Atoms) > 24 {
+			continue
+		}
+		if huckel(r.Atoms) {
+			mark(r.Atoms, r.Bonds)
+		}
+	}
+	// fused pairs (e.g. azulene): the envelope of two rings that share one bond
+	for i := 0; i < len(p.SSSR); i++ {
+		for j := i + 1; j < len(p.SSSR); j++ {
+			ri, rj := p.SSSR[i], p.SSSR[j]
+			shared := 0
+			for _, b := range ri.Bonds {
+				for _, c := range rj.Bonds {
+					if b == c {
+						shared++
+					}
+				}
+			}
+			if shared != 1 {
+				continue
+			}
+			atoms := unionInts(ri.Atoms, rj.Atoms)
+			if huckel(atoms) {
+				var bonds []int
+				for _, b := range append(append([]int(nil), ri.Bonds...), rj.Bonds...) {
+					bonds = append(bonds, b)
+				}
+				mark(atoms, bonds)
+			}
+		}
+	}
+	// a bond between two aromatic atoms inside one aromatic ring stays aromatic; others not
+	for i := range m.Atoms {
+		m.Atoms[i].Aromatic = p.AromaticAtom[i]
+	}
+	for i := range m.Bonds {
+		m.Bonds[i].Aromatic = p.AromaticBond[i]
+	}
+}
+
+func unionInts(a, b []int) []int {
+	set := map[int]bool{}
+	var out []int
+	for _, x := range append(append([]int(nil), a...), b...) {
+		if !set[x] {
+			set[x] = true
+			out = append(out, x)
+		}
+	}
+	return out
+}
+
+// Formula returns the molecular formula in Hill order (C, H, then alphabetical; alphabetical
+// throughout when there is no carbon) with the net charge appended as +, -, +2, ... Explicit
+// hydrogen atoms and isotopes count as their element.
+func (m *Molecule) Formula() string {
+	counts := map[string]int{}
+	charge := 0
+	for _, a := range m.Atoms {
+		if a.Z == 0 {
+			counts["*"]++
+		} else {
+			counts[elementByZ(a.Z).Symbol]++
+		}
+		counts["H"] += a.HCount
+		charge += a.Charge
+	}
+	if counts["H"] == 0 {
+		delete(counts, "H")
+	}
+	var syms []string
+	for s := range counts {
+		syms = append(syms, s)
+	}
+	sort.Strings(syms)
+	var sb strings.Builder
+	write := func(s string) {
+		sb.WriteString(s)
+		if n := counts[s]; n > 1 {
+			sb.WriteString(strconv.Itoa(n))
+		}
+	}
+	if counts["C"] > 0 {
+		write("C")
+		if counts["H"] > 0 {
+			write("H")
+		}
+		for _, s := range syms {
+			if s != "C" && s != "H" {
+				write(s)
+			}
+		}
+	} else {
+		for _, s := range syms {
+			write(s)
+		}
+	}
+	switch {
+	case charge == 1:
+		sb.WriteString("+")
+	case charge == -1:
+		sb.WriteString("-")
+	case charge > 1:
+		fmt.Fprintf(&sb, "+%d", charge)
+	case charge < -1:
+		fmt.Fprintf(&sb, "%d", charge)
+	}
+	return sb.String()
+}
+
+// MolWeight returns the average molar mass in g/mol (IUPAC 2021 standard atomic weights; an
+// isotope label uses that isotope's mass).
+func (m *Molecule) MolWeight() float64 {
+	h := elementByZ(1).WeightG
+	w := 0.0
+	for _, a := range m.Atoms {
+		w += atomMass(a.Z, a.Isotope) + float64(a.HCount)*h
+	}
+	return w
+}
+
+// MonoisotopicMass returns the mass in u of the molecule built from the most abundant isotope of
+// each element (labelled atoms keep their isotope).
+func (m *Molecule) MonoisotopicMass() float64 {
+	h := elementByZ(1).MonoMass
+	w := 0.0
+	for _, a := range m.Atoms {
+		w += atomMonoMass(a.Z, a.Isotope) + float64(a.HCount)*h
+	}
+	return w
+}
+
+// HeavyAtomCount returns the number of atoms other than hydrogen.
+func (m *Molecule) HeavyAtomCount() int {
+	n := 0
+	for _, a := range m.Atoms {
+		if a.Z != 1 {
+			n++
+		}
+	}
+	return n
+}
