@@ -76,7 +76,6 @@ func New(cfg Config, store *data.Store, log *slog.Logger) *Server {
 	return s
 }
 
-
 // Start launches the job workers; they stop when ctx ends. Jobs interrupted by a restart are
 // resumed from their first unrecorded item.
 func (s *Server) Start(ctx context.Context) error { return s.jobs.start(ctx) }
@@ -91,7 +90,9 @@ func (s *Server) Handler() http.Handler {
 	r := gin.New()
 	r.HandleMethodNotAllowed = true
 	r.Use(s.requestID, s.recoverer, s.logRequests, s.countRequests, s.cors)
-	r.NoRoute(func(c *gin.Context) { fail(c, badRequest(errNotFoundPath, "", "no endpoint at "+c.Request.Method+" "+c.Request.URL.Path)) })
+	r.NoRoute(func(c *gin.Context) {
+		fail(c, badRequest(errNotFoundPath, "", "no endpoint at "+c.Request.Method+" "+c.Request.URL.Path))
+	})
 	r.NoMethod(func(c *gin.Context) {
 		writeProblem(c, Problem{Type: problemBase + "method-not-allowed", Title: "Method not allowed", Status: http.StatusMethodNotAllowed,
 			Detail: c.Request.Method + " is not allowed on " + c.Request.URL.Path, Instance: c.Request.URL.Path, RequestID: c.GetString(ctxRequestID)})

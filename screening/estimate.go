@@ -30,7 +30,7 @@ const (
 	// Trisubstituted ring olefin: the substituent stays on the chain olefin and lowers the
 	// strain released (from memory: 1-methylcyclopentene gives no high polymer while
 	// cyclopentene does; 1-methylcyclooctene polymerizes with a lower ceiling than cyclooctene).
-	corrTrisubH, corrTrisubUH = 6.0, 5.0
+	corrTrisubH, corrTrisubUH     = 6.0, 5.0
 	corrTetrasubH, corrTetrasubUH = 12.0, 8.0
 	// Gem-disubstituted ring sp3 carbon (Thorpe–Ingold effect favours the ring): from memory.
 	corrGemH, corrGemUH = 4.0, 4.0

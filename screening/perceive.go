@@ -502,15 +502,21 @@ func (m *Molecule) MolWeight() float64 {
 	return w
 }
 
+// ElectronMassU is the electron mass in u (CODATA 2018).
+const ElectronMassU = 5.48579909065e-4
+
 // MonoisotopicMass returns the mass in u of the molecule built from the most abundant isotope of
-// each element (labelled atoms keep their isotope).
+// each element (labelled atoms keep their isotope); an ion's mass is corrected by the mass of the
+// electrons it lacks or carries.
 func (m *Molecule) MonoisotopicMass() float64 {
 	h := elementByZ(1).MonoMass
 	w := 0.0
+	charge := 0
 	for _, a := range m.Atoms {
 		w += atomMonoMass(a.Z, a.Isotope) + float64(a.HCount)*h
+		charge += a.Charge
 	}
-	return w
+	return w - float64(charge)*ElectronMassU
 }
 
 // HeavyAtomCount returns the number of atoms other than hydrogen.

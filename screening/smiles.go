@@ -42,7 +42,7 @@ func smilesErr(pos int, format string, args ...any) error {
 // Bond orders. Aromatic bonds are kekulized to 1 or 2 after reading; BondAromatic is kept as a
 // flag on the bond.
 const (
-	bondUnset = 0
+	bondUnset  = 0
 	bondSingle = 1
 	bondDouble = 2
 	bondTriple = 3

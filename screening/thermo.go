@@ -347,23 +347,37 @@ func coreOfRing(rings []Ring, system []int, r int) []int {
 	return core
 }
 
-// fallback estimates a core the table lacks: each of its rings as the all-carbon monocycle of the
-// same size and bond pattern (aromatic rings count zero), plus, for bridged cores, an unknown
-// bridging strain carried only as uncertainty (25 kJ/mol). Marked not-hit.
+// fallback estimates a core the table lacks. First choice: the all-carbon analogue of the whole
+// core (heteroatoms replaced by carbon, bond orders kept) when the table has it, e.g. a
+// diaza-oxa-norbornene read as norbornene, with 8 kJ/mol and 15 J/(mol K) added to the
+// uncertainty for the substitution. Else each ring on its own: the all-carbon ring with the same
+// bond pattern, else the cycloalkene (or cycloalkane) of the same size with 5 kJ/mol more
+// uncertainty; aromatic rings count zero; bridged cores add 25 kJ/mol of uncertainty for the
+// unknown bridging strain. Marked not-hit either way.
 func (t *ringTable) fallback(sub *Molecule, p *Perceived, core []int, key string) strainTerm {
 	term := strainTerm{Key: key, Name: "estimate for " + key}
+	catoms := ringAtoms(p.SSSR, core)
+	if row, ok := t.byKey[carbonAnalogueKey(sub, catoms)]; ok && len(core) > 1 {
+		term.Name = "all-carbon analogue " + row.Name
+		term.H, term.S = row.RSCH, row.RSCS
+		term.UH, term.US = math.Hypot(row.UH, 8), math.Hypot(row.US, 15)
+		return term
+	}
 	for _, ri := range core {
 		r := p.SSSR[ri]
 		arom := true
+		doubles := 0
 		for _, b := range r.Bonds {
 			if !p.AromaticBond[b] {
 				arom = false
+			}
+			if sub.Bonds[b].Order == bondDouble && !p.AromaticBond[b] {
+				doubles++
 			}
 		}
 		if arom {
 			continue
 		}
-		// all-carbon ring with the same bond orders
 		n := len(r.Atoms)
 		ring := &Molecule{}
 		for i := 0; i < n; i++ {
@@ -373,33 +387,35 @@ func (t *ringTable) fallback(sub *Molecule, p *Perceived, core []int, key string
 			ord := sub.Bonds[r.Bonds[i]].Order
 			if p.AromaticBond[r.Bonds[i]] {
 				ord = 1
-				if i%2 == 0 {
-					ord = 2
-				}
 			}
 			ring.Bonds = append(ring.Bonds, Bond{A: i, B: (i + 1) % n, Order: ord})
 		}
-		ring.buildAdjacency()
-		ring.findComponents()
-		all := make([]int, n)
-		for i := range all {
-			all[i] = i
+		row, ok := t.byKey[carbonAnalogueKey(ring, seq(n))]
+		widen := 0.0
+		if !ok {
+			// same size, one ring double bond (or none)
+			parent := "C1" + strings.Repeat("C", n-1) + "1"
+			if doubles > 0 {
+				parent = "C1=C" + strings.Repeat("C", n-2) + "1"
+			}
+			if pm, err := ParseSMILES(parent); err == nil {
+				row, ok = t.byKey[carbonAnalogueKey(pm, seq(len(pm.Atoms)))]
+			}
+			widen = 5
 		}
-		k := systemKey(ring, all, -1, false)
-		if row, ok := t.byKey[k]; ok {
+		if ok {
 			term.H += row.RSCH
 			term.S += row.RSCS
-			term.UH = math.Hypot(term.UH, row.UH+5) // heteroatom or bond-pattern substitution
-			term.US = math.Hypot(term.US, row.US+5)
+			term.UH = math.Hypot(term.UH, row.UH+5+widen)
+			term.US = math.Hypot(term.US, row.US+5+widen)
 			continue
 		}
-		// an all-carbon ring with no row: large rings are nearly strain-free
-		switch {
-		case n >= 12:
+		// no row of that size: large rings are nearly strain-free
+		if n >= 12 {
 			term.S += 30
 			term.UH = math.Hypot(term.UH, 8)
 			term.US = math.Hypot(term.US, 15)
-		default:
+		} else {
 			term.H += 25
 			term.S += 90
 			term.UH = math.Hypot(term.UH, 20)
@@ -411,6 +427,36 @@ func (t *ringTable) fallback(sub *Molecule, p *Perceived, core []int, key string
 		term.US = math.Hypot(term.US, 25)
 	}
 	return term
+}
+
+func seq(n int) []int {
+	out := make([]int, n)
+	for i := range out {
+		out[i] = i
+	}
+	return out
+}
+
+// carbonAnalogueKey is the skeleton key of atoms with every atom made a non-aromatic carbon and
+// aromatic bonds read as single (the bond orders of the Kekulé form are kept).
+func carbonAnalogueKey(m *Molecule, atoms []int) string {
+	c := &Molecule{}
+	idx := map[int]int{}
+	for i, a := range atoms {
+		idx[a] = i
+		c.Atoms = append(c.Atoms, Atom{Z: 6, Bracket: true})
+	}
+	for _, b := range m.Bonds {
+		x, okx := idx[b.A]
+		y, oky := idx[b.B]
+		if okx && oky {
+			c.Bonds = append(c.Bonds, Bond{A: x, B: y, Order: b.Order})
+		}
+	}
+	c.buildAdjacency()
+	c.findComponents()
+	Perceive(c)
+	return SkeletonKey(c, seq(len(c.Atoms)), -1)
 }
 
 // cancelTerms removes terms present on both sides (spectator rings that ring opening leaves
