@@ -14,6 +14,31 @@ import (
 
 const canonBranchBudget = 4096
 
+// maxCanonAtoms bounds the subgraphs that get a full canonical key; larger ring systems (never in
+// the strain table) get a deterministic invariant summary instead.
+const maxCanonAtoms = 64
+
+// largeKey summarizes a large subgraph by its refined colour classes: equal for equal graphs,
+// possibly equal for some different ones, which is harmless since no table row is that large.
+func (g *subgraph) largeKey() string {
+	n := len(g.atoms)
+	init := make([]string, n)
+	for i := 0; i < n; i++ {
+		init[i] = g.label[i] + "|" + strconv.Itoa(len(g.nbr[i]))
+	}
+	col := g.refine(denseRanks(init))
+	counts := map[string]int{}
+	for i, c := range col {
+		counts[g.label[i]+"#"+strconv.Itoa(c)]++
+	}
+	var parts []string
+	for k, v := range counts {
+		parts = append(parts, k+"x"+strconv.Itoa(v))
+	}
+	sort.Strings(parts)
+	return "large:" + strconv.Itoa(n) + ":" + strings.Join(parts, ",")
+}
+
 type subgraph struct {
 	atoms []int       // molecule atom indices
 	local map[int]int // molecule index -> local index
@@ -115,6 +140,9 @@ func (g *subgraph) canonicalKey() string {
 	n := len(g.atoms)
 	if n == 0 {
 		return ""
+	}
+	if n > maxCanonAtoms {
+		return g.largeKey()
 	}
 	init := make([]string, n)
 	for i := 0; i < n; i++ {

@@ -14,6 +14,7 @@ type Structure struct {
 	CounterIons []string // formulas of the other components
 	Groups      []string // functional-group inventory of the main component
 	Olefins     []*Olefin
+	Skipped     int // ring olefins beyond MaxOlefinsAnalysed, not analysed
 	ringSystem  []int   // per SSSR ring: index of its ring system
 	systems     [][]int // SSSR ring indices per ring system
 }
@@ -55,6 +56,7 @@ func DescribeMolecule(m *Molecule, text string) (*Structure, error) {
 	for _, a := range s.Main {
 		inMain[a] = true
 	}
+	var ringOlefins []int
 	for bi, b := range m.Bonds {
 		if !inMain[b.A] || b.Order != bondDouble || p.AromaticBond[bi] || p.BondRingSize[bi] == 0 {
 			continue
@@ -62,10 +64,34 @@ func DescribeMolecule(m *Molecule, text string) (*Structure, error) {
 		if m.Atoms[b.A].Z != 6 || m.Atoms[b.B].Z != 6 {
 			continue
 		}
+		ringOlefins = append(ringOlefins, bi)
+	}
+	// Many ring olefins (polyenes, oligomers): analyse the most promising few, by a strain proxy
+	// on ring size; the rest are counted only.
+	if len(ringOlefins) > MaxOlefinsAnalysed {
+		pref := func(bi int) int {
+			switch p.BondRingSize[bi] {
+			case 4, 3:
+				return 0
+			case 5, 8:
+				return 1
+			case 7, 9, 10:
+				return 2
+			}
+			return 3
+		}
+		sort.SliceStable(ringOlefins, func(i, j int) bool { return pref(ringOlefins[i]) < pref(ringOlefins[j]) })
+		s.Skipped = len(ringOlefins) - MaxOlefinsAnalysed
+		ringOlefins = ringOlefins[:MaxOlefinsAnalysed]
+	}
+	for _, bi := range ringOlefins {
 		s.Olefins = append(s.Olefins, s.analyse(bi))
 	}
 	return s, nil
 }
+
+// MaxOlefinsAnalysed bounds the ring olefins of one monomer that are analysed in full.
+const MaxOlefinsAnalysed = 12
 
 // checkValence refuses carbon, oxygen and fluorine beyond their valence (pentavalent carbon and
 // the like are typing errors, not monomers).
@@ -463,8 +489,8 @@ func (s *Structure) analyse(bi int) *Olefin {
 	}
 	d.ExoEndo = s.exoEndo(o, inCore, inSystem)
 	d.TransRingFusion = s.transFusion(o, inSmall, inSystem)
-	d.SkeletonKey = SkeletonKey(m, o.SystemAtoms, -1)
-	d.CoreKey = SkeletonKey(m, o.CoreAtoms, -1)
+	d.SkeletonKey = cachedSkeletonKey(m, o.SystemAtoms, -1)
+	d.CoreKey = cachedSkeletonKey(m, o.CoreAtoms, -1)
 	return o
 }
 

@@ -37,8 +37,13 @@ func Perceive(m *Molecule) *Perceived {
 	p.BondRingSize = make([]int, len(m.Bonds))
 	p.AtomRingSize = make([]int, len(m.Atoms))
 	var candidates []Ring
+	inRing := m.ringBonds()
+	scratch := make([]int, 2*len(m.Atoms))
 	for bi := range m.Bonds {
-		path := m.shortestPathAvoiding(m.Bonds[bi].A, m.Bonds[bi].B, bi)
+		if !inRing[bi] {
+			continue
+		}
+		path := m.shortestPathAvoiding(m.Bonds[bi].A, m.Bonds[bi].B, bi, scratch)
 		if path == nil {
 			continue
 		}
@@ -60,15 +65,73 @@ func Perceive(m *Molecule) *Perceived {
 	return p
 }
 
+// ringBonds marks the bonds that lie on a cycle: every bond that is not a bridge of the graph
+// (Tarjan's low-link, iterative depth-first search).
+func (m *Molecule) ringBonds() []bool {
+	n := len(m.Atoms)
+	inRing := make([]bool, len(m.Bonds))
+	for i := range inRing {
+		inRing[i] = true
+	}
+	disc := make([]int, n)
+	low := make([]int, n)
+	for i := range disc {
+		disc[i] = -1
+	}
+	type frame struct{ v, parentBond, next int }
+	t := 0
+	for s := 0; s < n; s++ {
+		if disc[s] >= 0 {
+			continue
+		}
+		stack := []frame{{s, -1, 0}}
+		disc[s], low[s] = t, t
+		t++
+		for len(stack) > 0 {
+			f := &stack[len(stack)-1]
+			if f.next < len(m.adj[f.v]) {
+				bi := m.adj[f.v][f.next]
+				f.next++
+				if bi == f.parentBond {
+					continue
+				}
+				w := m.Other(bi, f.v)
+				if disc[w] < 0 {
+					disc[w], low[w] = t, t
+					t++
+					stack = append(stack, frame{w, bi, 0})
+				} else if disc[w] < low[f.v] {
+					low[f.v] = disc[w]
+				}
+				continue
+			}
+			// finished v: propagate low to the parent and classify the tree bond
+			v, pb := f.v, f.parentBond
+			stack = stack[:len(stack)-1]
+			if pb >= 0 {
+				u := m.Other(pb, v)
+				if low[v] < low[u] {
+					low[u] = low[v]
+				}
+				if low[v] > disc[u] {
+					inRing[pb] = false // a bridge
+				}
+			}
+		}
+	}
+	return inRing
+}
+
 // shortestPathAvoiding returns the atoms on a shortest path from a to b that does not use bond
-// skip (a first, b last), or nil.
-func (m *Molecule) shortestPathAvoiding(a, b, skip int) []int {
-	prev := make([]int, len(m.Atoms))
+// skip (a first, b last), or nil. scratch must hold 2 × atoms ints.
+func (m *Molecule) shortestPathAvoiding(a, b, skip int, scratch []int) []int {
+	prev := scratch[:len(m.Atoms)]
 	for i := range prev {
 		prev[i] = -2
 	}
 	prev[a] = -1
-	q := []int{a}
+	q := scratch[len(m.Atoms):len(m.Atoms)]
+	q = append(q, a)
 	for k := 0; k < len(q); k++ {
 		x := q[k]
 		if x == b {
@@ -117,6 +180,9 @@ func (m *Molecule) cyclomatic() int {
 	}
 	return len(m.Bonds) - len(m.Atoms) + comps
 }
+
+// hortonBudget bounds the extra ring search of selectSSSR (path steps).
+const hortonBudget = 2_000_000
 
 // selectSSSR picks linearly independent rings (over GF(2) on bond sets), smallest first, until the
 // cyclomatic number is reached; if the per-bond candidates do not span the cycle space, candidates
@@ -187,26 +253,37 @@ func (m *Molecule) selectSSSR(cands []Ring) []Ring {
 	if len(out) == need {
 		return out
 	}
-	// Horton-type candidates: for each atom v and bond (x,y), P(v,x) + (x,y) + P(y,v).
+	// Horton-type candidates: for each atom v and bond (x,y), P(v,x) + (x,y) + P(y,v). The work
+	// is bounded (hortonBudget path steps) so that no input can make perception slow; a cycle
+	// space that needs more is left with the rings found so far.
 	more := append([]Ring(nil), cands...)
+	work := 0
 	for v := range m.Atoms {
+		if work > hortonBudget || len(more) > 20000 {
+			break
+		}
 		prev := m.bfsTree(v)
+		work += len(m.Atoms)
 		for bi, b := range m.Bonds {
-			px := treePath(prev, b.A)
-			py := treePath(prev, b.B)
-			if px == nil || py == nil {
+			if prev[b.A] == -2 || prev[b.B] == -2 || prev[b.A] == b.B || prev[b.B] == b.A {
 				continue
 			}
-			if len(px) > 1 && len(py) > 1 && px[len(px)-2] == py[len(py)-2] {
-				continue
+			px := treePath(prev, b.A)
+			py := treePath(prev, b.B)
+			work += len(px) + len(py)
+			if work > hortonBudget {
+				break
+			}
+			if len(px) > 1 && len(py) > 1 && px[1] == py[1] {
+				continue // the two paths share their first step: not a simple cycle through v
 			}
 			set := map[int]bool{}
 			ok := true
 			for _, a := range px {
 				set[a] = true
 			}
-			for _, a := range py[:len(py)-1] {
-				if set[a] && a != v {
+			for _, a := range py[1:] {
+				if set[a] {
 					ok = false
 					break
 				}
@@ -214,7 +291,6 @@ func (m *Molecule) selectSSSR(cands []Ring) []Ring {
 			if !ok || m.bondBetween(b.A, b.B) != bi {
 				continue
 			}
-			// ring: v..x then y..v (reverse)
 			path := append([]int(nil), px...)
 			for i := len(py) - 1; i >= 1; i-- {
 				path = append(path, py[i])
@@ -223,9 +299,6 @@ func (m *Molecule) selectSSSR(cands []Ring) []Ring {
 				continue
 			}
 			more = append(more, m.ringFromPath(path))
-		}
-		if len(more) > 20000 {
-			break
 		}
 	}
 	return pick(more)

@@ -11,9 +11,9 @@ import (
 // refRow is one row of romp_thermo.csv.
 type refRow struct {
 	ID, Monomer, SMILES, Quantity string
-	Value                          float64
-	Unit, Conditions, Source       string
-	Evidence, Note                 string
+	Value                         float64
+	Unit, Conditions, Source      string
+	Evidence, Note                string
 }
 
 func loadThermoRef(t testing.TB) map[string]refRow {

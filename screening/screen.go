@@ -161,9 +161,13 @@ func ScreenStructure(s *Structure, c Conditions) (Result, error) {
 			SkeletonKey: x.o.D.CoreKey, DHkJmol: round(x.e.DHkJmol, 2), Note: "verdict for this olefin alone: " + x.r.Verdict,
 		})
 	}
-	if len(cands) > 1 {
-		best.Reasons = append(best.Reasons, note("several_ring_olefins",
-			fmt.Sprintf("%d ring olefins: screened on the most reactive; the others can react later (cross-linking, e.g. the cyclopentene ring of dicyclopentadiene)", len(cands))))
+	best.Descriptors.RingOlefins += s.Skipped
+	if n := len(cands) + s.Skipped; n > 1 {
+		det := fmt.Sprintf("%d ring olefins: screened on the most reactive; the others can react later (cross-linking, e.g. the cyclopentene ring of dicyclopentadiene)", n)
+		if s.Skipped > 0 {
+			det += fmt.Sprintf("; %d were not analysed (more than %d ring olefins)", s.Skipped, MaxOlefinsAnalysed)
+		}
+		best.Reasons = append(best.Reasons, note("several_ring_olefins", det))
 	}
 	if len(s.CounterIons) > 0 {
 		best.Reasons = append(best.Reasons, note("counter_ion", "salt: screened the largest organic component; other components: "+joinStrings(s.CounterIons)))

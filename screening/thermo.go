@@ -500,6 +500,18 @@ type GasEstimate struct {
 
 // gasEstimate computes the ring-correction part for opening bond bi of the ring system atoms.
 func (t *ringTable) gasEstimate(m *Molecule, systemAtoms []int, bi int, trans bool) GasEstimate {
+	// systemAtoms is sorted: the olefin is named by its atoms' local positions
+	la, lb := sort.SearchInts(systemAtoms, m.Bonds[bi].A), sort.SearchInts(systemAtoms, m.Bonds[bi].B)
+	sig := writtenSignature(m, systemAtoms, -1, "|open "+strconv.Itoa(la)+"-"+strconv.Itoa(lb)+"|"+strconv.FormatBool(trans))
+	if g, ok := gasMemo.get(sig); ok {
+		return g
+	}
+	g := t.gasEstimateUncached(m, systemAtoms, bi, trans)
+	gasMemo.put(sig, g)
+	return g
+}
+
+func (t *ringTable) gasEstimateUncached(m *Molecule, systemAtoms []int, bi int, trans bool) GasEstimate {
 	subM, _ := extract(m, systemAtoms, -1)
 	subS, _ := extract(m, systemAtoms, bi)
 	mono := t.ringSystemsTerms(subM, trans)

@@ -1,0 +1,70 @@
+package screening
+
+import (
+	"bufio"
+	"os"
+	"strings"
+	"testing"
+)
+
+// Benchmarks on the committed corpus of 10,000 generated candidate monomers
+// (testdata/corpus/candidates.smi). Targets and measured numbers are in the README's
+// performance section; run: go test ./screening -run '^$' -bench . -benchmem
+
+func loadCorpus(b *testing.B) []string {
+	f, err := os.Open("../testdata/corpus/candidates.smi")
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer f.Close()
+	var out []string
+	sc := bufio.NewScanner(f)
+	for sc.Scan() {
+		l := sc.Text()
+		if l == "" || strings.HasPrefix(l, "#") {
+			continue
+		}
+		out = append(out, strings.Fields(l)[0])
+	}
+	if len(out) < 10000 {
+		b.Fatalf("corpus has %d structures", len(out))
+	}
+	return out
+}
+
+func BenchmarkParseSMILES(b *testing.B) {
+	c := loadCorpus(b)
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if _, err := ParseSMILES(c[i%len(c)]); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+func BenchmarkPerceive(b *testing.B) {
+	c := loadCorpus(b)
+	mols := make([]*Molecule, len(c))
+	for i, s := range c {
+		mols[i], _ = ParseSMILES(s)
+	}
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		Perceive(mols[i%len(mols)])
+	}
+}
+
+func BenchmarkScreenSMILES(b *testing.B) {
+	c := loadCorpus(b)
+	cond := DefaultConditions()
+	Table()
+	b.ReportAllocs()
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if _, err := ScreenSMILES(c[i%len(c)], cond); err != nil {
+			b.Fatal(err)
+		}
+	}
+}

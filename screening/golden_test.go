@@ -1,0 +1,54 @@
+package screening
+
+import (
+	"bytes"
+	"encoding/json"
+	"flag"
+	"os"
+	"testing"
+)
+
+var update = flag.Bool("update", false, "rewrite golden files under testdata/golden")
+
+// TestGoldenDemoScreen screens the demo list of a fictional membrane lab (testdata/demo) and
+// compares the full results with testdata/golden/demo_screen.json. Run with -update after an
+// intended change and review the diff; the golden file pins behaviour, not published values.
+func TestGoldenDemoScreen(t *testing.T) {
+	f, err := os.Open("../testdata/demo/membrane_candidates.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	in, err := ReadInput(f, FormatCSV, "", 0)
+	if err != nil || len(in.Errors) > 0 {
+		t.Fatalf("demo file: %v %v", err, in.Errors)
+	}
+	type row struct {
+		ID     string `json:"id"`
+		Result Result `json:"result"`
+	}
+	var rows []row
+	for _, it := range in.Items {
+		r, err := ScreenItem(it, DefaultConditions())
+		if err != nil {
+			t.Fatalf("%s: %v", it.ID, err)
+		}
+		rows = append(rows, row{it.ID, r})
+	}
+	got, _ := json.MarshalIndent(rows, "", "  ")
+	got = append(got, '\n')
+	path := "../testdata/golden/demo_screen.json"
+	if *update {
+		if err := os.WriteFile(path, got, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		return
+	}
+	want, err := os.ReadFile(path)
+	if err != nil {
+		t.Fatalf("%v (run go test ./screening -run Golden -update)", err)
+	}
+	if !bytes.Equal(got, want) {
+		t.Errorf("demo screening differs from %s; run with -update if the change is intended and review the diff", path)
+	}
+}
