@@ -15,6 +15,7 @@ import (
 	"mime/multipart"
 	"net/http"
 	"runtime"
+	"sort"
 	"strconv"
 	"strings"
 	"sync"
@@ -275,8 +276,7 @@ func (s *Server) createJob(c *gin.Context) {
 		return
 	}
 	idem := c.GetHeader("Idempotency-Key")
-	sum := sha256.Sum256(append([]byte(c.ContentType()+"\n"), body...))
-	hash := hex.EncodeToString(sum[:])
+	hash := s.requestHash(c.GetHeader("Content-Type"), body)
 	if idem != "" {
 		s.idemMu.Lock()
 		defer s.idemMu.Unlock()
@@ -319,6 +319,36 @@ func (s *Server) createJob(c *gin.Context) {
 	}
 	c.Header("Location", "/v1/jobs/"+job.ID)
 	c.Data(http.StatusAccepted, "application/json", b)
+}
+
+// requestHash identifies a submission's content for Idempotency-Key checks: the raw body for
+// JSON; for multipart uploads the form fields and file contents, so that the random multipart
+// boundary of a retried upload does not make it look different.
+func (s *Server) requestHash(contentType string, body []byte) string {
+	h := sha256.New()
+	ct, params, _ := mime.ParseMediaType(contentType)
+	if ct == "multipart/form-data" && params["boundary"] != "" {
+		mr := multipart.NewReader(bytes.NewReader(body), params["boundary"])
+		var parts []string // one digest per part, sorted: field order does not matter
+		for {
+			part, err := mr.NextPart()
+			if err != nil {
+				break
+			}
+			ph := sha256.New()
+			fmt.Fprintf(ph, "%s\x00%s\x00", part.FormName(), part.FileName())
+			io.Copy(ph, part)
+			parts = append(parts, hex.EncodeToString(ph.Sum(nil)))
+		}
+		sort.Strings(parts)
+		for _, p := range parts {
+			h.Write([]byte(p))
+		}
+		return "multipart:" + hex.EncodeToString(h.Sum(nil))
+	}
+	h.Write([]byte(ct + "\n"))
+	h.Write(body)
+	return hex.EncodeToString(h.Sum(nil))
 }
 
 func readLimited(c *gin.Context, limit int64) ([]byte, error) {

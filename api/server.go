@@ -109,6 +109,7 @@ func (s *Server) Handler() http.Handler {
 	v1.POST("/screen", s.limitBody, s.screen)
 	v1.POST("/screen/batch", s.limitBody, s.batch)
 	v1.POST("/sweep", s.limitBody, s.sweep)
+	v1.POST("/plan", s.limitBody, s.plan)
 	v1.GET("/tables/ring-systems", s.ringTable)
 	v1.POST("/monomers", s.limitBody, s.createMonomer)
 	v1.GET("/monomers", s.listMonomers)
@@ -183,12 +184,24 @@ func decodeJSONBytes(body []byte, v any) error {
 func jsonErrField(err error) string {
 	var te *json.UnmarshalTypeError
 	if errors.As(err, &te) {
-		return te.Field
+		return jsonPath(te.Field)
 	}
 	if msg := err.Error(); strings.HasPrefix(msg, "json: unknown field ") {
 		return strings.Trim(strings.TrimPrefix(msg, "json: unknown field "), `"`)
 	}
 	return ""
+}
+
+// jsonPath drops the Go names of embedded structs from a decoder field path
+// ("MonomerSource.smiles" → "smiles").
+func jsonPath(field string) string {
+	var keep []string
+	for _, p := range strings.Split(field, ".") {
+		if p != "" && !(p[0] >= 'A' && p[0] <= 'Z') {
+			keep = append(keep, p)
+		}
+	}
+	return strings.Join(keep, ".")
 }
 
 func jsonErrMessage(err error, body []byte) string {
@@ -198,8 +211,8 @@ func jsonErrMessage(err error, body []byte) string {
 	}
 	var te *json.UnmarshalTypeError
 	if errors.As(err, &te) {
-		if te.Field != "" {
-			return fmt.Sprintf("field %q: expected %s (got JSON %s) at byte %d", te.Field, te.Type, te.Value, te.Offset)
+		if f := jsonPath(te.Field); f != "" {
+			return fmt.Sprintf("field %q: expected %s (got JSON %s) at byte %d", f, te.Type, te.Value, te.Offset)
 		}
 		return fmt.Sprintf("expected %s (got JSON %s) at byte %d", te.Type, te.Value, te.Offset)
 	}

@@ -18,25 +18,22 @@ const canonBranchBudget = 4096
 // the strain table) get a deterministic invariant summary instead.
 const maxCanonAtoms = 64
 
-// largeKey summarizes a large subgraph by its refined colour classes: equal for equal graphs,
-// possibly equal for some different ones, which is harmless since no table row is that large.
+// largeKey summarizes a large subgraph by its atom labels with their degrees and its bond
+// count: equal for equal graphs, possibly equal for some different ones, which is harmless since
+// no table row is that large. It is linear in the size so that no input can make it slow.
 func (g *subgraph) largeKey() string {
-	n := len(g.atoms)
-	init := make([]string, n)
-	for i := 0; i < n; i++ {
-		init[i] = g.label[i] + "|" + strconv.Itoa(len(g.nbr[i]))
-	}
-	col := g.refine(denseRanks(init))
 	counts := map[string]int{}
-	for i, c := range col {
-		counts[g.label[i]+"#"+strconv.Itoa(c)]++
+	bonds := 0
+	for i := range g.atoms {
+		counts[g.label[i]+strconv.Itoa(len(g.nbr[i]))]++
+		bonds += len(g.nbr[i])
 	}
 	var parts []string
 	for k, v := range counts {
 		parts = append(parts, k+"x"+strconv.Itoa(v))
 	}
 	sort.Strings(parts)
-	return "large:" + strconv.Itoa(n) + ":" + strings.Join(parts, ",")
+	return "large:" + strconv.Itoa(len(g.atoms)) + "/" + strconv.Itoa(bonds/2) + ":" + strings.Join(parts, ",")
 }
 
 type subgraph struct {

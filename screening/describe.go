@@ -14,7 +14,7 @@ type Structure struct {
 	CounterIons []string // formulas of the other components
 	Groups      []string // functional-group inventory of the main component
 	Olefins     []*Olefin
-	Skipped     int // ring olefins beyond MaxOlefinsAnalysed, not analysed
+	Skipped     int     // ring olefins beyond MaxOlefinsAnalysed, not analysed
 	ringSystem  []int   // per SSSR ring: index of its ring system
 	systems     [][]int // SSSR ring indices per ring system
 }

@@ -16,6 +16,10 @@ type Estimate struct {
 	Basis   string
 	Source  string
 	Notes   []Reason
+	// Parent names the strain-table row of the whole ring system, when there is one; Bare says
+	// the monomer is that parent without substituents.
+	Parent string
+	Bare   bool
 }
 
 // Substituent corrections on the ring-opening enthalpy and entropy (kJ/mol, J/(mol K)), each with
@@ -64,6 +68,9 @@ func EstimateOlefin(s *Structure, o *Olefin) Estimate {
 		UH:      math.Hypot(g.UH, t.OffsetHU),
 		US:      math.Hypot(g.US, t.OffsetSU),
 		Basis:   BasisRingTable,
+	}
+	if g.Row != nil {
+		e.Parent, e.Bare = g.Row.Name, parentOnly
 	}
 	names := strings.Join(g.Terms, " + ")
 	if len(g.Survive) > 0 {

@@ -3,9 +3,9 @@ package screening
 import (
 	"errors"
 	"fmt"
-	"time"
 	"strings"
 	"testing"
+	"time"
 )
 
 // FuzzScreenSMILES: any input string either screens or fails with a SMILES error carrying a

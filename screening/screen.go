@@ -47,6 +47,10 @@ type Thermo struct {
 	TempK         float64  `json:"temperature_k"`
 	ConcMolL      float64  `json:"monomer_conc_mol_l"`
 	HeatJPerG     *float64 `json:"heat_released_j_g,omitempty"`
+	// ParentRingSystem names the strain-table row of the monomer's ring system, if any.
+	ParentRingSystem string `json:"parent_ring_system,omitempty"`
+	// Unsubstituted: the monomer is that parent itself.
+	Unsubstituted bool `json:"unsubstituted_parent,omitempty"`
 }
 
 // maxReportedConc caps [M]eq in output (mol/L): beyond it the monomer cannot polymerize at any
@@ -86,14 +90,16 @@ type ConditionsOut struct {
 
 // Result is one screening result (contract: Screen result).
 type Result struct {
-	Verdict       string        `json:"verdict"`
-	Score         float64       `json:"score"`
-	Reasons       []Reason      `json:"reasons"`
-	Thermo        *Thermo       `json:"thermo"`
-	Descriptors   Descriptors   `json:"descriptors"`
-	Cautions      []string      `json:"cautions"`
-	Conditions    ConditionsOut `json:"conditions"`
-	EngineVersion string        `json:"engine_version"`
+	Verdict     string      `json:"verdict"`
+	Score       float64     `json:"score"`
+	Reasons     []Reason    `json:"reasons"`
+	Thermo      *Thermo     `json:"thermo"`
+	Descriptors Descriptors `json:"descriptors"`
+	Cautions    []string    `json:"cautions"`
+	// CatalystCompatibility ranks every catalyst class for the monomer's functional groups.
+	CatalystCompatibility []Compatibility `json:"catalyst_compatibility"`
+	Conditions            ConditionsOut   `json:"conditions"`
+	EngineVersion         string          `json:"engine_version"`
 }
 
 var verdictRank = map[string]int{VerdictPolymerizes: 0, VerdictEquilibrium: 1, VerdictUnfavorable: 2, VerdictBlocked: 3, VerdictNotMonomer: 4}
@@ -291,7 +297,8 @@ func judge(d *Descriptors, e *Estimate, c Conditions) Result {
 		EngineVersion: EngineVersion,
 		Conditions: ConditionsOut{TemperatureC: round(c.Temp.Celsius(), 4), TemperatureK: float64(c.Temp),
 			MonomerConcMolL: round(float64(c.Conc), 4), Bulk: c.Bulk, Catalyst: string(c.Catalyst)},
-		Reasons: []Reason{},
+		Reasons:               []Reason{},
+		CatalystCompatibility: CompatibilityFor(d.FunctionalGroups),
 	}
 	in := ruleInput{D: d, Cond: c}
 	for _, rl := range rules {
@@ -310,6 +317,7 @@ func judge(d *Descriptors, e *Estimate, c Conditions) Result {
 	th.DGUncKJmol = round(uG, 2)
 	th.Basis = e.Basis
 	th.Source = e.Source
+	th.ParentRingSystem, th.Unsubstituted = e.Parent, e.Bare
 	if d.MolWeightGmol > 0 && e.DHkJmol < 0 {
 		q := -e.DHkJmol * 1000 / d.MolWeightGmol
 		q = round(q, 1)

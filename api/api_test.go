@@ -1,0 +1,414 @@
+package api
+
+import (
+	"bytes"
+	"context"
+	"encoding/json"
+	"io"
+	"log/slog"
+	"mime/multipart"
+	"net/http"
+	"net/http/httptest"
+	"path/filepath"
+	"strings"
+	"testing"
+	"time"
+
+	"ringsieve/data"
+)
+
+func newTestServer(t *testing.T, cfg Config) (*httptest.Server, *Server) {
+	t.Helper()
+	st, err := data.Open(context.Background(), filepath.Join(t.TempDir(), "api.db"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	s := New(cfg, st, slog.New(slog.NewTextHandler(io.Discard, nil)))
+	ctx, cancel := context.WithCancel(context.Background())
+	s.Start(ctx)
+	ts := httptest.NewServer(s.Handler())
+	t.Cleanup(func() { ts.Close(); cancel(); s.Wait(); st.Close() })
+	return ts, s
+}
+
+type resp struct {
+	status int
+	header http.Header
+	body   []byte
+}
+
+func (r resp) json(t *testing.T, v any) {
+	t.Helper()
+	if err := json.Unmarshal(r.body, v); err != nil {
+		t.Fatalf("decode %s: %v", r.body, err)
+	}
+}
+
+func do(t *testing.T, ts *httptest.Server, method, path, body string, hdr ...string) resp {
+	t.Helper()
+	req, _ := http.NewRequest(method, ts.URL+path, strings.NewReader(body))
+	if body != "" {
+		req.Header.Set("Content-Type", "application/json")
+	}
+	for i := 0; i+1 < len(hdr); i += 2 {
+		req.Header.Set(hdr[i], hdr[i+1])
+	}
+	res, err := http.DefaultClient.Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer res.Body.Close()
+	b, _ := io.ReadAll(res.Body)
+	return resp{res.StatusCode, res.Header, b}
+}
+
+func TestHealthOpenAPIDocsMetrics(t *testing.T) {
+	ts, _ := newTestServer(t, Config{})
+	if r := do(t, ts, "GET", "/healthz", ""); r.status != 200 || !strings.Contains(string(r.body), `"ok"`) {
+		t.Fatalf("healthz %d %s", r.status, r.body)
+	}
+	r := do(t, ts, "GET", "/openapi.json", "")
+	var spec struct {
+		Paths map[string]any `json:"paths"`
+	}
+	r.json(t, &spec)
+	for _, p := range []string{"/v1/screen", "/v1/screen/batch", "/v1/monomers", "/v1/monomers/{id}", "/v1/jobs", "/v1/jobs/{id}", "/v1/jobs/{id}/results", "/v1/sweep", "/healthz"} {
+		if _, ok := spec.Paths[p]; !ok {
+			t.Errorf("OpenAPI document lacks %s", p)
+		}
+	}
+	for _, p := range []string{"/", "/docs", "/static/site.css", "/static/docs.js"} {
+		if r := do(t, ts, "GET", p, ""); r.status != 200 {
+			t.Errorf("%s: %d", p, r.status)
+		}
+	}
+	do(t, ts, "POST", "/v1/screen", `{"smiles":"C1=CCCC1"}`)
+	r = do(t, ts, "GET", "/metrics", "")
+	for _, m := range []string{"ringsieve_http_requests_total", "ringsieve_screenings_total", "ringsieve_job_queue_depth", "ringsieve_http_request_duration_seconds"} {
+		if !strings.Contains(string(r.body), m) {
+			t.Errorf("metrics lack %s", m)
+		}
+	}
+}
+
+func TestScreenEndpoint(t *testing.T) {
+	ts, _ := newTestServer(t, Config{})
+	// contract example
+	r := do(t, ts, "POST", "/v1/screen", `{"smiles":"C1=CC2CCC1C2","conditions":{"temperature_c":25,"monomer_conc_mol_l":1.0,"catalyst":"ru-nhc"}}`)
+	if r.status != 200 {
+		t.Fatalf("%d %s", r.status, r.body)
+	}
+	var out map[string]any
+	r.json(t, &out)
+	for _, k := range []string{"verdict", "score", "reasons", "thermo", "descriptors", "cautions"} {
+		if _, ok := out[k]; !ok {
+			t.Errorf("result lacks %s", k)
+		}
+	}
+	d := out["descriptors"].(map[string]any)
+	if d["formula"] != "C7H10" || d["mol_weight_g_mol"].(float64) < 94.1 || d["monoisotopic_mass"] == nil {
+		t.Errorf("descriptors %v", d)
+	}
+	th := out["thermo"].(map[string]any)
+	for _, k := range []string{"dh_kj_mol", "ds_j_mol_k", "dg_kj_mol", "ceiling_temp_k", "eq_monomer_mol_l", "eq_conversion", "dh_uncertainty_kj_mol", "basis"} {
+		if _, ok := th[k]; !ok {
+			t.Errorf("thermo lacks %s", k)
+		}
+	}
+	// cyclopentene descriptors, contract numbers: T_c 295.3 K at 1.0 mol/L (T010, Ofstead & Calderon 1972)
+	r = do(t, ts, "POST", "/v1/screen", `{"descriptors":{"ring_size":5,"ring_system":"monocyclic","dh_kj_mol":-18.4,"ds_j_mol_k":-62.3}}`)
+	r.json(t, &out)
+	if out["verdict"] != "unfavorable" {
+		t.Errorf("cyclopentene at 1 mol/L, 25 °C: %v", out["verdict"])
+	}
+}
+
+func TestProblemResponses(t *testing.T) {
+	ts, _ := newTestServer(t, Config{MaxBodyBytes: 4096})
+	cases := []struct {
+		name, method, path, body string
+		status                   int
+		field                    string
+		position                 int
+	}{
+		{"malformed JSON", "POST", "/v1/screen", `{"smiles":`, 400, "", -1},
+		{"NaN literal", "POST", "/v1/screen", `{"smiles":"C1=CCCC1","conditions":{"temperature_c":NaN}}`, 400, "", -1},
+		{"huge number", "POST", "/v1/screen", `{"smiles":"C1=CCCC1","conditions":{"temperature_c":1e999}}`, 400, "", -1},
+		{"unknown field", "POST", "/v1/screen", `{"smiles":"C1=CCCC1","colour":"blue"}`, 400, "colour", -1},
+		{"trailing data", "POST", "/v1/screen", `{"smiles":"C1=CCCC1"} {}`, 400, "", -1},
+		{"bad SMILES", "POST", "/v1/screen", `{"smiles":"C1=CC(C"}`, 422, "smiles", 5},
+		{"no source", "POST", "/v1/screen", `{}`, 422, "smiles", -1},
+		{"two sources", "POST", "/v1/screen", `{"smiles":"C1=CCCC1","monomer_id":"x"}`, 422, "smiles", -1},
+		{"0 K", "POST", "/v1/screen", `{"smiles":"C1=CCCC1","conditions":{"temperature_k":0}}`, 422, "conditions.temperature_k", -1},
+		{"below absolute zero", "POST", "/v1/screen", `{"smiles":"C1=CCCC1","conditions":{"temperature_c":-300}}`, 422, "conditions.temperature_c", -1},
+		{"zero concentration", "POST", "/v1/screen", `{"smiles":"C1=CCCC1","conditions":{"monomer_conc_mol_l":0}}`, 422, "conditions.monomer_conc_mol_l", -1},
+		{"unknown catalyst", "POST", "/v1/screen", `{"smiles":"C1=CCCC1","conditions":{"catalyst":"platinum"}}`, 422, "conditions.catalyst", -1},
+		{"missing monomer", "POST", "/v1/screen", `{"monomer_id":"mon_nope"}`, 404, "", -1},
+		{"bad record", "POST", "/v1/screen", `{"descriptors":{"ring_size":2}}`, 422, "descriptors.ring_size", -1},
+		{"body too large", "POST", "/v1/screen", `{"smiles":"` + strings.Repeat("C", 5000) + `"}`, 413, "", -1},
+		{"wrong type", "POST", "/v1/screen", `{"smiles":5}`, 400, "smiles", -1},
+		{"no route", "GET", "/v1/nothing", ``, 404, "", -1},
+		{"wrong method", "PATCH", "/v1/screen", ``, 405, "", -1},
+		{"bad limit", "GET", "/v1/monomers?limit=0", ``, 422, "limit", -1},
+	}
+	for _, c := range cases {
+		r := do(t, ts, c.method, c.path, c.body)
+		if r.status != c.status {
+			t.Errorf("%s: status %d, want %d (%s)", c.name, r.status, c.status, r.body)
+			continue
+		}
+		if ct := r.header.Get("Content-Type"); !strings.HasPrefix(ct, "application/problem+json") {
+			t.Errorf("%s: content type %q", c.name, ct)
+		}
+		var p Problem
+		r.json(t, &p)
+		if p.Status != c.status || p.Title == "" || p.Detail == "" || p.Type == "" {
+			t.Errorf("%s: problem %+v", c.name, p)
+		}
+		if c.field != "" && p.Field != c.field {
+			t.Errorf("%s: field %q, want %q", c.name, p.Field, c.field)
+		}
+		if c.position >= 0 && (p.Position == nil || *p.Position != c.position) {
+			t.Errorf("%s: position %v, want %d", c.name, p.Position, c.position)
+		}
+	}
+}
+
+func TestBatchRanksAndKeepsErrors(t *testing.T) {
+	ts, _ := newTestServer(t, Config{})
+	body := `{"items":[{"id":"cp","smiles":"C1=CCCC1"},{"id":"bad","smiles":"C1CC("},{"id":"nb","smiles":"C1=CC2CCC1C2"},{"id":"bz","smiles":"c1ccccc1"},{"id":"rec","descriptors":{"ring_size":8}}],"conditions":{"monomer_conc_mol_l":2.0}}`
+	r := do(t, ts, "POST", "/v1/screen/batch", body)
+	if r.status != 200 {
+		t.Fatalf("%d %s", r.status, r.body)
+	}
+	var out struct {
+		Results []struct {
+			ID      string   `json:"id"`
+			Rank    int      `json:"rank"`
+			Score   float64  `json:"score"`
+			Verdict string   `json:"verdict"`
+			Error   *Problem `json:"error"`
+		} `json:"results"`
+	}
+	r.json(t, &out)
+	if len(out.Results) != 5 {
+		t.Fatalf("%d results", len(out.Results))
+	}
+	last := out.Results[4]
+	if last.ID != "bad" || last.Error == nil || last.Error.Position == nil || *last.Error.Position != 4 || last.Rank != 5 {
+		t.Errorf("failed item: %+v", last)
+	}
+	for i := 1; i < 4; i++ {
+		if out.Results[i].Score > out.Results[i-1].Score || out.Results[i].Rank != i+1 {
+			t.Errorf("not ranked: %+v", out.Results)
+		}
+	}
+	if out.Results[0].ID != "nb" {
+		t.Errorf("first is %s, want norbornene", out.Results[0].ID)
+	}
+	if r := do(t, ts, "POST", "/v1/screen/batch", `{"items":[]}`); r.status != 422 {
+		t.Errorf("empty batch: %d", r.status)
+	}
+}
+
+func TestMonomerCRUDOverHTTP(t *testing.T) {
+	ts, _ := newTestServer(t, Config{})
+	r := do(t, ts, "POST", "/v1/monomers", `{"name":"MEM-04 imide","smiles":"CN1C(=O)C2C3C=CC(C3)C2C1=O","tags":["membrane","round-1"]}`)
+	if r.status != 201 || r.header.Get("ETag") == "" || r.header.Get("Location") == "" {
+		t.Fatalf("create: %d %s", r.status, r.body)
+	}
+	var m data.Monomer
+	r.json(t, &m)
+	etag := r.header.Get("ETag")
+	if r := do(t, ts, "GET", "/v1/monomers/"+m.ID, "", "If-None-Match", etag); r.status != 304 {
+		t.Errorf("If-None-Match: %d", r.status)
+	}
+	if r := do(t, ts, "PUT", "/v1/monomers/"+m.ID, `{"name":"renamed","descriptors":{"ring_size":5,"ring_system":"bridged"}}`, "If-Match", `"`+m.ID+`-v9"`); r.status != 412 {
+		t.Errorf("stale If-Match: %d %s", r.status, r.body)
+	}
+	r = do(t, ts, "PUT", "/v1/monomers/"+m.ID, `{"name":"renamed","smiles":"CN1C(=O)C2C3C=CC(C3)C2C1=O","tags":["round-2"]}`, "If-Match", etag)
+	if r.status != 200 {
+		t.Fatalf("replace: %d %s", r.status, r.body)
+	}
+	// a failed replace (bad SMILES) leaves the stored record as it was
+	if r := do(t, ts, "PUT", "/v1/monomers/"+m.ID, `{"name":"broken","smiles":"C1CC"}`); r.status != 422 {
+		t.Errorf("bad replace: %d", r.status)
+	}
+	r = do(t, ts, "GET", "/v1/monomers/"+m.ID, "")
+	r.json(t, &m)
+	if m.Name != "renamed" || m.Version != 2 {
+		t.Errorf("after failed replace: %+v", m)
+	}
+	r = do(t, ts, "GET", "/v1/monomers?tag=round-2&name=RENAMED", "")
+	var list MonomerList
+	r.json(t, &list)
+	if list.Total != 1 {
+		t.Errorf("list: %+v", list)
+	}
+	// screen the stored monomer and save to its history
+	r = do(t, ts, "POST", "/v1/screen", `{"monomer_id":"`+m.ID+`","save":true,"conditions":{"temperature_c":40}}`)
+	var sr ScreenResponse
+	r.json(t, &sr)
+	if r.status != 200 || sr.SavedResultID == 0 {
+		t.Fatalf("screen stored: %d %s", r.status, r.body)
+	}
+	r = do(t, ts, "GET", "/v1/monomers/"+m.ID+"/results", "")
+	var h ResultHistory
+	r.json(t, &h)
+	if len(h.Results) != 1 || h.Results[0].EngineVersion == "" {
+		t.Errorf("history %+v", h)
+	}
+	if r := do(t, ts, "DELETE", "/v1/monomers/"+m.ID, ""); r.status != 204 {
+		t.Errorf("delete: %d", r.status)
+	}
+	if r := do(t, ts, "GET", "/v1/monomers/"+m.ID, ""); r.status != 404 {
+		t.Errorf("get deleted: %d", r.status)
+	}
+}
+
+func waitJob(t *testing.T, ts *httptest.Server, id string) JobStatus {
+	t.Helper()
+	deadline := time.Now().Add(30 * time.Second)
+	for time.Now().Before(deadline) {
+		var st JobStatus
+		do(t, ts, "GET", "/v1/jobs/"+id, "").json(t, &st)
+		if st.Status == data.JobDone || st.Status == data.JobFailed || st.Status == data.JobCanceled {
+			return st
+		}
+		time.Sleep(50 * time.Millisecond)
+	}
+	t.Fatalf("job %s did not finish", id)
+	return JobStatus{}
+}
+
+func TestJobsJSONUploadIdempotencyAndFormats(t *testing.T) {
+	ts, _ := newTestServer(t, Config{})
+	body := `{"items":[{"id":"a","smiles":"C1=CCCC1"},{"id":"b","smiles":"C1=CC2CCC1C2"},{"id":"c","smiles":"oops("}],"conditions":{"temperature_c":25}}`
+	r1 := do(t, ts, "POST", "/v1/jobs", body, "Idempotency-Key", "k1")
+	r2 := do(t, ts, "POST", "/v1/jobs", body, "Idempotency-Key", "k1")
+	if r1.status != 202 || r2.status != 202 {
+		t.Fatalf("submit: %d %d %s", r1.status, r2.status, r1.body)
+	}
+	var c1, c2 JobCreated
+	r1.json(t, &c1)
+	r2.json(t, &c2)
+	if c1.ID != c2.ID {
+		t.Fatalf("same Idempotency-Key gave two jobs %s %s", c1.ID, c2.ID)
+	}
+	if r := do(t, ts, "POST", "/v1/jobs", `{"items":[{"smiles":"C"}]}`, "Idempotency-Key", "k1"); r.status != 422 {
+		t.Errorf("reused key with another body: %d", r.status)
+	}
+	st := waitJob(t, ts, c1.ID)
+	if st.Status != data.JobDone || st.Done != 3 || st.Failed != 1 || st.Percent != 100 {
+		t.Fatalf("job status %+v", st)
+	}
+	var res JobResults
+	do(t, ts, "GET", "/v1/jobs/"+c1.ID+"/results?limit=2", "").json(t, &res)
+	if len(res.Results) != 2 || res.Results[0].ID != "b" || res.NextOffset == nil {
+		t.Errorf("page 1: %+v", res)
+	}
+	csvR := do(t, ts, "GET", "/v1/jobs/"+c1.ID+"/results?format=csv", "")
+	lines := strings.Split(strings.TrimSpace(string(csvR.body)), "\n")
+	if len(lines) != 4 || !strings.HasPrefix(lines[0], "rank,id,") || !strings.HasPrefix(lines[3], "3,c,") {
+		t.Errorf("csv:\n%s", csvR.body)
+	}
+	jl := do(t, ts, "GET", "/v1/jobs/"+c1.ID+"/results?format=jsonl&verdict=polymerizes", "")
+	if n := strings.Count(strings.TrimSpace(string(jl.body)), "\n") + 1; n != 1 {
+		t.Errorf("jsonl filtered to polymerizes: %d rows\n%s", n, jl.body)
+	}
+	if r := do(t, ts, "DELETE", "/v1/jobs/"+c1.ID, ""); r.status != 409 {
+		t.Errorf("cancel a finished job: %d", r.status)
+	}
+
+	// file upload: CSV with an extra column, one bad row
+	var buf bytes.Buffer
+	w := multipart.NewWriter(&buf)
+	w.WriteField("temperature_c", "60")
+	w.WriteField("catalyst", "ru-pyridine")
+	fw, _ := w.CreateFormFile("file", "list.csv")
+	io.WriteString(fw, "id,smiles,batch\nm1,C1=CC2CCC1C2,A\nm2,,B\nm3,C1=CCCC=CCC1,C\n")
+	w.Close()
+	req, _ := http.NewRequest("POST", ts.URL+"/v1/jobs", &buf)
+	req.Header.Set("Content-Type", w.FormDataContentType())
+	res2, err := http.DefaultClient.Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	var created JobCreated
+	json.NewDecoder(res2.Body).Decode(&created)
+	res2.Body.Close()
+	if res2.StatusCode != 202 || created.Total != 2 || len(created.InputErrors) != 1 || created.InputErrors[0].Line != 3 {
+		t.Fatalf("upload: %d %+v", res2.StatusCode, created)
+	}
+	waitJob(t, ts, created.ID)
+	csvR = do(t, ts, "GET", "/v1/jobs/"+created.ID+"/results?format=csv", "")
+	if !strings.Contains(string(csvR.body), ",batch") || !strings.Contains(string(csvR.body), ",A") {
+		t.Errorf("extra column not carried through:\n%s", csvR.body)
+	}
+}
+
+func TestAPIKeysWhenRequired(t *testing.T) {
+	ts, s := newTestServer(t, Config{RequireKeys: true, RatePerKey: 1, RateBurst: 2})
+	if r := do(t, ts, "POST", "/v1/screen", `{"smiles":"C1=CCCC1"}`); r.status != 401 {
+		t.Fatalf("write without key: %d", r.status)
+	}
+	if r := do(t, ts, "GET", "/v1/monomers", ""); r.status != 200 {
+		t.Fatalf("read without key: %d", r.status)
+	}
+	_, secret, _ := s.store.CreateAPIKey(context.Background(), "test")
+	for i := 0; i < 2; i++ {
+		if r := do(t, ts, "POST", "/v1/screen", `{"smiles":"C1=CCCC1"}`, "X-API-Key", secret); r.status != 200 {
+			t.Fatalf("write with key: %d %s", r.status, r.body)
+		}
+	}
+	if r := do(t, ts, "POST", "/v1/screen", `{"smiles":"C1=CCCC1"}`, "X-API-Key", secret); r.status != 429 {
+		t.Errorf("over the rate limit: %d", r.status)
+	}
+	if r := do(t, ts, "POST", "/v1/screen", `{"smiles":"C1=CCCC1"}`, "X-API-Key", "rsk_wrong"); r.status != 401 {
+		t.Errorf("bad key: %d", r.status)
+	}
+}
+
+func TestCORS(t *testing.T) {
+	ts, _ := newTestServer(t, Config{CORSOrigins: []string{"https://notebook.example"}})
+	r := do(t, ts, "OPTIONS", "/v1/screen", "", "Origin", "https://notebook.example", "Access-Control-Request-Method", "POST")
+	if r.status != 204 || r.header.Get("Access-Control-Allow-Origin") != "https://notebook.example" {
+		t.Errorf("preflight: %d %v", r.status, r.header)
+	}
+	r = do(t, ts, "GET", "/healthz", "", "Origin", "https://elsewhere.example")
+	if r.header.Get("Access-Control-Allow-Origin") != "" {
+		t.Error("foreign origin allowed")
+	}
+}
+
+func TestSweepEndpoint(t *testing.T) {
+	ts, _ := newTestServer(t, Config{})
+	r := do(t, ts, "POST", "/v1/sweep", `{"smiles":"C1=CCCC1","sweep":{"from_c":-20,"to_c":100,"step_c":10}}`)
+	var out SweepResponse
+	r.json(t, &out)
+	if r.status != 200 || len(out.Points) != 13 {
+		t.Fatalf("%d %d points", r.status, len(out.Points))
+	}
+	if r := do(t, ts, "POST", "/v1/sweep", `{"smiles":"C1=CCCC1","sweep":{"from_c":0,"to_c":100,"step_c":0}}`); r.status != 422 {
+		t.Errorf("zero step: %d", r.status)
+	}
+}
+
+// TestNeverPanicsOnInput throws malformed and hostile bodies at every JSON endpoint; every
+// answer must be a 2xx or a 4xx problem, never a 500.
+func TestNeverPanicsOnInput(t *testing.T) {
+	ts, _ := newTestServer(t, Config{})
+	bodies := []string{``, `null`, `[]`, `"x"`, `{"items":null}`, `{"items":[null]}`, `{"smiles":"` + strings.Repeat("C1", 2500) + `"}`,
+		`{"descriptors":{}}`, `{"descriptors":{"ring_size":-1}}`, `{"descriptors":{"ring_size":5,"dh_kj_mol":1e308}}`,
+		`{"smiles":"[Na+].[Cl-]"}`, `{"smiles":"*"}`, `{"smiles":"C1=CC1","conditions":{"bulk":true}}`,
+		`{"descriptors":{"ring_size":5},"conditions":{"bulk":true}}`, `{"sweep":{"from_c":1e300,"to_c":1e301,"step_c":1}}`,
+		`{"name":"","smiles":"C"}`, `{"name":"x","tags":["` + strings.Repeat("t", 100) + `"]}`, "\x00\x01\x02"}
+	for _, path := range []string{"/v1/screen", "/v1/screen/batch", "/v1/sweep", "/v1/monomers", "/v1/jobs"} {
+		for _, b := range bodies {
+			r := do(t, ts, "POST", path, b)
+			if r.status >= 500 {
+				t.Errorf("%s %q: %d %s", path, b, r.status, r.body)
+			}
+		}
+	}
+}
