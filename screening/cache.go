@@ -1,8 +1,8 @@
 package screening
 
 import (
+	"sort"
 	"strconv"
-	"strings"
 	"sync"
 	"sync/atomic"
 )
@@ -44,43 +44,43 @@ func (c *memo[V]) put(k string, v V) {
 // the subgraph alone can be cached under it. It is not canonical (another atom order gives
 // another signature), which only costs a cache miss.
 func writtenSignature(m *Molecule, atoms []int, skip int, extra string) string {
-	var sb strings.Builder
-	sb.Grow(8 * len(atoms))
-	local := make(map[int]int, len(atoms))
-	for i, a := range atoms {
-		local[a] = i
+	sb := make([]byte, 0, 12*len(atoms)+len(extra))
+	// atoms is sorted: local numbers by binary search
+	local := func(a int) (int, bool) {
+		i := sort.SearchInts(atoms, a)
+		return i, i < len(atoms) && atoms[i] == a
 	}
 	for _, a := range atoms {
 		at := &m.Atoms[a]
-		sb.WriteString(strconv.Itoa(at.Z))
+		sb = strconv.AppendInt(sb, int64(at.Z), 10)
 		if at.Aromatic {
-			sb.WriteByte('a')
+			sb = append(sb, 'a')
 		}
-		sb.WriteByte(',')
+		sb = append(sb, ',')
 	}
-	sb.WriteByte('|')
+	sb = append(sb, '|')
 	for i, a := range atoms {
 		for _, bi := range m.adj[a] {
 			if bi == skip {
 				continue
 			}
-			j, ok := local[m.Other(bi, a)]
+			j, ok := local(m.Other(bi, a))
 			if !ok || j < i {
 				continue
 			}
 			b := &m.Bonds[bi]
-			sb.WriteString(strconv.Itoa(i))
-			sb.WriteByte('-')
-			sb.WriteString(strconv.Itoa(j))
-			sb.WriteByte(byte('0' + b.Order))
+			sb = strconv.AppendInt(sb, int64(i), 10)
+			sb = append(sb, '-')
+			sb = strconv.AppendInt(sb, int64(j), 10)
+			sb = append(sb, byte('0'+b.Order))
 			if b.Aromatic {
-				sb.WriteByte('a')
+				sb = append(sb, 'a')
 			}
-			sb.WriteByte(' ')
+			sb = append(sb, ' ')
 		}
 	}
-	sb.WriteString(extra)
-	return sb.String()
+	sb = append(sb, extra...)
+	return string(sb)
 }
 
 var (
@@ -95,6 +95,16 @@ func cachedSkeletonKey(m *Molecule, atoms []int, skip int) string {
 		return k
 	}
 	k := SkeletonKey(m, atoms, skip)
+	keyMemo.put(sig, k)
+	return k
+}
+
+// keyForSignature is cachedSkeletonKey for a signature already computed (skip = -1).
+func keyForSignature(sig string, m *Molecule, atoms []int) string {
+	if k, ok := keyMemo.get(sig); ok {
+		return k
+	}
+	k := SkeletonKey(m, atoms, -1)
 	keyMemo.put(sig, k)
 	return k
 }

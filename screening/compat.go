@@ -1,6 +1,9 @@
 package screening
 
-import "sort"
+import (
+	"sort"
+	"strings"
+)
 
 // Catalyst-class × functional-group tolerance.
 //
@@ -118,6 +121,19 @@ var statusRank = map[string]int{TolTolerated: 0, TolConditional: 1, TolSlows: 2,
 // CompatibilityFor ranks every catalyst class for a functional-group inventory, best first (ties
 // keep the contract's class order). Status is the worst code over the groups.
 func CompatibilityFor(groups []string) []Compatibility {
+	key := strings.Join(groups, ",")
+	if v, ok := compatMemo.get(key); ok {
+		return v
+	}
+	out := compatibilityFor(groups)
+	compatMemo.put(key, out)
+	return out
+}
+
+// compatMemo caches rankings by group set (results are shared: read-only).
+var compatMemo = newMemo[[]Compatibility](10000)
+
+func compatibilityFor(groups []string) []Compatibility {
 	var out []Compatibility
 	for _, c := range CatalystClasses {
 		cp := Compatibility{Catalyst: c, Status: TolTolerated, Groups: []string{}}

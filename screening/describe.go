@@ -28,6 +28,7 @@ type Olefin struct {
 	CoreAtoms   []int
 	SmallRing   []int // atoms of the smallest ring holding the olefin
 	D           Descriptors
+	sig         string // written signature of the ring system (cache key)
 }
 
 // Describe reads a SMILES and derives everything ROMP screening needs from it. Errors are
@@ -52,7 +53,7 @@ func DescribeMolecule(m *Molecule, text string) (*Structure, error) {
 	s.pickMain(smiles)
 	s.buildSystems()
 	s.Groups = FunctionalGroups(p, s.Main)
-	inMain := map[int]bool{}
+	inMain := make([]bool, len(m.Atoms))
 	for _, a := range s.Main {
 		inMain[a] = true
 	}
@@ -153,13 +154,7 @@ func (s *Structure) pickMain(smiles string) {
 	}
 }
 
-func (m *Molecule) subFormula(atoms []int) string {
-	sub := &Molecule{}
-	for _, a := range atoms {
-		sub.Atoms = append(sub.Atoms, m.Atoms[a])
-	}
-	return sub.Formula()
-}
+func (m *Molecule) subFormula(atoms []int) string { return m.formulaOf(atoms) }
 
 // buildSystems groups SSSR rings into ring systems (rings sharing at least one atom).
 func (s *Structure) buildSystems() {
@@ -211,12 +206,17 @@ func sharedAtoms(a, b Ring) int {
 }
 
 func ringAtoms(rings []Ring, idx []int) []int {
-	set := map[int]bool{}
 	var out []int
 	for _, i := range idx {
 		for _, a := range rings[i].Atoms {
-			if !set[a] {
-				set[a] = true
+			dup := false
+			for _, b := range out {
+				if a == b {
+					dup = true
+					break
+				}
+			}
+			if !dup {
 				out = append(out, a)
 			}
 		}
@@ -298,7 +298,7 @@ func (m *Molecule) isEWG(a int) bool {
 	at := &m.Atoms[a]
 	switch at.Z {
 	case 6:
-		if m.isCarbonyl(a) || len(m.doubleTo(a, 16)) > 0 {
+		if m.isCarbonyl(a) || m.countDoubleTo(a, 16) > 0 {
 			return true
 		}
 		f := 0
@@ -314,9 +314,9 @@ func (m *Molecule) isEWG(a int) bool {
 		}
 		return f >= 2
 	case 16:
-		return len(m.doubleTo(a, 8)) >= 2
+		return m.countDoubleTo(a, 8) >= 2
 	case 7:
-		return at.Charge == 1 && len(m.doubleTo(a, 8)) > 0
+		return at.Charge == 1 && m.countDoubleTo(a, 8) > 0
 	}
 	return false
 }
@@ -347,15 +347,15 @@ func (s *Structure) analyse(bi int) *Olefin {
 		}
 	}
 	o.SmallRing = append([]int(nil), p.SSSR[smallest].Atoms...)
-	inSystem := map[int]bool{}
+	n := len(m.Atoms)
+	flags := make([]bool, 5*n) // one allocation for the five atom sets below
+	inSystem, inCore, inSmall, allylic, homo := flags[:n], flags[n:2*n], flags[2*n:3*n], flags[3*n:4*n], flags[4*n:]
 	for _, a := range o.SystemAtoms {
 		inSystem[a] = true
 	}
-	inCore := map[int]bool{}
 	for _, a := range o.CoreAtoms {
 		inCore[a] = true
 	}
-	inSmall := map[int]bool{}
 	for _, a := range o.SmallRing {
 		inSmall[a] = true
 	}
@@ -430,21 +430,24 @@ func (s *Structure) analyse(bi int) *Olefin {
 		d.EWGOnOlefinRing = true
 	}
 	// allylic and homoallylic substituents
-	allylic := map[int]bool{}
+	var allylicList, homoList []int
 	for _, end := range []int{o.A, o.B} {
 		for _, x := range m.heavyNbrs(end) {
-			if x != o.A && x != o.B && inSmall[x] {
+			if x != o.A && x != o.B && inSmall[x] && !allylic[x] {
 				allylic[x] = true
+				allylicList = append(allylicList, x)
 			}
 		}
 	}
-	homo := map[int]bool{}
-	for a := range allylic {
-		for _, x := range m.heavyNbrs(a) {
-			if inCore[x] && !allylic[x] && x != o.A && x != o.B {
-				homo[x] = true
+	for _, x := range allylicList {
+		for _, y := range m.heavyNbrs(x) {
+			if inCore[y] && !allylic[y] && y != o.A && y != o.B && !homo[y] {
+				homo[y] = true
+				homoList = append(homoList, y)
 			}
 		}
+	}
+	for _, a := range allylicList {
 		exo := 0
 		for _, x := range m.heavyNbrs(a) {
 			if inSystem[x] {
@@ -471,7 +474,7 @@ func (s *Structure) analyse(bi int) *Olefin {
 			}
 		}
 	}
-	for a := range homo {
+	for _, a := range homoList {
 		exo := 0
 		for _, x := range m.heavyNbrs(a) {
 			if !inSystem[x] {
@@ -489,8 +492,13 @@ func (s *Structure) analyse(bi int) *Olefin {
 	}
 	d.ExoEndo = s.exoEndo(o, inCore, inSystem)
 	d.TransRingFusion = s.transFusion(o, inSmall, inSystem)
-	d.SkeletonKey = cachedSkeletonKey(m, o.SystemAtoms, -1)
-	d.CoreKey = cachedSkeletonKey(m, o.CoreAtoms, -1)
+	o.sig = writtenSignature(m, o.SystemAtoms, -1, "")
+	d.SkeletonKey = keyForSignature(o.sig, m, o.SystemAtoms)
+	if len(o.CoreAtoms) == len(o.SystemAtoms) {
+		d.CoreKey = d.SkeletonKey // the core is the whole system
+	} else {
+		d.CoreKey = cachedSkeletonKey(m, o.CoreAtoms, -1)
+	}
 	return o
 }
 
@@ -513,7 +521,7 @@ func (m *Molecule) dirSign(a, x int) int {
 }
 
 // ringTrans returns 1 for a trans ring olefin, 0 for cis or unspecified (marks absent).
-func (s *Structure) ringTrans(o *Olefin, inSmall map[int]bool) int {
+func (s *Structure) ringTrans(o *Olefin, inSmall []bool) int {
 	m := s.Mol
 	side := func(end, other int) (sign int, ring bool) {
 		for _, x := range m.heavyNbrs(end) {
@@ -609,7 +617,7 @@ func (m *Molecule) cisOnRing(prev, a, b, next, p, q int) int {
 // exoEndo reports exo/endo placement of substituents on the saturated bridge next to a bridgehead
 // of a bridged bicyclic olefin ("exo", "endo", "exo,endo", or "" when not applicable or not
 // specified by the SMILES).
-func (s *Structure) exoEndo(o *Olefin, inCore, inSystem map[int]bool) string {
+func (s *Structure) exoEndo(o *Olefin, inCore, inSystem []bool) string {
 	m := s.Mol
 	if len(o.CoreRings) < 2 {
 		return ""
@@ -687,7 +695,7 @@ func (s *Structure) exoEndo(o *Olefin, inCore, inSystem map[int]bool) string {
 
 // transFusion reports a trans ring fusion on the olefin's own ring (both fusion atoms carry
 // stereo marks and their out-of-ring bonds point to opposite faces).
-func (s *Structure) transFusion(o *Olefin, inSmall, inSystem map[int]bool) bool {
+func (s *Structure) transFusion(o *Olefin, inSmall, inSystem []bool) bool {
 	m := s.Mol
 	ring := o.SmallRing
 	n := len(ring)
@@ -708,7 +716,7 @@ func (s *Structure) transFusion(o *Olefin, inSmall, inSystem map[int]bool) bool 
 				qb = x
 			}
 		}
-		if pa < 0 || qb < 0 || !s.sameOtherRing(pa, qb, a, b) {
+		if pa < 0 || qb < 0 || m.Atoms[a].Chiral == 0 || m.Atoms[b].Chiral == 0 || !s.sameOtherRing(pa, qb, a, b) {
 			continue
 		}
 		if m.cisOnRing(prev, a, b, next, pa, qb) == -1 {
@@ -722,11 +730,13 @@ func (s *Structure) transFusion(o *Olefin, inSmall, inSystem map[int]bool) bool 
 // SSSR ring with a and b: the pair is a fusion bond.
 func (s *Structure) sameOtherRing(x, y, a, b int) bool {
 	for _, r := range s.P.SSSR {
-		has := map[int]bool{}
+		n := 0
 		for _, at := range r.Atoms {
-			has[at] = true
+			if at == x || at == y || at == a || at == b {
+				n++
+			}
 		}
-		if has[x] && has[y] && has[a] && has[b] {
+		if n == 4 {
 			return true
 		}
 	}

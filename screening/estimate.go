@@ -56,7 +56,7 @@ func noteValue(code, detail string, v float64, unit string) Reason {
 func EstimateOlefin(s *Structure, o *Olefin) Estimate {
 	t := Table()
 	d := &o.D
-	g := t.gasEstimate(s.Mol, o.SystemAtoms, o.Bond, d.TransOlefin)
+	g := t.gasEstimateSig(s.Mol, o.SystemAtoms, o.Bond, d.TransOlefin, o.sig)
 	sigma := 1.0
 	parentOnly := g.Row != nil && s.Mol.HeavyAtomCount() == len(o.SystemAtoms) && len(s.Mol.components) == 1
 	if parentOnly {

@@ -86,20 +86,41 @@ func (m *Molecule) doubleTo(a, z int) []int {
 	return out
 }
 
-// isCarbonyl reports a carbon with a C=O.
-func (m *Molecule) isCarbonyl(a int) bool {
-	return m.Atoms[a].Z == 6 && len(m.doubleTo(a, 8)) > 0
-}
-
-func (m *Molecule) heavyNbrs(a int) []int {
-	var out []int
+// countDoubleTo counts the atoms joined to a by a non-aromatic double bond with atomic number z
+// (z = 0: any), without allocating.
+func (m *Molecule) countDoubleTo(a, z int) int {
+	n := 0
 	for _, bi := range m.adj[a] {
-		o := m.Other(bi, a)
-		if m.Atoms[o].Z != 1 {
-			out = append(out, o)
+		b := &m.Bonds[bi]
+		if b.Order == bondDouble && !b.Aromatic && (z == 0 || m.Atoms[m.Other(bi, a)].Z == z) {
+			n++
 		}
 	}
-	return out
+	return n
+}
+
+// isCarbonyl reports a carbon with a C=O.
+func (m *Molecule) isCarbonyl(a int) bool {
+	return m.Atoms[a].Z == 6 && m.countDoubleTo(a, 8) > 0
+}
+
+// heavyNbrs returns the non-hydrogen neighbours of atom a. The slice is shared: read it, do not
+// modify it. The lists are built once per molecule, in one backing array.
+func (m *Molecule) heavyNbrs(a int) []int {
+	if m.heavy == nil {
+		m.heavy = make([][]int, len(m.Atoms))
+		back := make([]int, 0, 2*len(m.Bonds))
+		for i := range m.Atoms {
+			start := len(back)
+			for _, bi := range m.adj[i] {
+				if o := m.Other(bi, i); m.Atoms[o].Z != 1 {
+					back = append(back, o)
+				}
+			}
+			m.heavy[i] = back[start:len(back):len(back)]
+		}
+	}
+	return m.heavy[a]
 }
 
 func (m *Molecule) totalH(a int) int {
@@ -135,7 +156,7 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 				found[FGCarboxylate] = true
 				continue
 			}
-			if len(m.doubleTo(a, 0)) > 0 || at.Charge != 0 {
+			if m.countDoubleTo(a, 0) > 0 || at.Charge != 0 {
 				continue
 			}
 			if len(nb) == 1 && h == 1 {
@@ -284,15 +305,15 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 				continue
 			}
 			if at.Charge == 1 {
-				if len(m.doubleTo(a, 8)) > 0 {
+				if m.countDoubleTo(a, 8) > 0 {
 					found[FGNitro] = true
-				} else if len(m.doubleTo(a, 0)) == 0 {
+				} else if m.countDoubleTo(a, 0) == 0 {
 					found[FGAmmonium] = true
 				}
 				continue
 			}
-			if at.Charge != 0 || len(m.doubleTo(a, 0)) > 0 {
-				if len(m.doubleTo(a, 8)) > 0 {
+			if at.Charge != 0 || m.countDoubleTo(a, 0) > 0 {
+				if m.countDoubleTo(a, 8) > 0 {
 					found[FGNitro] = true
 				}
 				continue
@@ -308,16 +329,16 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 			}
 			acyl, sulfonyl, nN := 0, 0, 0
 			for _, x := range nb {
-				if m.isCarbonyl(x) || (m.Atoms[x].Z == 6 && len(m.doubleTo(x, 16)) > 0) {
+				if m.isCarbonyl(x) || (m.Atoms[x].Z == 6 && m.countDoubleTo(x, 16) > 0) {
 					acyl++
 				}
-				if m.Atoms[x].Z == 16 && len(m.doubleTo(x, 8)) >= 2 {
+				if m.Atoms[x].Z == 16 && m.countDoubleTo(x, 8) >= 2 {
 					sulfonyl++
 				}
 				if m.Atoms[x].Z == 7 {
 					nN++
 				}
-				if m.Atoms[x].Z == 6 && len(m.doubleTo(x, 7)) > 0 {
+				if m.Atoms[x].Z == 6 && m.countDoubleTo(x, 7) > 0 {
 					acyl++ // amidine / imine carbon: not a basic amine here
 				}
 			}
@@ -376,7 +397,7 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 				found[FGThioether] = true
 			}
 		case 15:
-			if len(m.doubleTo(a, 0)) > 0 {
+			if m.countDoubleTo(a, 0) > 0 {
 				continue
 			}
 			boron, oxy := false, 0

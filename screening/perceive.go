@@ -38,7 +38,9 @@ func Perceive(m *Molecule) *Perceived {
 	p.AtomRingSize = make([]int, len(m.Atoms))
 	var candidates []Ring
 	inRing := m.ringBonds()
-	scratch := make([]int, 2*len(m.Atoms))
+	scratch := make([]int, 3*len(m.Atoms))
+	var seenMasks []uint64 // bond masks of the rings found, when the molecule has at most 64 bonds
+	small := len(m.Bonds) <= 64
 	for bi := range m.Bonds {
 		if !inRing[bi] {
 			continue
@@ -48,6 +50,24 @@ func Perceive(m *Molecule) *Perceived {
 			continue
 		}
 		p.BondRingSize[bi] = len(path)
+		if small {
+			// skip a ring already found through another of its bonds before allocating it
+			var mask uint64
+			for i := range path {
+				mask |= 1 << uint(m.bondBetween(path[i], path[(i+1)%len(path)]))
+			}
+			dup := false
+			for _, s := range seenMasks {
+				if s == mask {
+					dup = true
+					break
+				}
+			}
+			if dup {
+				continue
+			}
+			seenMasks = append(seenMasks, mask)
+		}
 		candidates = append(candidates, m.ringFromPath(path))
 	}
 	for bi, sz := range p.BondRingSize {
@@ -73,8 +93,8 @@ func (m *Molecule) ringBonds() []bool {
 	for i := range inRing {
 		inRing[i] = true
 	}
-	disc := make([]int, n)
-	low := make([]int, n)
+	work := make([]int, 2*n)
+	disc, low := work[:n], work[n:]
 	for i := range disc {
 		disc[i] = -1
 	}
@@ -123,7 +143,8 @@ func (m *Molecule) ringBonds() []bool {
 }
 
 // shortestPathAvoiding returns the atoms on a shortest path from a to b that does not use bond
-// skip (a first, b last), or nil. scratch must hold 2 × atoms ints.
+// skip (a first, b last), or nil. scratch must hold 3 × atoms ints; the path returned lives in
+// it and is overwritten by the next call.
 func (m *Molecule) shortestPathAvoiding(a, b, skip int, scratch []int) []int {
 	prev := scratch[:len(m.Atoms)]
 	for i := range prev {
@@ -151,7 +172,8 @@ func (m *Molecule) shortestPathAvoiding(a, b, skip int, scratch []int) []int {
 	if prev[b] == -2 {
 		return nil
 	}
-	var path []int
+	n := len(m.Atoms)
+	path := scratch[2*n : 2*n]
 	for x := b; x != -1; x = prev[x] {
 		path = append(path, x)
 	}
@@ -199,15 +221,30 @@ func (m *Molecule) selectSSSR(cands []Ring) []Ring {
 		var pivots []int
 		var out []Ring
 		seen := map[string]bool{}
+		var seenMask []uint64 // one-word bond masks when the molecule has at most 64 bonds
 		for _, c := range cands {
-			key := ringKey(c)
-			if seen[key] {
-				continue
-			}
-			seen[key] = true
 			v := make([]uint64, words)
 			for _, bi := range c.Bonds {
 				v[bi/64] |= 1 << (bi % 64)
+			}
+			if words == 1 {
+				dup := false
+				for _, s := range seenMask {
+					if s == v[0] {
+						dup = true
+						break
+					}
+				}
+				if dup {
+					continue
+				}
+				seenMask = append(seenMask, v[0])
+			} else {
+				key := ringKey(c)
+				if seen[key] {
+					continue
+				}
+				seen[key] = true
 			}
 			for k, row := range basis {
 				pv := pivots[k]
@@ -355,7 +392,7 @@ func ringKey(r Ring) string {
 // double bond gives 1; a ring carbon with an exocyclic double bond to a more electronegative atom
 // gives 0; a lone-pair donor (pyrrole-type N, furan O, thiophene S, carbanion) gives 2; a
 // carbocation or boron with an empty p orbital gives 0.
-func (p *Perceived) piElectrons(a int, ring map[int]bool) int {
+func (p *Perceived) piElectrons(a int, ring []bool) int {
 	m := p.Mol
 	at := &m.Atoms[a]
 	deg := len(m.adj[a]) + at.HCount
@@ -437,23 +474,54 @@ func (p *Perceived) perceiveAromaticity() {
 			p.AromaticBond[b] = true
 		}
 	}
+	set := make([]bool, len(m.Atoms))
 	huckel := func(atoms []int) bool {
-		set := make(map[int]bool, len(atoms))
 		for _, a := range atoms {
 			set[a] = true
 		}
 		n := 0
+		ok := true
 		for _, a := range atoms {
 			e := p.piElectrons(a, set)
 			if e < 0 {
-				return false
+				ok = false
+				break
 			}
 			n += e
 		}
-		return n%4 == 2
+		for _, a := range atoms {
+			set[a] = false
+		}
+		return ok && n%4 == 2
+	}
+	// an atom with no double bond and no lone pair to give cannot be in an aromatic ring: rings
+	// holding one are skipped before counting
+	sp2 := make([]bool, len(m.Atoms))
+	for i := range m.Atoms {
+		at := &m.Atoms[i]
+		for _, bi := range m.adj[i] {
+			if m.Bonds[bi].Order == bondDouble {
+				sp2[i] = true
+			}
+		}
+		switch {
+		case sp2[i]:
+		case at.Z == 7 || at.Z == 8 || at.Z == 15 || at.Z == 16 || at.Z == 34 || at.Z == 52 || at.Z == 5:
+			sp2[i] = true
+		case at.Z == 6 && at.Charge != 0:
+			sp2[i] = true
+		}
+	}
+	candidate := func(r Ring) bool {
+		for _, a := range r.Atoms {
+			if !sp2[a] {
+				return false
+			}
+		}
+		return true
 	}
 	for _, r := range p.SSSR {
-		if len(r.Atoms) > 24 {
+		if len(r.Atoms) > 24 || !candidate(r) {
 			continue
 		}
 		if huckel(r.Atoms) {
@@ -462,8 +530,14 @@ func (p *Perceived) perceiveAromaticity() {
 	}
 	// fused pairs (e.g. azulene): the envelope of two rings that share one bond
 	for i := 0; i < len(p.SSSR); i++ {
+		if !candidate(p.SSSR[i]) {
+			continue
+		}
 		for j := i + 1; j < len(p.SSSR); j++ {
 			ri, rj := p.SSSR[i], p.SSSR[j]
+			if !candidate(rj) {
+				continue
+			}
 			shared := 0
 			for _, b := range ri.Bonds {
 				for _, c := range rj.Bonds {
@@ -509,48 +583,51 @@ func unionInts(a, b []int) []int {
 // Formula returns the molecular formula in Hill order (C, H, then alphabetical; alphabetical
 // throughout when there is no carbon) with the net charge appended as +, -, +2, ... Explicit
 // hydrogen atoms and isotopes count as their element.
-func (m *Molecule) Formula() string {
-	counts := map[string]int{}
+func (m *Molecule) Formula() string { return m.formulaOf(nil) }
+
+// formulaOf is Formula over the atoms listed (nil: all).
+func (m *Molecule) formulaOf(atoms []int) string {
+	counts := make([]int, len(elements)+1) // index 0: wildcard atoms
 	charge := 0
-	for _, a := range m.Atoms {
-		if a.Z == 0 {
-			counts["*"]++
-		} else {
-			counts[elementByZ(a.Z).Symbol]++
+	add := func(a *Atom) {
+		if a.Z >= 0 && a.Z <= len(elements) {
+			counts[a.Z]++
 		}
-		counts["H"] += a.HCount
+		counts[1] += a.HCount
 		charge += a.Charge
 	}
-	if counts["H"] == 0 {
-		delete(counts, "H")
+	if atoms == nil {
+		for i := range m.Atoms {
+			add(&m.Atoms[i])
+		}
 	}
-	var syms []string
-	for s := range counts {
-		syms = append(syms, s)
+	for _, i := range atoms {
+		add(&m.Atoms[i])
 	}
-	sort.Strings(syms)
 	var sb strings.Builder
-	write := func(s string) {
-		sb.WriteString(s)
-		if n := counts[s]; n > 1 {
+	write := func(sym string, n int) {
+		if n == 0 {
+			return
+		}
+		sb.WriteString(sym)
+		if n > 1 {
 			sb.WriteString(strconv.Itoa(n))
 		}
 	}
-	if counts["C"] > 0 {
-		write("C")
-		if counts["H"] > 0 {
-			write("H")
-		}
-		for _, s := range syms {
-			if s != "C" && s != "H" {
-				write(s)
+	if counts[6] > 0 {
+		write("C", counts[6])
+		write("H", counts[1])
+		for _, z := range alphabeticalZ {
+			if z != 6 && z != 1 {
+				write(elements[z-1].Symbol, counts[z])
 			}
 		}
 	} else {
-		for _, s := range syms {
-			write(s)
+		for _, z := range alphabeticalZ {
+			write(elements[z-1].Symbol, counts[z])
 		}
 	}
+	write("*", counts[0])
 	switch {
 	case charge == 1:
 		sb.WriteString("+")
@@ -564,13 +641,32 @@ func (m *Molecule) Formula() string {
 	return sb.String()
 }
 
+// alphabeticalZ lists atomic numbers in alphabetical order of their symbols (Hill order after
+// carbon and hydrogen).
+var alphabeticalZ = func() []int {
+	z := make([]int, len(elements))
+	for i := range z {
+		z[i] = i + 1
+	}
+	sort.Slice(z, func(a, b int) bool { return elements[z[a]-1].Symbol < elements[z[b]-1].Symbol })
+	return z
+}()
+
 // MolWeight returns the average molar mass in g/mol (IUPAC 2021 standard atomic weights; an
 // isotope label uses that isotope's mass).
-func (m *Molecule) MolWeight() float64 {
+func (m *Molecule) MolWeight() float64 { return m.molWeightOf(nil) }
+
+func (m *Molecule) molWeightOf(atoms []int) float64 {
 	h := elementByZ(1).WeightG
 	w := 0.0
-	for _, a := range m.Atoms {
-		w += atomMass(a.Z, a.Isotope) + float64(a.HCount)*h
+	add := func(a *Atom) { w += atomMass(a.Z, a.Isotope) + float64(a.HCount)*h }
+	if atoms == nil {
+		for i := range m.Atoms {
+			add(&m.Atoms[i])
+		}
+	}
+	for _, i := range atoms {
+		add(&m.Atoms[i])
 	}
 	return w
 }
@@ -581,13 +677,23 @@ const ElectronMassU = 5.48579909065e-4
 // MonoisotopicMass returns the mass in u of the molecule built from the most abundant isotope of
 // each element (labelled atoms keep their isotope); an ion's mass is corrected by the mass of the
 // electrons it lacks or carries.
-func (m *Molecule) MonoisotopicMass() float64 {
+func (m *Molecule) MonoisotopicMass() float64 { return m.monoMassOf(nil) }
+
+func (m *Molecule) monoMassOf(atoms []int) float64 {
 	h := elementByZ(1).MonoMass
 	w := 0.0
 	charge := 0
-	for _, a := range m.Atoms {
+	add := func(a *Atom) {
 		w += atomMonoMass(a.Z, a.Isotope) + float64(a.HCount)*h
 		charge += a.Charge
+	}
+	if atoms == nil {
+		for i := range m.Atoms {
+			add(&m.Atoms[i])
+		}
+	}
+	for _, i := range atoms {
+		add(&m.Atoms[i])
 	}
 	return w - float64(charge)*ElectronMassU
 }

@@ -131,13 +131,24 @@ func ruleBulkyAllylic(in ruleInput) []Reason {
 		Detail: "bulky substituent next to the ring olefin: slower propagation (common practice)"}}
 }
 
+// groupDetail caches the text of a group × class finding (the texts are static).
+var groupDetail = newMemo[string](1000)
+
 func ruleCatalystGroups(in ruleInput) []Reason {
 	var out []Reason
 	for _, g := range in.D.FunctionalGroups {
 		code, remedy := Tolerance(in.Cond.Catalyst, g)
-		detail := fmt.Sprintf("%s with %s: %s", strings.ReplaceAll(g, "_", " "), in.Cond.Catalyst, code)
-		if remedy != "" {
-			detail += "; " + remedy
+		if code == TolTolerated {
+			continue
+		}
+		key := g + "|" + string(in.Cond.Catalyst)
+		detail, ok := groupDetail.get(key)
+		if !ok {
+			detail = fmt.Sprintf("%s with %s: %s", strings.ReplaceAll(g, "_", " "), in.Cond.Catalyst, code)
+			if remedy != "" {
+				detail += "; " + remedy
+			}
+			groupDetail.put(key, detail)
 		}
 		switch {
 		case blocksHomopolymer(code, g):

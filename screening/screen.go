@@ -141,7 +141,7 @@ func ScreenStructure(s *Structure, c Conditions) (Result, error) {
 		r Result
 		e Estimate
 	}
-	var cands []cand
+	cands := make([]cand, 0, len(s.Olefins))
 	for _, o := range s.Olefins {
 		e := EstimateOlefin(s, o)
 		d := o.D
@@ -198,14 +198,16 @@ func ScreenDescriptors(d Descriptors, c Conditions) (Result, error) {
 
 func (s *Structure) moleculeDescriptors() Descriptors {
 	m := s.Mol
-	sub := &Molecule{}
-	for _, a := range s.Main {
-		sub.Atoms = append(sub.Atoms, m.Atoms[a])
-	}
 	arom := 0
 	for _, a := range s.Main {
 		if s.P.AromaticAtom[a] {
 			arom++
+		}
+	}
+	heavy := 0
+	for _, a := range s.Main {
+		if m.Atoms[a].Z != 1 {
+			heavy++
 		}
 	}
 	rings := 0
@@ -221,10 +223,10 @@ func (s *Structure) moleculeDescriptors() Descriptors {
 	return Descriptors{
 		FromStructure:    true,
 		SMILES:           s.MainSMILES,
-		Formula:          sub.Formula(),
-		MolWeightGmol:    round(sub.MolWeight(), 3),
-		MonoisotopicMass: round(sub.MonoisotopicMass(), 5),
-		HeavyAtoms:       sub.HeavyAtomCount(),
+		Formula:          m.formulaOf(s.Main),
+		MolWeightGmol:    round(m.molWeightOf(s.Main), 3),
+		MonoisotopicMass: round(m.monoMassOf(s.Main), 5),
+		HeavyAtoms:       heavy,
 		RingCount:        rings,
 		AromaticAtoms:    arom,
 		CounterIons:      s.CounterIons,

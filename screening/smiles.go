@@ -83,6 +83,7 @@ type Molecule struct {
 	Atoms []Atom
 	Bonds []Bond
 	adj   [][]int // bond indices per atom
+	heavy [][]int // non-hydrogen neighbours per atom, built on first use
 	// Components lists atom indices per dot-separated (or disconnected) component.
 	components [][]int
 }
@@ -145,7 +146,7 @@ func ParseSMILES(s string) (*Molecule, error) {
 	if strings.TrimSpace(s) == "" {
 		return nil, smilesErr(0, "empty SMILES")
 	}
-	r := &smilesReader{s: s, m: &Molecule{}, rings: map[int]ringOpen{}}
+	r := &smilesReader{s: s, m: &Molecule{Atoms: make([]Atom, 0, len(s)/2+1), Bonds: make([]Bond, 0, len(s)/2+2)}, rings: map[int]ringOpen{}}
 	if err := r.read(); err != nil {
 		return nil, err
 	}
@@ -282,7 +283,7 @@ func (r *smilesReader) read() error {
 					b.Dir, b.DirFrom = open.dir, open.atom
 				}
 				r.addBond(b)
-				r.m.Atoms[prev].nbrOrder = append(r.m.Atoms[prev].nbrOrder, open.atom)
+				r.noteNeighbor(prev, open.atom)
 				// the opening atom's neighbour order already holds a placeholder for this closure
 				r.fillRingPlaceholder(open.atom, num, prev)
 			} else {
@@ -291,7 +292,7 @@ func (r *smilesReader) read() error {
 				}
 				r.rings[num] = ringOpen{atom: prev, order: pendOrder, arom: pendArom, dir: pendDir, pos: pos}
 				// placeholder in the neighbour order, encoded as -(1000+num)
-				r.m.Atoms[prev].nbrOrder = append(r.m.Atoms[prev].nbrOrder, -(1000 + num))
+				r.noteNeighbor(prev, -(1000 + num))
 			}
 			pendOrder, pendDir, pendArom, pendPos = bondUnset, 0, false, -1
 		default:
@@ -313,9 +314,11 @@ func (r *smilesReader) read() error {
 					b.Dir, b.DirFrom = pendDir, prev
 				}
 				r.addBond(b)
-				r.m.Atoms[prev].nbrOrder = append(r.m.Atoms[prev].nbrOrder, idx)
+				r.noteNeighbor(prev, idx)
 				// the preceding atom comes first in this atom's order
-				r.m.Atoms[idx].nbrOrder = append([]int{prev}, r.m.Atoms[idx].nbrOrder...)
+				if r.m.Atoms[idx].Chiral != 0 {
+					r.m.Atoms[idx].nbrOrder = append([]int{prev}, r.m.Atoms[idx].nbrOrder...)
+				}
 			} else if pendOrder != bondUnset {
 				return smilesErr(pendPos, "bond symbol with no atom before it")
 			}
@@ -346,6 +349,13 @@ func (r *smilesReader) read() error {
 }
 
 func isDigit(c byte) bool { return c >= '0' && c <= '9' }
+
+// noteNeighbor records neighbour n in the chirality order of atom a (only chiral atoms need it).
+func (r *smilesReader) noteNeighbor(a, n int) {
+	if r.m.Atoms[a].Chiral != 0 {
+		r.m.Atoms[a].nbrOrder = append(r.m.Atoms[a].nbrOrder, n)
+	}
+}
 
 func (r *smilesReader) fillRingPlaceholder(atom, num, partner int) {
 	order := r.m.Atoms[atom].nbrOrder
@@ -578,7 +588,19 @@ func (r *smilesReader) readBracket() (Atom, error) {
 func isUpper(c byte) bool { return c >= 'A' && c <= 'Z' }
 
 func (m *Molecule) buildAdjacency() {
+	// one backing array for every atom's bond list
+	deg := make([]int, len(m.Atoms)+1)
+	for _, b := range m.Bonds {
+		deg[b.A]++
+		deg[b.B]++
+	}
+	back := make([]int, 2*len(m.Bonds))
 	m.adj = make([][]int, len(m.Atoms))
+	off := 0
+	for i := range m.Atoms {
+		m.adj[i] = back[off : off : off+deg[i]]
+		off += deg[i]
+	}
 	for i, b := range m.Bonds {
 		m.adj[b.A] = append(m.adj[b.A], i)
 		m.adj[b.B] = append(m.adj[b.B], i)
@@ -590,22 +612,25 @@ func (m *Molecule) buildAdjacency() {
 func (m *Molecule) findComponents() {
 	seen := make([]bool, len(m.Atoms))
 	m.components = m.components[:0]
+	// every component is a slice of one backing array, in breadth-first order
+	back := make([]int, 0, len(m.Atoms))
 	for i := range m.Atoms {
 		if seen[i] {
 			continue
 		}
-		comp := []int{i}
+		start := len(back)
+		back = append(back, i)
 		seen[i] = true
-		for k := 0; k < len(comp); k++ {
-			for _, bi := range m.adj[comp[k]] {
-				o := m.Other(bi, comp[k])
+		for k := start; k < len(back); k++ {
+			for _, bi := range m.adj[back[k]] {
+				o := m.Other(bi, back[k])
 				if !seen[o] {
 					seen[o] = true
-					comp = append(comp, o)
+					back = append(back, o)
 				}
 			}
 		}
-		m.components = append(m.components, comp)
+		m.components = append(m.components, back[start:len(back):len(back)])
 	}
 }
 

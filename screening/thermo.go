@@ -500,9 +500,14 @@ type GasEstimate struct {
 
 // gasEstimate computes the ring-correction part for opening bond bi of the ring system atoms.
 func (t *ringTable) gasEstimate(m *Molecule, systemAtoms []int, bi int, trans bool) GasEstimate {
+	return t.gasEstimateSig(m, systemAtoms, bi, trans, writtenSignature(m, systemAtoms, -1, ""))
+}
+
+// gasEstimateSig is gasEstimate with the system's written signature already computed.
+func (t *ringTable) gasEstimateSig(m *Molecule, systemAtoms []int, bi int, trans bool, base string) GasEstimate {
 	// systemAtoms is sorted: the olefin is named by its atoms' local positions
 	la, lb := sort.SearchInts(systemAtoms, m.Bonds[bi].A), sort.SearchInts(systemAtoms, m.Bonds[bi].B)
-	sig := writtenSignature(m, systemAtoms, -1, "|open "+strconv.Itoa(la)+"-"+strconv.Itoa(lb)+"|"+strconv.FormatBool(trans))
+	sig := base + "|open " + strconv.Itoa(la) + "-" + strconv.Itoa(lb) + "|" + strconv.FormatBool(trans)
 	if g, ok := gasMemo.get(sig); ok {
 		return g
 	}
