@@ -89,6 +89,7 @@ func screenCmd() *cobra.Command {
 			if err != nil {
 				return err
 			}
+			tuneGC()
 			out := cmd.OutOrStdout()
 			if format == "" {
 				format = "csv"

@@ -295,12 +295,7 @@ func (s *Server) createJob(c *gin.Context) {
 			return
 		}
 	}
-	condJSON, items, format, extra, inErrs, err := s.parseJobBody(c, body)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	job, err := s.store.CreateJob(c.Request.Context(), condJSON, format, extra, items)
+	job, inErrs, err := s.storeJobBody(c, body)
 	if err != nil {
 		fail(c, err)
 		return
@@ -366,65 +361,134 @@ func readLimited(c *gin.Context, limit int64) ([]byte, error) {
 	return b, nil
 }
 
-// parseJobBody reads a JSON batch or a multipart upload into stored items.
-func (s *Server) parseJobBody(c *gin.Context, body []byte) (json.RawMessage, []data.JobItem, string, []string, []screening.InputError, error) {
+// storeJobBody stores a JSON batch or a multipart upload as a job. Upload items go to the
+// database as they are read (one transaction), so memory does not grow with the item count
+// beyond the raw request body.
+func (s *Server) storeJobBody(c *gin.Context, body []byte) (data.Job, []screening.InputError, error) {
+	ctx := c.Request.Context()
 	ct, params, _ := mime.ParseMediaType(c.GetHeader("Content-Type"))
 	if ct == "multipart/form-data" {
-		return s.parseUpload(body, params["boundary"])
+		return s.storeUpload(ctx, body, params["boundary"])
 	}
 	var req BatchRequest
 	if err := decodeJSONBytes(body, &req); err != nil {
-		return nil, nil, "", nil, nil, err
+		return data.Job{}, nil, err
 	}
 	if _, err := req.Conditions.toConditions(); err != nil {
-		return nil, nil, "", nil, nil, err
+		return data.Job{}, nil, err
 	}
 	if len(req.Items) == 0 {
-		return nil, nil, "", nil, nil, &screening.FieldError{Field: "items", Msg: "give at least one item"}
+		return data.Job{}, nil, &screening.FieldError{Field: "items", Msg: "give at least one item"}
 	}
 	if len(req.Items) > s.cfg.JobLimit {
-		return nil, nil, "", nil, nil, &screening.FieldError{Field: "items", Msg: fmt.Sprintf("at most %d items per job", s.cfg.JobLimit)}
-	}
-	items := make([]data.JobItem, len(req.Items))
-	for i, it := range req.Items {
-		id := it.ID
-		if id == "" {
-			id = strconv.Itoa(i + 1)
-		}
-		items[i] = data.JobItem{ItemID: id, Source: mustJSON(jobSource{SMILES: it.SMILES, Descriptors: it.Descriptors, MonomerID: it.MonomerID})}
+		return data.Job{}, nil, &screening.FieldError{Field: "items", Msg: fmt.Sprintf("at most %d items per job", s.cfg.JobLimit)}
 	}
 	cj := mustJSON(req.Conditions)
 	if req.Conditions == nil {
 		cj = []byte("{}")
 	}
-	return cj, items, "json", nil, nil, nil
+	job, err := s.store.CreateJobStream(ctx, "json", func(add func(data.JobItem) error) (json.RawMessage, []string, error) {
+		for i, it := range req.Items {
+			id := it.ID
+			if id == "" {
+				id = strconv.Itoa(i + 1)
+			}
+			if err := add(data.JobItem{ItemID: id, Source: mustJSON(jobSource{SMILES: it.SMILES, Descriptors: it.Descriptors, MonomerID: it.MonomerID})}); err != nil {
+				return nil, nil, err
+			}
+		}
+		return cj, nil, nil
+	})
+	return job, nil, err
 }
 
-func (s *Server) parseUpload(body []byte, boundary string) (json.RawMessage, []data.JobItem, string, []string, []screening.InputError, error) {
+// storeUpload streams a multipart upload: form fields (conditions, format, id_field) and one
+// file part. Fields may come before or after the file; they are validated before the
+// transaction commits.
+func (s *Server) storeUpload(ctx context.Context, body []byte, boundary string) (data.Job, []screening.InputError, error) {
 	if boundary == "" {
-		return nil, nil, "", nil, nil, badRequest(errMalformed, "", "multipart body without a boundary")
+		return data.Job{}, nil, badRequest(errMalformed, "", "multipart body without a boundary")
 	}
+	// fields first: a cheap pass over the parts that skips the file's content
+	vals := map[string]string{}
+	files := 0
 	mr := multipart.NewReader(bytes.NewReader(body), boundary)
-	form, err := mr.ReadForm(s.cfg.MaxFileBytes)
-	if err != nil {
-		return nil, nil, "", nil, nil, badRequest(errMalformed, "", "malformed multipart body: "+err.Error())
-	}
-	defer form.RemoveAll()
-	val := func(k string) string {
-		if v := form.Value[k]; len(v) > 0 {
-			return strings.TrimSpace(v[0])
+	for {
+		part, err := mr.NextPart()
+		if err == io.EOF {
+			break
 		}
-		return ""
+		if err != nil {
+			return data.Job{}, nil, badRequest(errMalformed, "", "malformed multipart body: "+err.Error())
+		}
+		if part.FormName() == "file" {
+			files++
+			continue
+		}
+		b, err := io.ReadAll(io.LimitReader(part, 4096))
+		if err != nil {
+			return data.Job{}, nil, badRequest(errMalformed, "", "malformed multipart body: "+err.Error())
+		}
+		vals[part.FormName()] = strings.TrimSpace(string(b))
 	}
+	if files != 1 {
+		return data.Job{}, nil, &screening.FieldError{Field: "file", Msg: "upload exactly one file in the field \"file\""}
+	}
+	ci, err := uploadConditions(vals)
+	if err != nil {
+		return data.Job{}, nil, err
+	}
+	var in *screening.Input
+	job, err := s.store.CreateJobStream(ctx, "upload", func(add func(data.JobItem) error) (json.RawMessage, []string, error) {
+		mr := multipart.NewReader(bytes.NewReader(body), boundary)
+		for {
+			part, err := mr.NextPart()
+			if err != nil {
+				return nil, nil, badRequest(errMalformed, "file", "could not read the uploaded file")
+			}
+			if part.FormName() != "file" {
+				continue
+			}
+			in, err = screening.ScanInput(part, vals["format"], vals["id_field"], s.cfg.JobLimit, func(it screening.InputItem) error {
+				return add(data.JobItem{ItemID: it.ID, Line: it.Line, Extra: it.Extra, Source: mustJSON(jobSource{SMILES: it.SMILES, Molfile: it.Molfile})})
+			})
+			if err != nil {
+				var fe *screening.FieldError
+				if errors.As(err, &fe) {
+					return nil, nil, err
+				}
+				return nil, nil, &screening.FieldError{Field: "file", Msg: err.Error()}
+			}
+			if in.Count == 0 {
+				msg := "the file holds no readable structures"
+				if len(in.Errors) > 0 {
+					msg += fmt.Sprintf(" (first problem: line %d: %s)", in.Errors[0].Line, in.Errors[0].Msg)
+				}
+				return nil, nil, &screening.FieldError{Field: "file", Msg: msg}
+			}
+			return mustJSON(ci), in.ExtraColumns, nil
+		}
+	})
+	if err != nil {
+		return data.Job{}, nil, err
+	}
+	if _, err := s.store.DB().ExecContext(ctx, `UPDATE jobs SET source_format = ? WHERE id = ?`, in.Format, job.ID); err == nil {
+		job.SourceFormat = in.Format
+	}
+	return job, in.Errors, nil
+}
+
+// uploadConditions reads the conditions of a multipart upload from its form fields.
+func uploadConditions(vals map[string]string) (ConditionsIn, error) {
 	var ci ConditionsIn
 	for _, k := range []string{"temperature_c", "temperature_k", "monomer_conc_mol_l"} {
-		v := val(k)
+		v := vals[k]
 		if v == "" {
 			continue
 		}
 		f, err := strconv.ParseFloat(v, 64)
 		if err != nil || math.IsNaN(f) || math.IsInf(f, 0) {
-			return nil, nil, "", nil, nil, &screening.FieldError{Field: k, Msg: "must be a finite number"}
+			return ci, &screening.FieldError{Field: k, Msg: "must be a finite number"}
 		}
 		switch k {
 		case "temperature_c":
@@ -435,42 +499,16 @@ func (s *Server) parseUpload(body []byte, boundary string) (json.RawMessage, []d
 			ci.MonomerConcMolL = &f
 		}
 	}
-	if b := val("bulk"); b != "" {
+	if b := vals["bulk"]; b != "" {
 		v, err := strconv.ParseBool(b)
 		if err != nil {
-			return nil, nil, "", nil, nil, &screening.FieldError{Field: "bulk", Msg: "must be true or false"}
+			return ci, &screening.FieldError{Field: "bulk", Msg: "must be true or false"}
 		}
 		ci.Bulk = v
 	}
-	ci.Catalyst = val("catalyst")
-	if _, err := ci.toConditions(); err != nil {
-		return nil, nil, "", nil, nil, err
-	}
-	files := form.File["file"]
-	if len(files) != 1 {
-		return nil, nil, "", nil, nil, &screening.FieldError{Field: "file", Msg: "upload exactly one file in the field \"file\""}
-	}
-	f, err := files[0].Open()
-	if err != nil {
-		return nil, nil, "", nil, nil, badRequest(errMalformed, "file", "could not read the uploaded file")
-	}
-	defer f.Close()
-	in, err := screening.ReadInput(f, val("format"), val("id_field"), s.cfg.JobLimit)
-	if err != nil {
-		return nil, nil, "", nil, nil, &screening.FieldError{Field: "file", Msg: err.Error()}
-	}
-	if len(in.Items) == 0 {
-		msg := "the file holds no readable structures"
-		if len(in.Errors) > 0 {
-			msg += fmt.Sprintf(" (first problem: line %d: %s)", in.Errors[0].Line, in.Errors[0].Msg)
-		}
-		return nil, nil, "", nil, nil, &screening.FieldError{Field: "file", Msg: msg}
-	}
-	items := make([]data.JobItem, len(in.Items))
-	for i, it := range in.Items {
-		items[i] = data.JobItem{ItemID: it.ID, Line: it.Line, Extra: it.Extra, Source: mustJSON(jobSource{SMILES: it.SMILES, Molfile: it.Molfile})}
-	}
-	return mustJSON(ci), items, in.Format, in.ExtraColumns, in.Errors, nil
+	ci.Catalyst = vals["catalyst"]
+	_, err := ci.toConditions()
+	return ci, err
 }
 
 // getJob godoc

@@ -72,17 +72,15 @@ func tsPtr(s string) *time.Time {
 	return &t
 }
 
-// CreateJob stores a job and all its items in one transaction (status queued).
-func (s *Store) CreateJob(ctx context.Context, conditions json.RawMessage, format string, extraCols []string, items []JobItem) (Job, error) {
-	if extraCols == nil {
-		extraCols = []string{}
-	}
-	ecJSON, _ := json.Marshal(extraCols)
-	j := Job{ID: newID("job_"), Status: JobQueued, Conditions: conditions, Total: len(items), SourceFormat: format, ExtraColumns: extraCols}
+// CreateJobStream stores a job whose items are produced by fill, in one transaction: fill calls
+// add for each item as it is read and finally returns the job's conditions and extra columns.
+// Nothing is stored when fill or any insert fails. Items never need to be held in memory at once.
+func (s *Store) CreateJobStream(ctx context.Context, format string, fill func(add func(JobItem) error) (json.RawMessage, []string, error)) (Job, error) {
+	j := Job{ID: newID("job_"), Status: JobQueued, SourceFormat: format}
 	ts := now()
 	err := s.tx(ctx, func(tx *sql.Tx) error {
-		if _, err := tx.ExecContext(ctx, `INSERT INTO jobs (id, status, conditions, total, source_format, extra_columns, created_at) VALUES (?, ?, ?, ?, ?, ?, ?)`,
-			j.ID, j.Status, string(conditions), j.Total, format, string(ecJSON), ts); err != nil {
+		// the job row first (invisible to workers until commit), completed after the items
+		if _, err := tx.ExecContext(ctx, `INSERT INTO jobs (id, status, conditions, total, source_format, created_at) VALUES (?, 'queued', '{}', 0, ?, ?)`, j.ID, format, ts); err != nil {
 			return err
 		}
 		stmt, err := tx.PrepareContext(ctx, `INSERT INTO job_items (job_id, seq, item_id, line, source, extra) VALUES (?, ?, ?, ?, ?, ?)`)
@@ -90,26 +88,36 @@ func (s *Store) CreateJob(ctx context.Context, conditions json.RawMessage, forma
 			return err
 		}
 		defer stmt.Close()
-		for i, it := range items {
-			ex, _ := json.Marshal(nonNil(it.Extra))
-			if _, err := stmt.ExecContext(ctx, j.ID, i, it.ItemID, it.Line, string(it.Source), string(ex)); err != nil {
+		n := 0
+		add := func(it JobItem) error {
+			ex := "[]"
+			if len(it.Extra) > 0 {
+				b, _ := json.Marshal(it.Extra)
+				ex = string(b)
+			}
+			if _, err := stmt.ExecContext(ctx, j.ID, n, it.ItemID, it.Line, string(it.Source), ex); err != nil {
 				return err
 			}
+			n++
+			return nil
 		}
-		return nil
+		cond, extra, err := fill(add)
+		if err != nil {
+			return err
+		}
+		if extra == nil {
+			extra = []string{}
+		}
+		ec, _ := json.Marshal(extra)
+		j.Conditions, j.ExtraColumns, j.Total = cond, extra, n
+		_, err = tx.ExecContext(ctx, `UPDATE jobs SET conditions = ?, total = ?, extra_columns = ? WHERE id = ?`, string(cond), n, string(ec), j.ID)
+		return err
 	})
 	if err != nil {
 		return Job{}, fmt.Errorf("create job: %w", err)
 	}
 	j.CreatedAt = parseTime(ts)
 	return j, nil
-}
-
-func nonNil(x []string) []string {
-	if x == nil {
-		return []string{}
-	}
-	return x
 }
 
 // GetJob returns a job or ErrNotFound.

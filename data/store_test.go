@@ -134,7 +134,14 @@ func TestJobsRecordOnceAndCancel(t *testing.T) {
 	ctx := context.Background()
 	s, _ := openTemp(t)
 	items := []JobItem{{ItemID: "a", Source: json.RawMessage(`{"smiles":"C1=CCCC1"}`)}, {ItemID: "b", Source: json.RawMessage(`{"smiles":"C"}`)}}
-	j, err := s.CreateJob(ctx, json.RawMessage(`{}`), "json", nil, items)
+	j, err := s.CreateJobStream(ctx, "json", func(add func(JobItem) error) (json.RawMessage, []string, error) {
+		for _, it := range items {
+			if err := add(it); err != nil {
+				return nil, nil, err
+			}
+		}
+		return json.RawMessage(`{}`), nil, nil
+	})
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -161,6 +168,24 @@ func TestJobsRecordOnceAndCancel(t *testing.T) {
 	got, _ = s.GetJob(ctx, j.ID)
 	if got.Status != JobCanceled {
 		t.Fatalf("a canceled job became %s", got.Status)
+	}
+}
+
+// TestJobStreamRollsBack: an error from the item producer stores nothing.
+func TestJobStreamRollsBack(t *testing.T) {
+	ctx := context.Background()
+	s, _ := openTemp(t)
+	_, err := s.CreateJobStream(ctx, "json", func(add func(JobItem) error) (json.RawMessage, []string, error) {
+		add(JobItem{ItemID: "a", Source: json.RawMessage(`{}`)})
+		return nil, nil, errors.New("bad row")
+	})
+	if err == nil {
+		t.Fatal("no error")
+	}
+	var n int
+	s.DB().QueryRow(`SELECT (SELECT count(*) FROM jobs) + (SELECT count(*) FROM job_items)`).Scan(&n)
+	if n != 0 {
+		t.Fatalf("%d rows left behind", n)
 	}
 }
 

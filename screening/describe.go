@@ -140,6 +140,10 @@ func (s *Structure) pickMain(smiles string) {
 	}
 	s.Main = m.components[best]
 	sort.Ints(s.Main)
+	if len(m.components) == 1 {
+		s.MainSMILES = smiles
+		return
+	}
 	parts := strings.Split(smiles, ".")
 	if smiles != "" && len(parts) == len(m.components) {
 		s.MainSMILES = parts[best]

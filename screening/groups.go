@@ -137,11 +137,7 @@ func (m *Molecule) totalH(a int) int {
 // (indices into m), with the ring bond perception p. The ring olefins themselves are not listed.
 func FunctionalGroups(p *Perceived, comp []int) []string {
 	m := p.Mol
-	in := map[int]bool{}
-	for _, a := range comp {
-		in[a] = true
-	}
-	found := map[string]bool{}
+	found := groupSet{}
 	for _, a := range comp {
 		at := &m.Atoms[a]
 		nb := m.heavyNbrs(a)
@@ -149,11 +145,11 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 		switch at.Z {
 		case 8:
 			if len(nb) == 0 && h == 2 {
-				found[FGWater] = true
+				found.add(FGWater)
 				continue
 			}
 			if at.Charge == -1 && len(nb) == 1 && m.isCarbonyl(nb[0]) {
-				found[FGCarboxylate] = true
+				found.add(FGCarboxylate)
 				continue
 			}
 			if m.countDoubleTo(a, 0) > 0 || at.Charge != 0 {
@@ -163,11 +159,11 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 				c := nb[0]
 				switch {
 				case m.isCarbonyl(c):
-					found[FGCarboxylicAcid] = true
+					found.add(FGCarboxylicAcid)
 				case m.Atoms[c].Aromatic:
-					found[FGPhenol] = true
+					found.add(FGPhenol)
 				case m.Atoms[c].Z == 6:
-					found[FGAlcohol] = true
+					found.add(FGAlcohol)
 				}
 				continue
 			}
@@ -176,7 +172,7 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 				carb1, carb2 := m.isCarbonyl(c1), m.isCarbonyl(c2)
 				switch {
 				case carb1 && carb2:
-					found[FGAnhydride] = true
+					found.add(FGAnhydride)
 				case carb1 || carb2:
 					c := c1
 					if carb2 {
@@ -189,14 +185,14 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 						}
 					}
 					if hasN {
-						found[FGCarbamate] = true
+						found.add(FGCarbamate)
 					} else {
-						found[FGEster] = true
+						found.add(FGEster)
 					}
 				case m.Atoms[c1].Z == 14 || m.Atoms[c2].Z == 14:
-					found[FGSilylEther] = true
+					found.add(FGSilylEther)
 				case m.Atoms[c1].Z == 5 || m.Atoms[c2].Z == 5:
-					found[FGBoronicEster] = true
+					found.add(FGBoronicEster)
 				case m.Atoms[c1].Z == 15 || m.Atoms[c2].Z == 15:
 					// phosphite / phosphate ester oxygens are counted on P
 				default:
@@ -206,16 +202,16 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 							if p.BondRingSize[m.bondBetween(c, d)] == 0 {
 								vinyl = true
 							} else if !m.Atoms[c].Aromatic {
-								found[FGCyclicEnolEther] = true
+								found.add(FGCyclicEnolEther)
 							}
 						}
 					}
 					if vinyl {
-						found[FGVinylEther] = true
+						found.add(FGVinylEther)
 					} else if p.AtomRingSize[a] == 3 {
-						found[FGEpoxide] = true
+						found.add(FGEpoxide)
 					} else {
-						found[FGEther] = true
+						found.add(FGEther)
 					}
 				}
 			}
@@ -242,7 +238,7 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 				}
 				switch {
 				case cS > 0:
-					found[FGThioester] = true
+					found.add(FGThioester)
 				case cN > 0 && cO == 0:
 					// amide unless the N carries a second acyl (imide)
 					imide := false
@@ -261,15 +257,15 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 						}
 					}
 					if imide {
-						found[FGImide] = true
+						found.add(FGImide)
 					} else if cN == 1 {
-						found[FGAmide] = true
+						found.add(FGAmide)
 					}
 				case cO == 0 && cN == 0:
 					if cC >= 2 {
-						found[FGKetone] = true
+						found.add(FGKetone)
 					} else {
-						found[FGAldehyde] = true
+						found.add(FGAldehyde)
 					}
 				}
 			}
@@ -277,44 +273,44 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 				b := &m.Bonds[bi]
 				o := m.Other(bi, a)
 				if b.Order == bondTriple && m.Atoms[o].Z == 7 {
-					found[FGNitrile] = true
+					found.add(FGNitrile)
 				}
 				if b.Order == bondTriple && m.Atoms[o].Z == 6 {
-					found[FGAlkyne] = true
+					found.add(FGAlkyne)
 				}
 				if b.Order == bondDouble && !b.Aromatic && m.Atoms[o].Z == 6 && p.BondRingSize[bi] == 0 && a < o {
 					if m.totalH(a) == 2 || m.totalH(o) == 2 {
-						found[FGTerminalOlefin] = true
+						found.add(FGTerminalOlefin)
 					} else {
-						found[FGAcyclicOlefin] = true
+						found.add(FGAcyclicOlefin)
 					}
 				}
 				if (m.Atoms[o].Z == 9 || m.Atoms[o].Z == 17 || m.Atoms[o].Z == 35 || m.Atoms[o].Z == 53) && b.Order == bondSingle {
-					found[FGHalide] = true
+					found.add(FGHalide)
 				}
 			}
 		case 7:
 			if at.Aromatic {
 				if h > 0 {
-					found[FGAromaticNHetero] = true
+					found.add(FGAromaticNHetero)
 				} else if len(nb) == 2 && at.Charge == 0 {
-					found[FGPyridineN] = true
+					found.add(FGPyridineN)
 				} else if at.Charge == 1 && h > 0 {
-					found[FGAmmonium] = true
+					found.add(FGAmmonium)
 				}
 				continue
 			}
 			if at.Charge == 1 {
 				if m.countDoubleTo(a, 8) > 0 {
-					found[FGNitro] = true
+					found.add(FGNitro)
 				} else if m.countDoubleTo(a, 0) == 0 {
-					found[FGAmmonium] = true
+					found.add(FGAmmonium)
 				}
 				continue
 			}
 			if at.Charge != 0 || m.countDoubleTo(a, 0) > 0 {
 				if m.countDoubleTo(a, 8) > 0 {
-					found[FGNitro] = true
+					found.add(FGNitro)
 				}
 				continue
 			}
@@ -343,7 +339,7 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 				}
 			}
 			if sulfonyl > 0 {
-				found[FGSulfonamide] = true
+				found.add(FGSulfonamide)
 				continue
 			}
 			if acyl > 0 || nN > 0 {
@@ -351,19 +347,19 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 			}
 			switch {
 			case len(nb) == 1 && h == 2:
-				found[FGPrimaryAmine] = true
+				found.add(FGPrimaryAmine)
 			case len(nb) == 2 && h == 1:
 				// flanked by two fully substituted carbons (e.g. 2,2,6,6-tetramethylpiperidine)
 				if len(m.heavyNbrs(nb[0])) == 4 && len(m.heavyNbrs(nb[1])) == 4 {
-					found[FGHinderedAmine] = true
+					found.add(FGHinderedAmine)
 				} else {
-					found[FGSecondaryAmine] = true
+					found.add(FGSecondaryAmine)
 				}
 			case len(nb) == 3:
-				found[FGTertiaryAmine] = true
+				found.add(FGTertiaryAmine)
 			case len(nb) == 0:
 				// ammonia: treat as primary amine for catalyst purposes
-				found[FGPrimaryAmine] = true
+				found.add(FGPrimaryAmine)
 			}
 		case 16:
 			if at.Aromatic {
@@ -379,22 +375,22 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 						}
 					}
 					if !hasN {
-						found[FGSulfone] = true
+						found.add(FGSulfone)
 					}
 				}
 				continue
 			}
 			if len(os) == 1 {
-				found[FGSulfoxide] = true
+				found.add(FGSulfoxide)
 				continue
 			}
 			if at.Charge != 0 {
 				continue
 			}
 			if len(nb) == 1 && h == 1 {
-				found[FGThiol] = true
+				found.add(FGThiol)
 			} else if len(nb) == 2 && !m.isCarbonyl(nb[0]) && !m.isCarbonyl(nb[1]) {
-				found[FGThioether] = true
+				found.add(FGThioether)
 			}
 		case 15:
 			if m.countDoubleTo(a, 0) > 0 {
@@ -411,18 +407,30 @@ func FunctionalGroups(p *Perceived, comp []int) []string {
 			}
 			switch {
 			case boron:
-				found[FGPhosphineBorane] = true
+				found.add(FGPhosphineBorane)
 			case oxy == 3 && len(nb) == 3:
-				found[FGPhosphite] = true
+				found.add(FGPhosphite)
 			case len(nb)+h == 3 && at.Charge == 0:
-				found[FGPhosphine] = true
+				found.add(FGPhosphine)
 			}
 		}
 	}
-	var out []string
-	for g := range found {
-		out = append(out, g)
+	return found.sorted()
+}
+
+// groupSet is a small set of group names (a few per molecule): a slice, not a map.
+type groupSet struct{ names []string }
+
+func (s *groupSet) add(g string) {
+	for _, x := range s.names {
+		if x == g {
+			return
+		}
 	}
-	sort.Strings(out)
-	return out
+	s.names = append(s.names, g)
+}
+
+func (s *groupSet) sorted() []string {
+	sort.Strings(s.names)
+	return s.names
 }

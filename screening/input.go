@@ -40,9 +40,11 @@ func (e InputError) Error() string { return fmt.Sprintf("line %d: %s", e.Line, e
 // Input is a parsed file.
 type Input struct {
 	Format       string
-	Items        []InputItem
+	Items        []InputItem // empty when items were handed to an emit function
+	Count        int         // items read
 	ExtraColumns []string
 	Errors       []InputError
+	emit         func(InputItem) error
 }
 
 // MaxInputLine bounds one line of an input file.
@@ -71,12 +73,20 @@ func DetectFormat(head []byte) string {
 // field (or CSV column) that holds the id; empty means the molfile name line (SDF) or the column
 // named "id" (CSV). Bad rows are reported in Errors and skipped; err is for unreadable input.
 func ReadInput(r io.Reader, format, idField string, maxItems int) (*Input, error) {
+	in, err := ScanInput(r, format, idField, maxItems, nil)
+	return in, err
+}
+
+// ScanInput reads an input like ReadInput but hands each item to emit as soon as it is read
+// (emit == nil collects them in Input.Items), so that a large file need not be held as items.
+// An error from emit stops the scan and is returned.
+func ScanInput(r io.Reader, format, idField string, maxItems int, emit func(InputItem) error) (*Input, error) {
 	br := bufio.NewReaderSize(r, 64<<10)
 	if format == "" {
 		head, _ := br.Peek(8 << 10)
 		format = DetectFormat(head)
 	}
-	in := &Input{Format: format}
+	in := &Input{Format: format, emit: emit}
 	var err error
 	switch format {
 	case FormatSMILES:
@@ -89,6 +99,19 @@ func ReadInput(r io.Reader, format, idField string, maxItems int) (*Input, error
 		return nil, fieldErr("format", "unknown input format %q (smiles, csv or sdf)", format)
 	}
 	return in, err
+}
+
+// add hands an item on (or keeps it) and enforces the item limit.
+func (in *Input) add(it InputItem, max int) error {
+	if max > 0 && in.Count >= max {
+		return tooMany(max)
+	}
+	in.Count++
+	if in.emit != nil {
+		return in.emit(it)
+	}
+	in.Items = append(in.Items, it)
+	return nil
 }
 
 var errTooMany = errors.New("too many items")
@@ -112,10 +135,9 @@ func readSMILESLines(r *bufio.Reader, in *Input, max int) error {
 		if len(f) > 1 {
 			id = strings.Join(f[1:], " ")
 		}
-		if max > 0 && len(in.Items) >= max {
-			return tooMany(max)
+		if err := in.add(InputItem{ID: id, SMILES: f[0], Line: line}, max); err != nil {
+			return err
 		}
-		in.Items = append(in.Items, InputItem{ID: id, SMILES: f[0], Line: line})
 	}
 	if err := sc.Err(); err != nil {
 		return fmt.Errorf("line %d: %w", line+1, err)
@@ -201,10 +223,9 @@ func readCSVInput(r *bufio.Reader, in *Input, idField string, max int) error {
 				extra[k] = rec[j]
 			}
 		}
-		if max > 0 && len(in.Items) >= max {
-			return tooMany(max)
+		if err := in.add(InputItem{ID: id, SMILES: strings.TrimSpace(rec[smiCol]), Line: line, Extra: extra}, max); err != nil {
+			return err
 		}
-		in.Items = append(in.Items, InputItem{ID: id, SMILES: strings.TrimSpace(rec[smiCol]), Line: line, Extra: extra})
 	}
 	return nil
 }
@@ -227,7 +248,7 @@ func readSDF(r *bufio.Reader, in *Input, idField string, max int) error {
 				break
 			}
 		}
-		num := len(in.Items) + len(in.Errors) + 1
+		num := in.Count + len(in.Errors) + 1
 		if end < 0 {
 			in.Errors = append(in.Errors, InputError{Line: start, ID: strconv.Itoa(num), Msg: "record has no M  END line"})
 			return nil
@@ -270,11 +291,7 @@ func readSDF(r *bufio.Reader, in *Input, idField string, max int) error {
 			in.Errors = append(in.Errors, InputError{Line: start, ID: id, Msg: err.Error()})
 			return nil
 		}
-		if max > 0 && len(in.Items) >= max {
-			return tooMany(max)
-		}
-		in.Items = append(in.Items, InputItem{ID: id, Molfile: molfile, Line: start})
-		return nil
+		return in.add(InputItem{ID: id, Molfile: molfile, Line: start}, max)
 	}
 	for sc.Scan() {
 		line++
