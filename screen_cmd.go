@@ -77,7 +77,10 @@ func openInput(cmd *cobra.Command, name string) (io.ReadCloser, error) {
 
 func screenCmd() *cobra.Command {
 	var cf conditionFlags
-	var format, inFormat, idField, verdicts string
+	var format, inFormat, idField, verdicts, compatible string
+	var minCeilingC float64
+	var cmpTemp, cmpConc float64
+	var cmpCatalyst string
 	cmd := &cobra.Command{
 		Use:   "screen [flags] FILE|-",
 		Short: "Screen a file of monomers offline and print them ranked",
@@ -104,6 +107,33 @@ func screenCmd() *cobra.Command {
 			if err != nil {
 				return err
 			}
+			filter := screening.ResultFilter{Verdicts: keep}
+			if compatible != "" {
+				if filter.Compatible, err = screening.ParseCatalystClass(compatible); err != nil {
+					return fmt.Errorf("--compatible-with: %w", err)
+				}
+			}
+			if cmd.Flags().Changed("min-ceiling-c") {
+				k := minCeilingC + screening.ZeroCelsiusK
+				filter.MinCeilingK = &k
+			}
+			compare := cmd.Flags().Changed("compare-temp-c") || cmd.Flags().Changed("compare-conc-mol-l") || cmd.Flags().Changed("compare-catalyst")
+			var condB screening.Conditions
+			if compare {
+				b := cf
+				if cmd.Flags().Changed("compare-temp-c") {
+					b.tempC = cmpTemp
+				}
+				if cmd.Flags().Changed("compare-conc-mol-l") {
+					b.concMolL = cmpConc
+				}
+				if cmd.Flags().Changed("compare-catalyst") {
+					b.catalyst = cmpCatalyst
+				}
+				if condB, err = b.conditions(); err != nil {
+					return fmt.Errorf("comparison conditions: %w", err)
+				}
+			}
 			f, err := openInput(cmd, args[0])
 			if err != nil {
 				return err
@@ -124,7 +154,12 @@ func screenCmd() *cobra.Command {
 			}
 			rs := screenAll(in.Items, cond, bar)
 			rankAll(rs)
-			return writeRanked(out, format, rs, in.ExtraColumns, keep)
+			if compare {
+				rb := screenAll(in.Items, condB, nil)
+				rankAll(rb)
+				return writeCompared(out, format, rs, rb, cond, condB)
+			}
+			return writeRanked(out, format, rs, in.ExtraColumns, filter)
 		},
 	}
 	cf.register(cmd)
@@ -133,6 +168,11 @@ func screenCmd() *cobra.Command {
 	fl.StringVar(&inFormat, "input-format", "", "input: smiles, csv or sdf (default: detected)")
 	fl.StringVar(&idField, "id-field", "", "SDF data field (or CSV column) that holds the id")
 	fl.StringVar(&verdicts, "verdict", "", "comma-separated verdicts to keep (e.g. polymerizes,equilibrium_limited)")
+	fl.StringVar(&compatible, "compatible-with", "", "keep monomers this catalyst class tolerates (tolerated or conditional)")
+	fl.Float64Var(&minCeilingC, "min-ceiling-c", 0, "keep monomers whose ceiling temperature is at least this, °C (the top of your working window)")
+	fl.Float64Var(&cmpTemp, "compare-temp-c", 0, "also screen at this temperature (°C) and print both side by side")
+	fl.Float64Var(&cmpConc, "compare-conc-mol-l", 0, "also screen at this concentration (mol/L) and print both side by side")
+	fl.StringVar(&cmpCatalyst, "compare-catalyst", "", "also screen with this catalyst class and print both side by side")
 	return cmd
 }
 
@@ -208,8 +248,8 @@ func rankAll(rs []ranked) {
 	})
 }
 
-func writeRanked(out io.Writer, format string, rs []ranked, extraCols []string, keep map[string]bool) error {
-	skip := func(r ranked) bool { return len(keep) > 0 && (r.res == nil || !keep[r.res.Verdict]) }
+func writeRanked(out io.Writer, format string, rs []ranked, extraCols []string, f screening.ResultFilter) error {
+	skip := func(r ranked) bool { return f.Active() && (r.res == nil || !f.Keeps(r.res)) }
 	switch format {
 	case "csv":
 		w := csv.NewWriter(out)
@@ -274,6 +314,70 @@ func writeRanked(out io.Writer, format string, rs []ranked, extraCols []string, 
 				x = fmt.Sprintf("%.3f", t.EqConversion)
 			}
 			fmt.Fprintf(tw, "%d\t%s\t%s\t%.3f\t%s\t%s\t%s\t%s\n", i+1, r.item.ID, r.res.Verdict, r.res.Score, dh, tc, x, screening.MainReasons(r.res))
+		}
+		return tw.Flush()
+	}
+}
+
+// writeCompared prints one list under two condition sets side by side, in the order of set A.
+func writeCompared(out io.Writer, format string, a, b []ranked, ca, cb screening.Conditions) error {
+	rankB := make(map[int]int, len(b)) // input line -> rank under B
+	resB := make(map[int]*ranked, len(b))
+	for i := range b {
+		rankB[b[i].item.Line] = i + 1
+		resB[b[i].item.Line] = &b[i]
+	}
+	cell := func(r *ranked) (verdict, score, conv, tc string) {
+		if r == nil || r.res == nil {
+			return "error", "", "", ""
+		}
+		verdict, score = r.res.Verdict, fmt.Sprintf("%.4f", r.res.Score)
+		if t := r.res.Thermo; t != nil {
+			conv = fmt.Sprintf("%.4f", t.EqConversion)
+			if t.CeilingTempK != nil {
+				tc = fmt.Sprintf("%.1f", *t.CeilingTempK)
+			}
+		}
+		return
+	}
+	label := func(c screening.Conditions) string {
+		return fmt.Sprintf("%g °C, %g mol/L, %s", c.Temp.Celsius(), float64(c.Conc), c.Catalyst)
+	}
+	switch format {
+	case "jsonl":
+		enc := json.NewEncoder(out)
+		for i := range a {
+			rb := resB[a[i].item.Line]
+			row := map[string]any{"id": a[i].item.ID, "a": map[string]any{"conditions": label(ca), "rank": i + 1, "result": a[i].res}, "b": map[string]any{"conditions": label(cb), "rank": rankB[a[i].item.Line], "result": rb.res}}
+			if err := enc.Encode(row); err != nil {
+				return err
+			}
+		}
+		return nil
+	case "csv":
+		w := csv.NewWriter(out)
+		w.Write([]string{"id", "rank_a", "verdict_a", "score_a", "eq_conversion_a", "ceiling_temp_k_a", "rank_b", "verdict_b", "score_b", "eq_conversion_b", "ceiling_temp_k_b", "verdict_changes"})
+		for i := range a {
+			rb := resB[a[i].item.Line]
+			va, sa, xa, ta := cell(&a[i])
+			vb, sb, xb, tb := cell(rb)
+			w.Write([]string{a[i].item.ID, fmt.Sprint(i + 1), va, sa, xa, ta, fmt.Sprint(rankB[a[i].item.Line]), vb, sb, xb, tb, fmt.Sprint(va != vb)})
+		}
+		w.Flush()
+		return w.Error()
+	default:
+		tw := tabwriter.NewWriter(out, 2, 4, 2, ' ', 0)
+		fmt.Fprintf(tw, "ID\tA: %s\t\t\tB: %s\t\t\tCHANGE\n", label(ca), label(cb))
+		fmt.Fprintln(tw, "\tRANK\tVERDICT\tX_eq\tRANK\tVERDICT\tX_eq\t")
+		for i := range a {
+			rb := resB[a[i].item.Line]
+			va, _, xa, _ := cell(&a[i])
+			vb, _, xb, _ := cell(rb)
+			ch := ""
+			if va != vb {
+				ch = "verdict changes"
+			}
+			fmt.Fprintf(tw, "%s\t%d\t%s\t%s\t%d\t%s\t%s\t%s\n", a[i].item.ID, i+1, va, xa, rankB[a[i].item.Line], vb, xb, ch)
 		}
 		return tw.Flush()
 	}

@@ -412,3 +412,49 @@ func TestNeverPanicsOnInput(t *testing.T) {
 		}
 	}
 }
+
+func TestCompareAndFilters(t *testing.T) {
+	ts, _ := newTestServer(t, Config{})
+	body := `{"items":[{"id":"cp","smiles":"C1=CCCC1"},{"id":"nb","smiles":"C1=CC2CCC1C2"},{"id":"acid","smiles":"OC(=O)C1CC2C=CC1C2"}],
+		"conditions_a":{"temperature_c":25,"monomer_conc_mol_l":2},"conditions_b":{"temperature_c":60,"monomer_conc_mol_l":2}}`
+	r := do(t, ts, "POST", "/v1/screen/compare", body)
+	var out CompareResponse
+	r.json(t, &out)
+	if r.status != 200 || len(out.Rows) != 3 {
+		t.Fatalf("%d %s", r.status, r.body)
+	}
+	for _, row := range out.Rows {
+		// cyclopentene: T_c 327.05 K at 2 mol/L for the Tuba et al. 2013 pair (romp_thermo T021),
+		// so favoured at 25 °C and not at 60 °C
+		if row.ID == "cp" && (row.A.Verdict != "equilibrium_limited" || row.B.Verdict != "unfavorable" || !row.VerdictChange) {
+			t.Errorf("cyclopentene 25 vs 60 °C: %+v", row)
+		}
+	}
+	if r := do(t, ts, "POST", "/v1/screen/compare", `{"items":[{"smiles":"C"}],"conditions_a":{"catalyst":"x"}}`); r.status != 422 {
+		t.Errorf("bad conditions_a: %d", r.status)
+	}
+	// job results filtered by catalyst compatibility and by ceiling temperature
+	jr := do(t, ts, "POST", "/v1/jobs", `{"items":[{"id":"cp","smiles":"C1=CCCC1"},{"id":"nb","smiles":"C1=CC2CCC1C2"},{"id":"acid","smiles":"OC(=O)C1CC2C=CC1C2"}],"conditions":{"monomer_conc_mol_l":2}}`)
+	var jc JobCreated
+	jr.json(t, &jc)
+	waitJob(t, ts, jc.ID)
+	var res JobResults
+	do(t, ts, "GET", "/v1/jobs/"+jc.ID+"/results?compatible_with=mo-w-imido", "").json(t, &res)
+	for _, row := range res.Results {
+		if row.ID == "acid" {
+			t.Errorf("carboxylic acid kept for mo-w-imido (protic groups poison Mo/W, romp_facts a.3 rule 1)")
+		}
+	}
+	if len(res.Results) != 2 {
+		t.Errorf("compatible_with: %d rows", len(res.Results))
+	}
+	do(t, ts, "GET", "/v1/jobs/"+jc.ID+"/results?min_ceiling_c=60", "").json(t, &res)
+	for _, row := range res.Results {
+		if row.ID == "cp" {
+			t.Errorf("cyclopentene kept with min_ceiling_c=60 (T_c 327 K at 2 mol/L)")
+		}
+	}
+	if r := do(t, ts, "GET", "/v1/jobs/"+jc.ID+"/results?compatible_with=nope", ""); r.status != 422 {
+		t.Errorf("bad class: %d", r.status)
+	}
+}

@@ -591,10 +591,43 @@ func resultRow(rank int, it data.JobItem, cols []string) JobResultRow {
 	return row
 }
 
+// resultFilterFrom reads the ranking filters of a results request.
+func resultFilterFrom(c *gin.Context, verdicts map[string]bool) (screening.ResultFilter, error) {
+	f := screening.ResultFilter{Verdicts: verdicts}
+	if v := c.Query("compatible_with"); v != "" {
+		cat, err := screening.ParseCatalystClass(v)
+		if err != nil {
+			return f, reField(err, "compatible_with")
+		}
+		f.Compatible = cat
+	}
+	if v := c.Query("min_ceiling_c"); v != "" {
+		x, err := strconv.ParseFloat(v, 64)
+		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
+			return f, &screening.FieldError{Field: "min_ceiling_c", Msg: "must be a finite number (°C)"}
+		}
+		k := x + screening.ZeroCelsiusK
+		f.MinCeilingK = &k
+	}
+	return f, nil
+}
+
+// keepsItem applies a filter to a stored job row (only screened rows can pass).
+func keepsItem(f screening.ResultFilter, it data.JobItem) bool {
+	if it.State != "done" {
+		return false
+	}
+	var r screening.Result
+	if err := json.Unmarshal(it.Result, &r); err != nil {
+		return false
+	}
+	return f.Keeps(&r)
+}
+
 // jobResults godoc
 //
 //	@Summary		Ranked results of a job
-//	@Description	Ranked by score, ties by ΔG_p; failed items (with their problem) and items still pending come after every screened item. format=json is paginated (offset, limit); jsonl and csv stream every submitted item. Optional verdict=v1,v2 keeps only those verdicts.
+//	@Description	Ranked by score, ties by ΔG_p; failed items (with their problem) and items still pending come after every screened item. format=json is paginated (offset, limit); jsonl and csv stream every submitted item. Optional filters: verdict=v1,v2; compatible_with=CLASS; min_ceiling_c=T.
 //	@Tags			jobs
 //	@Produce		json
 //	@Produce		text/csv
@@ -602,7 +635,9 @@ func resultRow(rank int, it data.JobItem, cols []string) JobResultRow {
 //	@Param			format	query		string	false	"json (default), jsonl or csv"
 //	@Param			offset	query		int		false	"json only"
 //	@Param			limit	query		int		false	"json only (1-5000, default 500)"
-//	@Param			verdict	query		string	false	"comma-separated verdicts to keep"
+//	@Param			verdict			query		string	false	"comma-separated verdicts to keep"
+//	@Param			compatible_with	query		string	false	"keep monomers a catalyst class tolerates (tolerated or conditional)"
+//	@Param			min_ceiling_c	query		number	false	"keep monomers whose ceiling temperature is at least this (°C): still favoured at the top of the working window"
 //	@Success		200		{object}	JobResults
 //	@Failure		404		{object}	Problem
 //	@Failure		422		{object}	Problem
@@ -625,17 +660,12 @@ func (s *Server) jobResults(c *gin.Context) {
 			keep[x] = true
 		}
 	}
-	verdictOf := func(it data.JobItem) string {
-		if it.State != "done" {
-			return ""
-		}
-		var r struct {
-			Verdict string `json:"verdict"`
-		}
-		json.Unmarshal(it.Result, &r)
-		return r.Verdict
+	f, err := resultFilterFrom(c, keep)
+	if err != nil {
+		fail(c, err)
+		return
 	}
-	filtered := func(it data.JobItem) bool { return len(keep) > 0 && !keep[verdictOf(it)] }
+	filtered := func(it data.JobItem) bool { return f.Active() && !keepsItem(f, it) }
 	switch format := c.DefaultQuery("format", "json"); format {
 	case "json":
 		limit, err := intQuery(c, "limit", 500, 1, 5000)
@@ -649,7 +679,7 @@ func (s *Server) jobResults(c *gin.Context) {
 			return
 		}
 		out := JobResults{Job: jobStatus(j), Results: []JobResultRow{}, Offset: offset, Limit: limit}
-		if len(keep) == 0 {
+		if !f.Active() {
 			err = s.store.RankedItems(ctx, j.ID, offset, limit, func(rank int, it data.JobItem) error {
 				out.Results = append(out.Results, resultRow(rank, it, j.ExtraColumns))
 				return nil

@@ -237,6 +237,7 @@ type BatchResult struct {
 	Rank int    `json:"rank"`
 	*screening.Result
 	Error *Problem `json:"error,omitempty"`
+	seq   int      // submission position
 }
 
 // BatchResponse lists results by rank (score descending, ties by ΔG_p), failed items last.
@@ -247,10 +248,6 @@ type BatchResponse struct {
 // rankResults sorts by score descending, then ΔG_p ascending, then submission order; failed
 // items go last in submission order; ranks are 1-based positions.
 func rankResults(rs []BatchResult) {
-	idx := make(map[*BatchResult]int, len(rs))
-	for i := range rs {
-		idx[&rs[i]] = i
-	}
 	order := make([]int, len(rs))
 	for i := range order {
 		order[i] = i
@@ -330,6 +327,7 @@ func (s *Server) screenItems(ctx context.Context, items []BatchItem, cond screen
 		}
 		r, err := s.screenSource(ctx, it.MonomerSource, cond)
 		out[i] = itemResult(id, i, r, err)
+		out[i].seq = i
 	}
 	return out
 }

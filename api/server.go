@@ -108,6 +108,7 @@ func (s *Server) Handler() http.Handler {
 	v1 := r.Group("/v1", s.auth)
 	v1.POST("/screen", s.limitBody, s.screen)
 	v1.POST("/screen/batch", s.limitBody, s.batch)
+	v1.POST("/screen/compare", s.limitBody, s.compare)
 	v1.POST("/sweep", s.limitBody, s.sweep)
 	v1.POST("/plan", s.limitBody, s.plan)
 	v1.GET("/tables/ring-systems", s.ringTable)

@@ -67,3 +67,39 @@ func CSVRow(rank int, id string, line int, r *Result, errMsg string, extra []str
 		rs, r.Descriptors.RingSystem, MainReasons(r), errMsg)
 	return append(row, extra...)
 }
+
+// ResultFilter selects ranked results: verdicts, a catalyst class the monomer is compatible with
+// (tolerated or conditional), and a least ceiling temperature (the top of a working temperature
+// window: only monomers still favoured there pass).
+type ResultFilter struct {
+	Verdicts    map[string]bool
+	Compatible  CatalystClass
+	MinCeilingK *float64
+}
+
+// Active reports whether the filter removes anything.
+func (f ResultFilter) Active() bool {
+	return len(f.Verdicts) > 0 || f.Compatible != "" || f.MinCeilingK != nil
+}
+
+// Keeps reports whether a result passes the filter.
+func (f ResultFilter) Keeps(r *Result) bool {
+	if len(f.Verdicts) > 0 && !f.Verdicts[r.Verdict] {
+		return false
+	}
+	if f.Compatible != "" {
+		ok := false
+		for _, cp := range r.CatalystCompatibility {
+			if cp.Catalyst == f.Compatible && (cp.Status == TolTolerated || cp.Status == TolConditional) {
+				ok = true
+			}
+		}
+		if !ok {
+			return false
+		}
+	}
+	if f.MinCeilingK != nil && (r.Thermo == nil || r.Thermo.CeilingTempK == nil || *r.Thermo.CeilingTempK < *f.MinCeilingK) {
+		return false
+	}
+	return true
+}
