@@ -18,14 +18,14 @@ type CompareRequest struct {
 
 // CompareSide is one item's result under one condition set, with its rank in that set.
 type CompareSide struct {
-	Rank          int      `json:"rank"`
-	Verdict       string   `json:"verdict,omitempty"`
-	Score         float64  `json:"score"`
-	DGkJmol       *float64 `json:"dg_kj_mol"`
-	EqConversion  *float64 `json:"eq_conversion"`
-	CeilingTempK  *float64 `json:"ceiling_temp_k"`
-	MainReasons   string   `json:"main_reasons,omitempty"`
-	Error         *Problem `json:"error,omitempty"`
+	Rank         int      `json:"rank"`
+	Verdict      string   `json:"verdict,omitempty"`
+	Score        float64  `json:"score"`
+	DGkJmol      *float64 `json:"dg_kj_mol"`
+	EqConversion *float64 `json:"eq_conversion"`
+	CeilingTempK *float64 `json:"ceiling_temp_k"`
+	MainReasons  string   `json:"main_reasons,omitempty"`
+	Error        *Problem `json:"error,omitempty"`
 }
 
 // CompareRow is one item under both condition sets.

@@ -128,7 +128,7 @@ func TestConditionConstructors(t *testing.T) {
 	if tk, err := TempFromCelsius(25); err != nil || math.Abs(float64(tk)-298.15) > 1e-12 {
 		t.Errorf("25 °C = %v K (%v)", tk, err)
 	}
-	if _, err := ParseCatalystClass("grubbs"); err == nil {
+	if _, err := ParseCatalystClass("platinum-oxo"); err == nil {
 		t.Error("unknown catalyst accepted")
 	}
 }
