@@ -159,7 +159,6 @@ func readCSVInput(r *bufio.Reader, in *Input, idField string, max int) error {
 		if err == io.EOF {
 			break
 		}
-		line, _ := cr.FieldPos(0)
 		if err != nil {
 			var pe *csv.ParseError
 			if errors.As(err, &pe) {
@@ -167,9 +166,11 @@ func readCSVInput(r *bufio.Reader, in *Input, idField string, max int) error {
 				if errors.Is(pe.Err, csv.ErrQuote) || errors.Is(pe.Err, csv.ErrBareQuote) {
 					continue
 				}
+				return fmt.Errorf("line %d: %w", pe.Line, err)
 			}
-			return fmt.Errorf("line %d: %w", line, err)
+			return err
 		}
+		line, _ := cr.FieldPos(0)
 		row++
 		if row == 1 {
 			for j, h := range rec {
