@@ -458,3 +458,27 @@ func TestCompareAndFilters(t *testing.T) {
 		t.Errorf("bad class: %d", r.status)
 	}
 }
+
+// TestIdempotentPOSTs: a retried POST /v1/monomers with the same Idempotency-Key and body
+// returns the first response and stores one monomer; another body with that key is refused.
+func TestIdempotentPOSTs(t *testing.T) {
+	ts, _ := newTestServer(t, Config{})
+	body := `{"name":"MEM-06 glycol ester","smiles":"COCCOCCOC(=O)C1CC2C=CC1C2"}`
+	r1 := do(t, ts, "POST", "/v1/monomers", body, "Idempotency-Key", "nb-6")
+	r2 := do(t, ts, "POST", "/v1/monomers", body, "Idempotency-Key", "nb-6")
+	if r1.status != 201 || r2.status != 201 || string(r1.body) != string(r2.body) || r2.header.Get("Idempotent-Replayed") != "true" {
+		t.Fatalf("replay: %d %d %s / %s", r1.status, r2.status, r1.body, r2.body)
+	}
+	var list MonomerList
+	do(t, ts, "GET", "/v1/monomers", "").json(t, &list)
+	if list.Total != 1 {
+		t.Errorf("%d monomers stored", list.Total)
+	}
+	if r := do(t, ts, "POST", "/v1/monomers", `{"name":"other","smiles":"C1=CCCC1"}`, "Idempotency-Key", "nb-6"); r.status != 422 {
+		t.Errorf("reused key: %d", r.status)
+	}
+	// a failed request is not stored: after fixing nothing, the same key still fails the same way
+	if r := do(t, ts, "POST", "/v1/screen", `{"smiles":"C1CC("}`, "Idempotency-Key", "bad-1"); r.status != 422 {
+		t.Errorf("bad SMILES with a key: %d", r.status)
+	}
+}

@@ -1,9 +1,13 @@
 package api
 
 import (
+	"bytes"
 	"crypto/rand"
+	"crypto/sha256"
 	"encoding/hex"
+	"errors"
 	"fmt"
+	"io"
 	"net/http"
 	"regexp"
 	"strconv"
@@ -14,6 +18,8 @@ import (
 	"github.com/prometheus/client_golang/prometheus"
 	"github.com/prometheus/client_golang/prometheus/promhttp"
 	"golang.org/x/time/rate"
+
+	"ringsieve/data"
 )
 
 const ctxRequestID = "request_id"
@@ -186,4 +192,71 @@ func (s *Server) countRequests(c *gin.Context) {
 func (s *Server) metricsHandler() gin.HandlerFunc {
 	h := promhttp.HandlerFor(s.metrics.reg, promhttp.HandlerOpts{})
 	return gin.WrapH(h)
+}
+
+// captureWriter records a response body so that it can be replayed for an Idempotency-Key.
+type captureWriter struct {
+	gin.ResponseWriter
+	buf bytes.Buffer
+}
+
+func (w *captureWriter) Write(b []byte) (int, error) {
+	w.buf.Write(b)
+	return w.ResponseWriter.Write(b)
+}
+
+// idempotent makes a POST with an Idempotency-Key safe to retry: the first successful (2xx)
+// response is stored with a hash of the body, and a repeat with the same key and body gets it
+// back (header Idempotent-Replayed: true) without running the handler again; the same key with
+// another body is a 422. Failed requests are not stored, so they can be retried as they are.
+// (POST /v1/jobs does the same in its handler, hashing uploads by content.)
+func (s *Server) idempotent(c *gin.Context) {
+	key := c.GetHeader("Idempotency-Key")
+	if key == "" {
+		c.Next()
+		return
+	}
+	if len(key) > 200 {
+		fail(c, badRequest(errMalformed, "Idempotency-Key", "Idempotency-Key longer than 200 characters"))
+		return
+	}
+	body, err := io.ReadAll(c.Request.Body)
+	if err != nil {
+		var mbe *http.MaxBytesError
+		if errors.As(err, &mbe) {
+			fail(c, badRequest(errTooLarge, "", fmt.Sprintf("request body exceeds %d bytes", mbe.Limit)))
+			return
+		}
+		fail(c, badRequest(errMalformed, "", "could not read the request body"))
+		return
+	}
+	sum := sha256.Sum256(body)
+	hash := hex.EncodeToString(sum[:])
+	route := c.Request.Method + " " + c.FullPath()
+	s.idemMu.Lock()
+	defer s.idemMu.Unlock()
+	status, resp, err := s.store.Idempotent(c.Request.Context(), route, key, hash)
+	switch {
+	case err == nil:
+		c.Header("Idempotent-Replayed", "true")
+		c.Data(status, "application/json", resp)
+		c.Abort()
+		return
+	case errors.Is(err, data.ErrIdempotencyMismatch):
+		writeProblem(c, Problem{Type: problemBase + "idempotency-key-reused", Title: "Idempotency key reused", Status: http.StatusUnprocessableEntity,
+			Detail: "this Idempotency-Key was used with a different request body", Instance: c.Request.URL.Path, RequestID: c.GetString(ctxRequestID)})
+		return
+	case !errors.Is(err, data.ErrNotFound):
+		fail(c, err)
+		return
+	}
+	c.Request.Body = io.NopCloser(bytes.NewReader(body))
+	cw := &captureWriter{ResponseWriter: c.Writer}
+	c.Writer = cw
+	c.Next()
+	if st := cw.Status(); st >= 200 && st < 300 {
+		if err := s.store.SaveIdempotent(c.Request.Context(), route, key, hash, st, cw.buf.Bytes()); err != nil {
+			s.log.Error("save idempotency record", "err", err)
+		}
+	}
 }

@@ -252,3 +252,35 @@ func TestExoEndoAgainstRDKitGeometry(t *testing.T) {
 		t.Fatalf("only %d reference structures", n)
 	}
 }
+
+// TestFunctionalGroupInventory: one norbornene-type monomer per group of the inventory the
+// catalyst rules use (group definitions are textbook organic chemistry: common practice).
+func TestFunctionalGroupInventory(t *testing.T) {
+	nb := func(sub string) string { return sub + "C1CC2C=CC1C2" }
+	cases := []struct{ smiles, group string }{
+		{nb("OC(=O)"), FGCarboxylicAcid}, {nb("OC"), FGAlcohol}, {nb("Oc1ccc(cc1)"), FGPhenol}, {nb("O=C"), FGAldehyde},
+		{nb("CC(=O)"), FGKetone}, {nb("COC(=O)"), FGEster}, {nb("CN(C)C(=O)"), FGAmide}, {"O=C1NC(=O)C2C3C=CC(C3)C12", FGImide},
+		{"O=C1OC(=O)C2C3C=CC(C3)C12", FGAnhydride}, {nb("N#C"), FGNitrile}, {nb("NC"), FGPrimaryAmine}, {nb("CNC"), FGSecondaryAmine},
+		{nb("CN(C)C"), FGTertiaryAmine}, {nb("[NH3+]C") + ".[Cl-]", FGAmmonium}, {nb("c1ccncc1"), FGPyridineN}, {nb("SC"), FGThiol},
+		{nb("CSC"), FGThioether}, {nb("CC(=O)SC"), FGThioester}, {nb("c1ccccc1P(c1ccccc1)C"), FGPhosphine},
+		{nb("[BH3-][P+](c1ccccc1)(c1ccccc1)C"), FGPhosphineBorane}, {nb("CS(=O)(=O)C"), FGSulfone}, {nb("NS(=O)(=O)C"), FGSulfonamide},
+		{nb("BrC"), FGHalide}, {nb("C[Si](C)(C)OC"), FGSilylEther}, {nb("C=COC"), FGVinylEther}, {nb("C=CC"), FGTerminalOlefin},
+		{nb("C#CC"), FGAlkyne}, {nb("CC(C)(C)OC(=O)NC"), FGCarbamate}, {nb("CS(=O)C"), FGSulfoxide}, {nb("COC"), FGEther},
+	}
+	for _, c := range cases {
+		s, err := Describe(c.smiles)
+		if err != nil {
+			t.Errorf("%s: %v", c.smiles, err)
+			continue
+		}
+		found := false
+		for _, g := range s.Groups {
+			if g == c.group {
+				found = true
+			}
+		}
+		if !found {
+			t.Errorf("%s: groups %v lack %s", c.smiles, s.Groups, c.group)
+		}
+	}
+}

@@ -122,15 +122,16 @@ func ParseMolfile(text string) (*Molecule, string, error) {
 		}
 		m.Bonds = append(m.Bonds, b)
 	}
-	// property block: M  CHG and M  ISO replace the atom-block values
+	// property block: M  CHG and M  ISO replace the atom-block values; M  RAD marks radicals
 	chgSeen := false
+	radical := make([]int, na) // unpaired-electron count removed from the hydrogens
 	for k := 4 + na + nb; k < len(lines); k++ {
 		ln := lines[k]
 		if strings.HasPrefix(ln, "M  END") {
 			break
 		}
-		isCHG, isISO := strings.HasPrefix(ln, "M  CHG"), strings.HasPrefix(ln, "M  ISO")
-		if !isCHG && !isISO {
+		isCHG, isISO, isRAD := strings.HasPrefix(ln, "M  CHG"), strings.HasPrefix(ln, "M  ISO"), strings.HasPrefix(ln, "M  RAD")
+		if !isCHG && !isISO && !isRAD {
 			continue
 		}
 		f := strings.Fields(ln[6:])
@@ -153,7 +154,17 @@ func ParseMolfile(text string) (*Molecule, string, error) {
 			if e1 != nil || e2 != nil || ai < 1 || ai > na {
 				return nil, name, mfErr(k+1, "property entry %d names no atom", j+1)
 			}
-			if isCHG {
+			if isRAD {
+				// 1 singlet and 3 triplet: two electrons; 2 doublet: one
+				switch v {
+				case 1, 3:
+					radical[ai-1] = 2
+				case 2:
+					radical[ai-1] = 1
+				default:
+					return nil, name, mfErr(k+1, "radical code %d is not defined", v)
+				}
+			} else if isCHG {
 				if v < -15 || v > 15 {
 					return nil, name, mfErr(k+1, "charge out of range")
 				}
@@ -175,7 +186,11 @@ func ParseMolfile(text string) (*Molecule, string, error) {
 		}
 	}
 	if err := m.kekulize(); err != nil {
-		return nil, name, mfErr(5, "aromatic bonds cannot be kekulized")
+		// Aromatic bond types leave a two-connected aromatic nitrogen ambiguous (pyridine- or
+		// pyrrole-type). Retry with such nitrogens, one more at a time, read as N–H.
+		if !m.kekulizeWithPyrroleN() {
+			return nil, name, mfErr(5, "aromatic bonds cannot be kekulized")
+		}
 	}
 	if err := m.assignHydrogens(); err != nil {
 		return nil, name, err
@@ -184,6 +199,13 @@ func ParseMolfile(text string) (*Molecule, string, error) {
 		a := &m.Atoms[i]
 		if a.Bracket && a.Charge != 0 {
 			a.HCount = chargedHydrogens(a.Z, a.Charge, m.bondOrderSum(i))
+		}
+		if radical[i] > 0 {
+			a.HCount -= radical[i]
+			if a.HCount < 0 {
+				a.HCount = 0
+			}
+			a.Bracket = true
 		}
 	}
 	m.findComponents()
@@ -210,4 +232,30 @@ func chargedHydrogens(z, charge, bonded int) int {
 		return h
 	}
 	return 0
+}
+
+// kekulizeWithPyrroleN retries kekulization reading two-connected neutral aromatic nitrogens as
+// N–H (pyrrole type), adding them one at a time in atom order, at most eight.
+func (m *Molecule) kekulizeWithPyrroleN() bool {
+	var cands []int
+	for i, a := range m.Atoms {
+		if a.written && a.Z == 7 && a.Charge == 0 && !a.Bracket && len(m.adj[i]) == 2 {
+			cands = append(cands, i)
+		}
+	}
+	if len(cands) > 8 {
+		cands = cands[:8]
+	}
+	for _, i := range cands {
+		m.Atoms[i].Bracket, m.Atoms[i].HCount = true, 1
+		for bi := range m.Bonds {
+			if m.Bonds[bi].Aromatic {
+				m.Bonds[bi].Order = bondSingle
+			}
+		}
+		if m.kekulize() == nil {
+			return true
+		}
+	}
+	return false
 }
