@@ -15,23 +15,29 @@ func keysCmd(getenv func(string) string) *cobra.Command {
 		db = v
 	}
 	cmd := &cobra.Command{Use: "keys", Short: "Manage API keys (stored hashed in the database)"}
+	// withStore opens the database for one command and closes it after.
+	withStore := func(cmd *cobra.Command, fn func(*data.Store) error) error {
+		st, err := data.Open(cmd.Context(), db)
+		if err != nil {
+			return err
+		}
+		defer st.Close()
+		return fn(st)
+	}
 	cmd.PersistentFlags().StringVar(&db, "db", db, "SQLite database file (env RINGSIEVE_DB)")
 	create := &cobra.Command{
 		Use:   "create NAME",
 		Short: "Create an API key; the secret is printed once",
 		Args:  cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			st, err := data.Open(cmd.Context(), db)
-			if err != nil {
-				return err
-			}
-			defer st.Close()
-			k, secret, err := st.CreateAPIKey(cmd.Context(), args[0])
-			if err != nil {
-				return err
-			}
-			fmt.Fprintf(cmd.OutOrStdout(), "id:     %s\nname:   %s\nsecret: %s\n(send it as the X-API-Key header; it is not shown again)\n", k.ID, k.Name, secret)
-			return nil
+			return withStore(cmd, func(st *data.Store) error {
+				k, secret, err := st.CreateAPIKey(cmd.Context(), args[0])
+				if err != nil {
+					return err
+				}
+				fmt.Fprintf(cmd.OutOrStdout(), "id:     %s\nname:   %s\nsecret: %s\n(send it as the X-API-Key header; it is not shown again)\n", k.ID, k.Name, secret)
+				return nil
+			})
 		},
 	}
 	list := &cobra.Command{
@@ -39,18 +45,15 @@ func keysCmd(getenv func(string) string) *cobra.Command {
 		Short: "List API keys (never their secrets)",
 		Args:  cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, _ []string) error {
-			st, err := data.Open(cmd.Context(), db)
-			if err != nil {
-				return err
-			}
-			defer st.Close()
-			ks, err := st.ListAPIKeys(cmd.Context())
-			if err != nil {
-				return err
-			}
-			enc := json.NewEncoder(cmd.OutOrStdout())
-			enc.SetIndent("", "  ")
-			return enc.Encode(ks)
+			return withStore(cmd, func(st *data.Store) error {
+				ks, err := st.ListAPIKeys(cmd.Context())
+				if err != nil {
+					return err
+				}
+				enc := json.NewEncoder(cmd.OutOrStdout())
+				enc.SetIndent("", "  ")
+				return enc.Encode(ks)
+			})
 		},
 	}
 	revoke := &cobra.Command{
@@ -58,12 +61,7 @@ func keysCmd(getenv func(string) string) *cobra.Command {
 		Short: "Revoke an API key",
 		Args:  cobra.ExactArgs(1),
 		RunE: func(cmd *cobra.Command, args []string) error {
-			st, err := data.Open(cmd.Context(), db)
-			if err != nil {
-				return err
-			}
-			defer st.Close()
-			return st.RevokeAPIKey(cmd.Context(), args[0])
+			return withStore(cmd, func(st *data.Store) error { return st.RevokeAPIKey(cmd.Context(), args[0]) })
 		},
 	}
 	cmd.AddCommand(create, list, revoke)

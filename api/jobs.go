@@ -280,18 +280,7 @@ func (s *Server) createJob(c *gin.Context) {
 	if idem != "" {
 		s.idemMu.Lock()
 		defer s.idemMu.Unlock()
-		status, resp, err := s.store.Idempotent(c.Request.Context(), "POST /v1/jobs", idem, hash)
-		switch {
-		case err == nil:
-			c.Header("Idempotent-Replayed", "true")
-			c.Data(status, "application/json", resp)
-			return
-		case errors.Is(err, data.ErrIdempotencyMismatch):
-			writeProblem(c, Problem{Type: problemBase + "idempotency-key-reused", Title: "Idempotency key reused", Status: http.StatusUnprocessableEntity,
-				Detail: "this Idempotency-Key was used with a different request body", Instance: c.Request.URL.Path, RequestID: c.GetString(ctxRequestID)})
-			return
-		case !errors.Is(err, data.ErrNotFound):
-			fail(c, err)
+		if s.replayed(c, "POST /v1/jobs", idem, hash) {
 			return
 		}
 	}
@@ -668,12 +657,7 @@ func (s *Server) jobResults(c *gin.Context) {
 	filtered := func(it data.JobItem) bool { return f.Active() && !keepsItem(f, it) }
 	switch format := c.DefaultQuery("format", "json"); format {
 	case "json":
-		limit, err := intQuery(c, "limit", 500, 1, 5000)
-		if err != nil {
-			fail(c, err)
-			return
-		}
-		offset, err := intQuery(c, "offset", 0, 0, 1<<30)
+		limit, offset, err := pageQuery(c, 500, 5000)
 		if err != nil {
 			fail(c, err)
 			return

@@ -235,19 +235,7 @@ func (s *Server) idempotent(c *gin.Context) {
 	route := c.Request.Method + " " + c.FullPath()
 	s.idemMu.Lock()
 	defer s.idemMu.Unlock()
-	status, resp, err := s.store.Idempotent(c.Request.Context(), route, key, hash)
-	switch {
-	case err == nil:
-		c.Header("Idempotent-Replayed", "true")
-		c.Data(status, "application/json", resp)
-		c.Abort()
-		return
-	case errors.Is(err, data.ErrIdempotencyMismatch):
-		writeProblem(c, Problem{Type: problemBase + "idempotency-key-reused", Title: "Idempotency key reused", Status: http.StatusUnprocessableEntity,
-			Detail: "this Idempotency-Key was used with a different request body", Instance: c.Request.URL.Path, RequestID: c.GetString(ctxRequestID)})
-		return
-	case !errors.Is(err, data.ErrNotFound):
-		fail(c, err)
+	if s.replayed(c, route, key, hash) {
 		return
 	}
 	c.Request.Body = io.NopCloser(bytes.NewReader(body))
@@ -258,5 +246,26 @@ func (s *Server) idempotent(c *gin.Context) {
 		if err := s.store.SaveIdempotent(c.Request.Context(), route, key, hash, st, cw.buf.Bytes()); err != nil {
 			s.log.Error("save idempotency record", "err", err)
 		}
+	}
+}
+
+// replayed answers a request whose Idempotency-Key and body were seen before with the stored
+// response (or a problem when the key came with another body); it reports whether it answered.
+func (s *Server) replayed(c *gin.Context, route, key, hash string) bool {
+	status, resp, err := s.store.Idempotent(c.Request.Context(), route, key, hash)
+	switch {
+	case err == nil:
+		c.Header("Idempotent-Replayed", "true")
+		c.Data(status, "application/json", resp)
+		c.Abort()
+		return true
+	case errors.Is(err, data.ErrNotFound):
+		return false
+	case errors.Is(err, data.ErrIdempotencyMismatch):
+		fail(c, fmt.Errorf("this Idempotency-Key was used with a different request body: %w", err))
+		return true
+	default:
+		fail(c, err)
+		return true
 	}
 }

@@ -75,17 +75,11 @@ func etag(m data.Monomer) string { return fmt.Sprintf(`"%s-v%d"`, m.ID, m.Versio
 //	@Failure	422		{object}	Problem
 //	@Router		/v1/monomers [post]
 func (s *Server) createMonomer(c *gin.Context) {
-	var in MonomerIn
-	if err := decodeJSON(c, &in); err != nil {
-		fail(c, err)
+	m, ok := bindMonomer(c)
+	if !ok {
 		return
 	}
-	m, err := in.validate()
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	m, err = s.store.CreateMonomer(c.Request.Context(), m)
+	m, err := s.store.CreateMonomer(c.Request.Context(), m)
 	if err != nil {
 		fail(c, err)
 		return
@@ -116,6 +110,30 @@ func intQuery(c *gin.Context, name string, def, lo, hi int) (int, error) {
 	return n, nil
 }
 
+// pageQuery reads limit (1..max, default def) and offset (≥ 0).
+func pageQuery(c *gin.Context, def, max int) (limit, offset int, err error) {
+	if limit, err = intQuery(c, "limit", def, 1, max); err != nil {
+		return 0, 0, err
+	}
+	offset, err = intQuery(c, "offset", 0, 0, 1<<30)
+	return limit, offset, err
+}
+
+// bindMonomer decodes and validates a monomer record; on failure it has answered already.
+func bindMonomer(c *gin.Context) (data.Monomer, bool) {
+	var in MonomerIn
+	if err := decodeJSON(c, &in); err != nil {
+		fail(c, err)
+		return data.Monomer{}, false
+	}
+	m, err := in.validate()
+	if err != nil {
+		fail(c, err)
+		return data.Monomer{}, false
+	}
+	return m, true
+}
+
 // listMonomers godoc
 //
 //	@Summary	List stored monomers
@@ -129,12 +147,7 @@ func intQuery(c *gin.Context, name string, def, lo, hi int) (int, error) {
 //	@Failure	422		{object}	Problem
 //	@Router		/v1/monomers [get]
 func (s *Server) listMonomers(c *gin.Context) {
-	limit, err := intQuery(c, "limit", 50, 1, 500)
-	if err != nil {
-		fail(c, err)
-		return
-	}
-	offset, err := intQuery(c, "offset", 0, 0, 1<<30)
+	limit, offset, err := pageQuery(c, 50, 500)
 	if err != nil {
 		fail(c, err)
 		return
@@ -193,14 +206,8 @@ func (s *Server) getMonomer(c *gin.Context) {
 //	@Failure	422			{object}	Problem
 //	@Router		/v1/monomers/{id} [put]
 func (s *Server) replaceMonomer(c *gin.Context) {
-	var in MonomerIn
-	if err := decodeJSON(c, &in); err != nil {
-		fail(c, err)
-		return
-	}
-	m, err := in.validate()
-	if err != nil {
-		fail(c, err)
+	m, ok := bindMonomer(c)
+	if !ok {
 		return
 	}
 	id := c.Param("id")
@@ -218,7 +225,7 @@ func (s *Server) replaceMonomer(c *gin.Context) {
 		}
 		ifVersion = v
 	}
-	m, err = s.store.ReplaceMonomer(c.Request.Context(), id, m, ifVersion)
+	m, err := s.store.ReplaceMonomer(c.Request.Context(), id, m, ifVersion)
 	if err != nil {
 		fail(c, err)
 		return

@@ -52,13 +52,8 @@ type PlanRequest struct {
 //	@Router			/v1/plan [post]
 func (s *Server) plan(c *gin.Context) {
 	var req PlanRequest
-	if err := decodeJSON(c, &req); err != nil {
-		fail(c, err)
-		return
-	}
-	cond, err := req.Conditions.toConditions()
-	if err != nil {
-		fail(c, err)
+	cond, ok := bind(c, &req, func(r *PlanRequest) *ConditionsIn { return r.Conditions })
+	if !ok {
 		return
 	}
 	if req.Target == nil {

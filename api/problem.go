@@ -68,6 +68,7 @@ var errorMap = []struct {
 	{data.ErrNotFound, http.StatusNotFound, "not-found", "Not found"},
 	{errNotFoundPath, http.StatusNotFound, "not-found", "Not found"},
 	{data.ErrConflict, http.StatusPreconditionFailed, "version-conflict", "Version conflict"},
+	{data.ErrIdempotencyMismatch, http.StatusUnprocessableEntity, "idempotency-key-reused", "Idempotency key reused"},
 	{errPrecondition, http.StatusPreconditionFailed, "precondition-failed", "Precondition failed"},
 	{errUnauthorized, http.StatusUnauthorized, "unauthorized", "Unauthorized"},
 	{errRateLimited, http.StatusTooManyRequests, "rate-limited", "Too many requests"},

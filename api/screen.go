@@ -71,6 +71,21 @@ func (ci *ConditionsIn) toConditions() (screening.Conditions, error) {
 	return c, nil
 }
 
+// bind decodes a JSON body into req and validates the conditions that conds picks from it; on
+// failure it has already answered with a problem and ok is false.
+func bind[T any](c *gin.Context, req *T, conds func(*T) *ConditionsIn) (cond screening.Conditions, ok bool) {
+	if err := decodeJSON(c, req); err != nil {
+		fail(c, err)
+		return cond, false
+	}
+	cond, err := conds(req).toConditions()
+	if err != nil {
+		fail(c, err)
+		return cond, false
+	}
+	return cond, true
+}
+
 // MonomerSource names exactly one monomer: a SMILES, a descriptor record, or a stored monomer.
 type MonomerSource struct {
 	SMILES      string                 `json:"smiles,omitempty" example:"C1=CC2CCC1C2"`
@@ -186,13 +201,8 @@ func (s *Server) count(r screening.Result, err error) {
 //	@Router			/v1/screen [post]
 func (s *Server) screen(c *gin.Context) {
 	var req ScreenRequest
-	if err := decodeJSON(c, &req); err != nil {
-		fail(c, err)
-		return
-	}
-	cond, err := req.Conditions.toConditions()
-	if err != nil {
-		fail(c, err)
+	cond, ok := bind(c, &req, func(r *ScreenRequest) *ConditionsIn { return r.Conditions })
+	if !ok {
 		return
 	}
 	if req.Save && req.MonomerID == "" {
@@ -295,13 +305,8 @@ func dgOf(r *screening.Result) float64 {
 //	@Router			/v1/screen/batch [post]
 func (s *Server) batch(c *gin.Context) {
 	var req BatchRequest
-	if err := decodeJSON(c, &req); err != nil {
-		fail(c, err)
-		return
-	}
-	cond, err := req.Conditions.toConditions()
-	if err != nil {
-		fail(c, err)
+	cond, ok := bind(c, &req, func(r *BatchRequest) *ConditionsIn { return r.Conditions })
+	if !ok {
 		return
 	}
 	if len(req.Items) == 0 {
@@ -376,13 +381,8 @@ type SweepResponse struct {
 //	@Router			/v1/sweep [post]
 func (s *Server) sweep(c *gin.Context) {
 	var req SweepRequest
-	if err := decodeJSON(c, &req); err != nil {
-		fail(c, err)
-		return
-	}
-	cond, err := req.Conditions.toConditions()
-	if err != nil {
-		fail(c, err)
+	cond, ok := bind(c, &req, func(r *SweepRequest) *ConditionsIn { return r.Conditions })
+	if !ok {
 		return
 	}
 	rg := SweepRange{FromC: -20, ToC: 150, StepC: 5}

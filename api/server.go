@@ -170,7 +170,7 @@ func decodeJSONBytes(body []byte, v any) error {
 	dec := json.NewDecoder(bytes.NewReader(body))
 	dec.DisallowUnknownFields()
 	if err := dec.Decode(v); err != nil {
-		return badRequest(errMalformed, jsonErrField(err), jsonErrMessage(err, body))
+		return badRequest(errMalformed, jsonErrField(err), jsonErrMessage(err))
 	}
 	if dec.More() {
 		return badRequest(errMalformed, "", "trailing data after the JSON object")
@@ -205,7 +205,7 @@ func jsonPath(field string) string {
 	return strings.Join(keep, ".")
 }
 
-func jsonErrMessage(err error, body []byte) string {
+func jsonErrMessage(err error) string {
 	var se *json.SyntaxError
 	if errors.As(err, &se) {
 		return fmt.Sprintf("malformed JSON at byte %d: %s", se.Offset, se.Error())

@@ -32,11 +32,10 @@ var dataFS embed.FS
 
 // Basis values of a thermodynamic estimate.
 const (
-	BasisRingTable  = "ring_table"
-	BasisAdditive   = "additive_estimate"
-	BasisSupplied   = "supplied"
-	BasisStrain     = "strain_estimate"
-	BasisRingSizeOf = "ring_size_table"
+	BasisRingTable = "ring_table"
+	BasisAdditive  = "additive_estimate"
+	BasisSupplied  = "supplied"
+	BasisStrain    = "strain_estimate"
 )
 
 // RingRow is one row of the ring-system strain table.
