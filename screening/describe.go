@@ -17,6 +17,7 @@ type Structure struct {
 	Skipped     int     // ring olefins beyond MaxOlefinsAnalysed, not analysed
 	ringSystem  []int   // per SSSR ring: index of its ring system
 	systems     [][]int // SSSR ring indices per ring system
+	sysAtoms    [][]int // sorted atoms per ring system, computed on first use
 }
 
 // Olefin is one ring C=C (both atoms carbon, in a ring, not aromatic) and what governs its ROMP.
@@ -331,17 +332,29 @@ func (s *Structure) analyse(bi int) *Olefin {
 	o := &Olefin{Bond: bi, A: b.A, B: b.B}
 	// ring system and core
 	var system []int
+	sysIdx := -1
 	for ri, r := range p.SSSR {
 		for _, rb := range r.Bonds {
 			if rb == bi {
-				system = s.systems[s.ringSystem[ri]]
+				sysIdx = s.ringSystem[ri]
+				system = s.systems[sysIdx]
 			}
 		}
 	}
+	if s.sysAtoms == nil {
+		s.sysAtoms = make([][]int, len(s.systems))
+	}
+	if s.sysAtoms[sysIdx] == nil {
+		s.sysAtoms[sysIdx] = ringAtoms(p.SSSR, system)
+	}
 	o.SystemRings = system
-	o.SystemAtoms = ringAtoms(p.SSSR, system)
+	o.SystemAtoms = s.sysAtoms[sysIdx]
 	o.CoreRings = coreRings(p.SSSR, system, bi)
-	o.CoreAtoms = ringAtoms(p.SSSR, o.CoreRings)
+	if len(o.CoreRings) == len(system) {
+		o.CoreAtoms = o.SystemAtoms // the core is the whole system
+	} else {
+		o.CoreAtoms = ringAtoms(p.SSSR, o.CoreRings)
+	}
 	smallest := -1
 	for _, ri := range o.CoreRings {
 		for _, rb := range p.SSSR[ri].Bonds {

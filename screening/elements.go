@@ -22,7 +22,10 @@ type element struct {
 	Valences []int
 }
 
-var elements = []element{
+// numElements is the number of rows of elements (Z = 1 … 92).
+const numElements = 92
+
+var elements = [numElements]element{
 	{1, "H", 1.008, 1.00782503223, nil},
 	{2, "He", 4.0026, 4.00260325413, nil},
 	{3, "Li", 6.94, 7.0160034366, nil},
@@ -141,7 +144,7 @@ var elementBySymbol = func() map[string]*element {
 }()
 
 func elementByZ(z int) *element {
-	if z >= 1 && z <= len(elements) {
+	if z >= 1 && z <= numElements {
 		return &elements[z-1]
 	}
 	return nil

@@ -72,12 +72,7 @@ func EstimateOlefin(s *Structure, o *Olefin) Estimate {
 	if g.Row != nil {
 		e.Parent, e.Bare = g.Row.Name, parentOnly
 	}
-	names := strings.Join(g.Terms, " + ")
-	if len(g.Survive) > 0 {
-		names += " → " + strings.Join(g.Survive, " + ")
-	} else {
-		names += " → open chain"
-	}
+	names := g.Path
 	e.Source = "ring-correction table: " + names
 	if !g.AllHits {
 		e.Basis = BasisAdditive

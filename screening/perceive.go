@@ -587,7 +587,7 @@ func (m *Molecule) Formula() string { return m.formulaOf(nil) }
 
 // formulaOf is Formula over the atoms listed (nil: all).
 func (m *Molecule) formulaOf(atoms []int) string {
-	counts := make([]int, len(elements)+1) // index 0: wildcard atoms
+	var counts [numElements + 1]int // index 0: wildcard atoms
 	charge := 0
 	add := func(a *Atom) {
 		if a.Z >= 0 && a.Z <= len(elements) {

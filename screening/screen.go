@@ -211,13 +211,17 @@ func (s *Structure) moleculeDescriptors() Descriptors {
 		}
 	}
 	rings := 0
-	in := map[int]bool{}
-	for _, a := range s.Main {
-		in[a] = true
-	}
-	for _, r := range s.P.SSSR {
-		if in[r.Atoms[0]] {
-			rings++
+	if len(m.components) == 1 {
+		rings = len(s.P.SSSR)
+	} else {
+		in := make([]bool, len(m.Atoms))
+		for _, a := range s.Main {
+			in[a] = true
+		}
+		for _, r := range s.P.SSSR {
+			if in[r.Atoms[0]] {
+				rings++
+			}
 		}
 	}
 	return Descriptors{
@@ -391,7 +395,7 @@ func sigmoid(x float64) float64 { return 1 / (1 + math.Exp(-x)) }
 const cautionDefer = "These are screening estimates, not a hazard assessment: local codes, your site's process-safety review, the supplier's safety data sheets and qualified practice decide."
 
 func cautions(d *Descriptors, th *Thermo, c Conditions, verdict string) []string {
-	var out []string
+	out := make([]string, 0, 6)
 	if th != nil && th.DHkJmol < 0 && (verdict == VerdictPolymerizes || verdict == VerdictEquilibrium) {
 		q := 0.0
 		if th.HeatJPerG != nil {

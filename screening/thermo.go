@@ -494,7 +494,8 @@ type GasEstimate struct {
 	Survive  []string // names of surviving terms
 	Row      *RingRow // whole-system row when the table has the system
 	Notes    []string
-	Spectate int // spectator terms cancelled
+	Spectate int    // spectator terms cancelled
+	Path     string // "monomer terms → surviving terms", for the result's source
 }
 
 // gasEstimate computes the ring-correction part for opening bond bi of the ring system atoms.
@@ -546,6 +547,12 @@ func (t *ringTable) gasEstimateUncached(m *Molecule, systemAtoms []int, bi int, 
 		g.Survive = append(g.Survive, x.Name)
 	}
 	g.UH, g.US = math.Sqrt(uh2), math.Sqrt(us2)
+	g.Path = strings.Join(g.Terms, " + ")
+	if len(g.Survive) > 0 {
+		g.Path += " → " + strings.Join(g.Survive, " + ")
+	} else {
+		g.Path += " → open chain"
+	}
 	return g
 }
 
