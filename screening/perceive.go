@@ -589,21 +589,13 @@ func (m *Molecule) Formula() string { return m.formulaOf(nil) }
 func (m *Molecule) formulaOf(atoms []int) string {
 	var counts [numElements + 1]int // index 0: wildcard atoms
 	charge := 0
-	add := func(a *Atom) {
-		if a.Z >= 0 && a.Z <= len(elements) {
+	m.eachAtom(atoms, func(a *Atom) {
+		if a.Z >= 0 && a.Z <= numElements {
 			counts[a.Z]++
 		}
 		counts[1] += a.HCount
 		charge += a.Charge
-	}
-	if atoms == nil {
-		for i := range m.Atoms {
-			add(&m.Atoms[i])
-		}
-	}
-	for _, i := range atoms {
-		add(&m.Atoms[i])
-	}
+	})
 	var sb strings.Builder
 	write := func(sym string, n int) {
 		if n == 0 {
@@ -659,16 +651,21 @@ func (m *Molecule) MolWeight() float64 { return m.molWeightOf(nil) }
 func (m *Molecule) molWeightOf(atoms []int) float64 {
 	h := elementByZ(1).WeightG
 	w := 0.0
-	add := func(a *Atom) { w += atomMass(a.Z, a.Isotope) + float64(a.HCount)*h }
+	m.eachAtom(atoms, func(a *Atom) { w += atomMass(a.Z, a.Isotope) + float64(a.HCount)*h })
+	return w
+}
+
+// eachAtom calls fn for the atoms listed, or for every atom when atoms is nil.
+func (m *Molecule) eachAtom(atoms []int, fn func(*Atom)) {
 	if atoms == nil {
 		for i := range m.Atoms {
-			add(&m.Atoms[i])
+			fn(&m.Atoms[i])
 		}
+		return
 	}
 	for _, i := range atoms {
-		add(&m.Atoms[i])
+		fn(&m.Atoms[i])
 	}
-	return w
 }
 
 // ElectronMassU is the electron mass in u (CODATA 2018).
@@ -683,18 +680,10 @@ func (m *Molecule) monoMassOf(atoms []int) float64 {
 	h := elementByZ(1).MonoMass
 	w := 0.0
 	charge := 0
-	add := func(a *Atom) {
+	m.eachAtom(atoms, func(a *Atom) {
 		w += atomMonoMass(a.Z, a.Isotope) + float64(a.HCount)*h
 		charge += a.Charge
-	}
-	if atoms == nil {
-		for i := range m.Atoms {
-			add(&m.Atoms[i])
-		}
-	}
-	for _, i := range atoms {
-		add(&m.Atoms[i])
-	}
+	})
 	return w - float64(charge)*ElectronMassU
 }
 
