@@ -310,7 +310,9 @@ func MakePlan(r Result, in PlanInput, c Conditions) (Plan, error) {
 // cyclics and get null.
 func ringChain(r Result, c Conditions) RingChain {
 	d := r.Descriptors
-	rc := RingChain{Basis: "Jacobson–Stockmayer model (Gaussian chains): model values, not measurements; they overestimate the smallest rings"}
+	rc := RingChain{Basis: "Jacobson–Stockmayer model (J. Chem. Phys. 1950, 18, 1600), Gaussian chains, ring symmetry 2x: model values, not measurements, " +
+		"upper bounds for the smallest rings. Chain statistics: bond lengths C=C 1.34, =CH–CH2 1.50, CH2–CH2 1.53 Å; characteristic ratio 4.9 " +
+		"(cis-1,4-polybutadiene) for 4-bond units, 5.0 for 5-bond units, 6.7 (polyethylene limit) for longer units (all from memory)"}
 	if d.RingSystem == SystemBridged || d.RingSize < 5 || r.Thermo.DHkJmol < -40 {
 		rc.Basis = "not applied: ring strain makes cyclic oligomers negligible"
 		return rc

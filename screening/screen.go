@@ -121,12 +121,16 @@ func ScreenSMILES(smiles string, c Conditions) (Result, error) {
 // reactive one is reported, the others listed in descriptors.other_ring_olefins.
 func ScreenStructure(s *Structure, c Conditions) (Result, error) {
 	base := s.moleculeDescriptors()
+	var bulkNote *Reason
 	if c.Bulk {
-		conc, _, ok := s.BulkConcentration()
+		conc, rel, ok := s.BulkConcentration()
 		if !ok {
 			return Result{}, fieldErr("conditions.bulk", "cannot estimate the neat density of this monomer; give monomer_conc_mol_l instead")
 		}
 		c.Conc = conc
+		v := float64(conc)
+		bulkNote = &Reason{Code: "bulk_concentration_estimate", Effect: EffectNote, Value: &v, Unit: "mol/L",
+			Detail: fmt.Sprintf("neat monomer: [M]0 ≈ %.2f mol/L ± %.0f%% from the McGowan volume (liquid molar volume ≈ 1.25 × McGowan volume)", v, 100*rel)}
 	}
 	if len(s.Olefins) == 0 {
 		d := base
@@ -174,6 +178,9 @@ func ScreenStructure(s *Structure, c Conditions) (Result, error) {
 			det += fmt.Sprintf("; %d were not analysed (more than %d ring olefins)", s.Skipped, MaxOlefinsAnalysed)
 		}
 		best.Reasons = append(best.Reasons, note("several_ring_olefins", det))
+	}
+	if bulkNote != nil {
+		best.Reasons = append(best.Reasons, *bulkNote)
 	}
 	if len(s.CounterIons) > 0 {
 		best.Reasons = append(best.Reasons, note("counter_ion", "salt: screened the largest organic component; other components: "+joinStrings(s.CounterIons)))
