@@ -1,10 +1,6 @@
 package screening
 
-import (
-	"encoding/csv"
-	"os"
-	"testing"
-)
+import "testing"
 
 // TestOutcomesReference screens every structure of romp_outcomes.csv at the catalyst class of
 // its row (ru → ru-nhc, mo_w → mo-w-imido, classical → classical, any → ru-nhc), 25 °C and
@@ -13,15 +9,7 @@ import (
 // Each row's source is in the csv (printed with any miss). Known misses are listed in
 // knownMisses with the reason; none is special-cased in the engine.
 func TestOutcomesReference(t *testing.T) {
-	f, err := os.Open("../testdata/reference/romp_outcomes.csv")
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	recs, err := csv.NewReader(f).ReadAll()
-	if err != nil {
-		t.Fatal(err)
-	}
+	recs := readReferenceCSV(t, "romp_outcomes.csv")
 	classOf := map[string]CatalystClass{"ru": CatRuNHC, "mo_w": CatMoWImido, "classical": CatClassical, "any": CatRuNHC}
 	// Known misses, explained (the engine is not special-cased for them):
 	knownMisses := map[string]string{}

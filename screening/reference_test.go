@@ -16,8 +16,10 @@ type refRow struct {
 	Evidence, Note                string
 }
 
-func loadThermoRef(t testing.TB) map[string]refRow {
-	f, err := os.Open("../testdata/reference/romp_thermo.csv")
+// readReferenceCSV reads a file of testdata/reference as CSV records (header included).
+func readReferenceCSV(t testing.TB, name string) [][]string {
+	t.Helper()
+	f, err := os.Open("../testdata/reference/" + name)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -26,6 +28,11 @@ func loadThermoRef(t testing.TB) map[string]refRow {
 	if err != nil {
 		t.Fatal(err)
 	}
+	return recs
+}
+
+func loadThermoRef(t testing.TB) map[string]refRow {
+	recs := readReferenceCSV(t, "romp_thermo.csv")
 	out := map[string]refRow{}
 	for _, r := range recs[1:] {
 		v, err := strconv.ParseFloat(r[4], 64)
