@@ -46,11 +46,18 @@ func TestBrowserPage(t *testing.T) {
 		t.Skip("SKIPPING BROWSER TEST: Chromium not found (apt-get install -y chromium, or set RINGSIEVE_CHROMIUM); .ci/run installs it")
 	}
 	s := startService(t, filepath.Join(t.TempDir(), "browser.db"))
+	// Chromium may still write to its profile while it exits: a plain temp dir, removed
+	// best-effort, rather than t.TempDir (whose cleanup fails the test on a busy directory)
+	profile, err := os.MkdirTemp("", "ringsieve-chromium")
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer os.RemoveAll(profile)
 	opts := append(chromedp.DefaultExecAllocatorOptions[:],
 		chromedp.ExecPath(chrome), chromedp.Flag("headless", true), chromedp.NoSandbox, chromedp.DisableGPU,
 		chromedp.Flag("disable-quic", true), chromedp.NoFirstRun, chromedp.Flag("disable-background-networking", true),
 		chromedp.Flag("disable-component-update", true), chromedp.Flag("disable-sync", true),
-		chromedp.UserDataDir(t.TempDir()), chromedp.WindowSize(1280, 800))
+		chromedp.UserDataDir(profile), chromedp.WindowSize(1280, 800))
 	actx, cancelA := chromedp.NewExecAllocator(context.Background(), opts...)
 	defer cancelA()
 	ctx, cancel := chromedp.NewContext(actx)
@@ -60,7 +67,7 @@ func TestBrowserPage(t *testing.T) {
 
 	pasted := "C1=CCCC1 MEM-08\nC1=CC2CCC1C2 MEM-01\nC1=CCCCC1 MEM-12"
 	var ids, verdicts, tcCells []string
-	err := chromedp.Run(ctx,
+	err = chromedp.Run(ctx,
 		chromedp.Navigate(s.base+"/"),
 		chromedp.WaitVisible("#smiles", chromedp.ByQuery),
 		chromedp.SetValue("#smiles", pasted, chromedp.ByQuery),
@@ -133,6 +140,20 @@ func TestBrowserPage(t *testing.T) {
 		if err := chromedp.Run(ctx, chromedp.ScrollIntoView("#detail", chromedp.ByQuery), chromedp.Screenshot("#detail", &png, chromedp.ByQuery)); err == nil {
 			os.WriteFile("testdata/screenshots/detail-view.png", png, 0o644)
 		}
+	}
+	// file upload: the demo list goes through an asynchronous job and fills the table
+	demo, _ := filepath.Abs("testdata/demo/membrane_candidates.csv")
+	var rows int
+	err = chromedp.Run(ctx,
+		chromedp.Click("#close-detail", chromedp.ByQuery),
+		chromedp.Evaluate(`document.getElementById('smiles').value = ''`, nil),
+		chromedp.SetUploadFiles("#file", []string{demo}, chromedp.ByQuery),
+		chromedp.Click("#go", chromedp.ByQuery),
+		chromedp.WaitVisible("#ranked tbody tr:nth-child(15)", chromedp.ByQuery),
+		chromedp.Evaluate(`document.querySelectorAll('#ranked tbody tr').length`, &rows),
+	)
+	if err != nil || rows != 15 {
+		t.Errorf("upload of the demo list: %d rows, %v", rows, err)
 	}
 	// narrow window: the page still lays out (no horizontal overflow of the form)
 	var overflow bool
