@@ -41,7 +41,9 @@ func Open(ctx context.Context, path string) (*Store, error) {
 	q.Set("_busy_timeout", "5000")
 	q.Set("_synchronous", "NORMAL")
 	q.Set("_txlock", "immediate")
-	db, err := sql.Open("sqlite3", "file:"+path+"?"+q.Encode())
+	// the path is part of a URI: escape the characters that would end or change it
+	esc := strings.NewReplacer("%", "%25", "?", "%3f", "#", "%23").Replace(path)
+	db, err := sql.Open("sqlite3", "file:"+esc+"?"+q.Encode())
 	if err != nil {
 		return nil, fmt.Errorf("open %s: %w", path, err)
 	}

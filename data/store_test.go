@@ -5,6 +5,7 @@ import (
 	"database/sql"
 	"encoding/json"
 	"errors"
+	"os"
 	"path/filepath"
 	"sync"
 	"testing"
@@ -243,5 +244,18 @@ func TestConcurrentWrites(t *testing.T) {
 	_, total, _ := s.ListMonomers(ctx, MonomerFilter{Limit: 1})
 	if total != 40 {
 		t.Fatalf("%d monomers", total)
+	}
+}
+
+// TestPathWithURICharacters: a database file name with '?' and '#' is used as written.
+func TestPathWithURICharacters(t *testing.T) {
+	path := filepath.Join(t.TempDir(), "odd?name#1.db")
+	s, err := Open(context.Background(), path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	s.Close()
+	if _, err := os.Stat(path); err != nil {
+		t.Fatalf("database not at %s: %v", path, err)
 	}
 }

@@ -56,6 +56,8 @@
 
   function api(method, path, body, isForm) {
     var opts = { method: method, headers: {} };
+    var key = $("apikey").value.trim();
+    if (key) opts.headers["X-API-Key"] = key;
     if (body !== undefined) {
       if (isForm) opts.body = body;
       else { opts.body = JSON.stringify(body); opts.headers["Content-Type"] = "application/json"; }
@@ -391,6 +393,9 @@
     }).then(function () { $("go").disabled = false; });
   });
   $("bulk").addEventListener("change", function () { $("conc").disabled = $("bulk").checked; });
+  // keep the key for this browser tab only
+  try { $("apikey").value = sessionStorage.getItem("ringsieve-key") || ""; } catch (e) { /* storage blocked */ }
+  $("apikey").addEventListener("change", function () { try { sessionStorage.setItem("ringsieve-key", $("apikey").value.trim()); } catch (e) { /* ignore */ } });
   document.querySelectorAll("#ranked th[data-key] button").forEach(function (b) {
     b.addEventListener("click", function () {
       var key = b.parentNode.getAttribute("data-key");
