@@ -34,8 +34,8 @@ type Perceived struct {
 // returned.
 func Perceive(m *Molecule) *Perceived {
 	p := &Perceived{Mol: m}
-	p.BondRingSize = make([]int, len(m.Bonds))
-	p.AtomRingSize = make([]int, len(m.Atoms))
+	sizes := make([]int, len(m.Bonds)+len(m.Atoms)) // one allocation for both size lists
+	p.BondRingSize, p.AtomRingSize = sizes[:len(m.Bonds):len(m.Bonds)], sizes[len(m.Bonds):]
 	var candidates []Ring
 	inRing := m.ringBonds()
 	scratch := make([]int, 3*len(m.Atoms))
@@ -464,8 +464,8 @@ func (p *Perceived) piElectrons(a int, ring []bool) int {
 // bond-sharing SSSR rings, whose π-electron count is 4n+2 with every atom contributing.
 func (p *Perceived) perceiveAromaticity() {
 	m := p.Mol
-	p.AromaticAtom = make([]bool, len(m.Atoms))
-	p.AromaticBond = make([]bool, len(m.Bonds))
+	flags := make([]bool, len(m.Atoms)+len(m.Bonds))
+	p.AromaticAtom, p.AromaticBond = flags[:len(m.Atoms):len(m.Atoms)], flags[len(m.Atoms):]
 	mark := func(atoms []int, bonds []int) {
 		for _, a := range atoms {
 			p.AromaticAtom[a] = true

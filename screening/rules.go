@@ -2,6 +2,7 @@ package screening
 
 import (
 	"fmt"
+	"strconv"
 	"strings"
 )
 
@@ -199,15 +200,18 @@ func strainReasons(d *Descriptors, e Estimate) []Reason {
 	switch {
 	case dh <= -40 && d.RingSystem == SystemBridged:
 		return []Reason{{Code: "bridged_bicyclic_strain", Effect: EffectFavors, Value: &v, Unit: "kJ/mol",
-			Detail: fmt.Sprintf("strained bridged bicyclic ring: ΔH_p ≈ %.0f kJ/mol drives polymerization", dh)}}
+			Detail: "strained bridged bicyclic ring: ΔH_p ≈ " + f0(dh) + " kJ/mol drives polymerization"}}
 	case dh <= -40:
 		return []Reason{{Code: "high_ring_strain", Effect: EffectFavors, Value: &v, Unit: "kJ/mol",
-			Detail: fmt.Sprintf("high ring strain: ΔH_p ≈ %.0f kJ/mol", dh)}}
+			Detail: "high ring strain: ΔH_p ≈ " + f0(dh) + " kJ/mol"}}
 	case dh <= -15:
 		return []Reason{{Code: "moderate_ring_strain", Effect: EffectNote, Value: &v, Unit: "kJ/mol",
-			Detail: fmt.Sprintf("moderate ring strain: ΔH_p ≈ %.0f kJ/mol; the ceiling temperature and concentration matter", dh)}}
+			Detail: "moderate ring strain: ΔH_p ≈ " + f0(dh) + " kJ/mol; the ceiling temperature and concentration matter"}}
 	default:
 		return []Reason{{Code: "low_ring_strain", Effect: EffectPenalizes, Penalty: 0.1, Value: &v, Unit: "kJ/mol",
-			Detail: fmt.Sprintf("little ring strain: ΔH_p ≈ %.0f kJ/mol", dh)}}
+			Detail: "little ring strain: ΔH_p ≈ " + f0(dh) + " kJ/mol"}}
 	}
 }
+
+// f0 formats a number with no decimals (strconv: the reason texts are on the hot path).
+func f0(x float64) string { return strconv.FormatFloat(x, 'f', 0, 64) }

@@ -4,6 +4,7 @@ import (
 	"fmt"
 	"math"
 	"sort"
+	"strconv"
 )
 
 // EngineVersion identifies the rules, table and formulas that produced a result; stored with
@@ -297,8 +298,10 @@ func joinStrings(x []string) string {
 	return out
 }
 
+var pow10 = [...]float64{1, 10, 100, 1e3, 1e4, 1e5, 1e6}
+
 func round(x float64, digits int) float64 {
-	p := math.Pow(10, float64(digits))
+	p := pow10[digits]
 	return math.Round(x*p) / p
 }
 
@@ -310,7 +313,7 @@ func judge(d *Descriptors, e *Estimate, c Conditions) Result {
 		EngineVersion: EngineVersion,
 		Conditions: ConditionsOut{TemperatureC: round(c.Temp.Celsius(), 4), TemperatureK: float64(c.Temp),
 			MonomerConcMolL: round(float64(c.Conc), 4), Bulk: c.Bulk, Catalyst: string(c.Catalyst)},
-		Reasons:               []Reason{},
+		Reasons:               make([]Reason, 0, 8),
 		CatalystCompatibility: CompatibilityFor(d.FunctionalGroups),
 	}
 	in := ruleInput{D: d, Cond: c}
@@ -356,7 +359,7 @@ func judge(d *Descriptors, e *Estimate, c Conditions) Result {
 	default:
 		v := conv
 		r.Reasons = append(r.Reasons, Reason{Code: "favorable_equilibrium", Effect: EffectFavors, Value: &v, Unit: "fraction",
-			Detail: fmt.Sprintf("equilibrium conversion %.3f at these conditions", conv)})
+			Detail: "equilibrium conversion " + strconv.FormatFloat(conv, 'f', 3, 64) + " at these conditions"})
 	}
 	if uG > 0 && math.Abs(th.DGkJmol) < uG {
 		v := uG
@@ -413,7 +416,7 @@ func cautions(d *Descriptors, th *Thermo, c Conditions, verdict string) []string
 			rise := q * th.EqConversion / defaultHydrocarbonC
 			out = append(out, fmt.Sprintf("Bulk polymerization releases about %.0f J per gram of monomer; with no heat loss the mixture could rise by about %.0f K (heat capacity %.1f J/(g K) assumed). Fast catalysts release most of it within seconds to minutes and gelation stops stirring: treat it as a possible runaway, add monomer or catalyst in portions, and provide cooling.", q, rise, defaultHydrocarbonC))
 		case th.DHkJmol <= -40:
-			out = append(out, fmt.Sprintf("Strongly exothermic ring opening (ΔH_p ≈ %.0f kJ/mol): at high concentration or in bulk the heat can outrun cooling. Add catalyst or monomer gradually and watch the temperature.", th.DHkJmol))
+			out = append(out, "Strongly exothermic ring opening (ΔH_p ≈ "+f0(th.DHkJmol)+" kJ/mol): at high concentration or in bulk the heat can outrun cooling. Add catalyst or monomer gradually and watch the temperature.")
 		}
 	}
 	if d.MolWeightGmol > 0 && d.MolWeightGmol < 150 && d.HeavyAtoms > 0 {

@@ -130,10 +130,12 @@ type ringOpen struct {
 }
 
 type smilesReader struct {
-	s     string
-	i     int
-	m     *Molecule
-	rings map[int]ringOpen
+	s      string
+	i      int
+	m      *Molecule
+	rings  [100]ringOpen // open ring bonds by number 0–99
+	isOpen [100]bool
+	nOpen  int
 }
 
 // ParseSMILES reads one SMILES string into a molecule graph with kekulized bonds and hydrogen
@@ -146,7 +148,7 @@ func ParseSMILES(s string) (*Molecule, error) {
 	if strings.TrimSpace(s) == "" {
 		return nil, smilesErr(0, "empty SMILES")
 	}
-	r := &smilesReader{s: s, m: &Molecule{Atoms: make([]Atom, 0, len(s)/2+1), Bonds: make([]Bond, 0, len(s)/2+2)}, rings: map[int]ringOpen{}}
+	r := &smilesReader{s: s, m: &Molecule{Atoms: make([]Atom, 0, len(s)/2+1), Bonds: make([]Bond, 0, len(s)/2+2)}, }
 	if err := r.read(); err != nil {
 		return nil, err
 	}
@@ -257,8 +259,10 @@ func (r *smilesReader) read() error {
 			} else {
 				r.i++
 			}
-			if open, ok := r.rings[num]; ok {
-				delete(r.rings, num)
+			if r.isOpen[num] {
+				open := r.rings[num]
+				r.isOpen[num] = false
+				r.nOpen--
 				if open.atom == prev {
 					return smilesErr(pos, "ring closure %d joins an atom to itself", num)
 				}
@@ -287,10 +291,9 @@ func (r *smilesReader) read() error {
 				// the opening atom's neighbour order already holds a placeholder for this closure
 				r.fillRingPlaceholder(open.atom, num, prev)
 			} else {
-				if len(r.rings) >= 100 {
-					return smilesErr(pos, "too many open rings")
-				}
 				r.rings[num] = ringOpen{atom: prev, order: pendOrder, arom: pendArom, dir: pendDir, pos: pos}
+				r.isOpen[num] = true
+				r.nOpen++
 				// placeholder in the neighbour order, encoded as -(1000+num)
 				r.noteNeighbor(prev, -(1000 + num))
 			}
@@ -333,10 +336,10 @@ func (r *smilesReader) read() error {
 	if len(stack) > 0 {
 		return smilesErr(branchPos[len(branchPos)-1], "'(' never closed")
 	}
-	if len(r.rings) > 0 {
+	if r.nOpen > 0 {
 		first := -1
-		for _, o := range r.rings {
-			if first < 0 || o.pos < first {
+		for num, o := range r.rings {
+			if r.isOpen[num] && (first < 0 || o.pos < first) {
 				first = o.pos
 			}
 		}
