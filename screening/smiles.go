@@ -148,7 +148,7 @@ func ParseSMILES(s string) (*Molecule, error) {
 	if strings.TrimSpace(s) == "" {
 		return nil, smilesErr(0, "empty SMILES")
 	}
-	r := &smilesReader{s: s, m: &Molecule{Atoms: make([]Atom, 0, len(s)/2+1), Bonds: make([]Bond, 0, len(s)/2+2)}, }
+	r := &smilesReader{s: s, m: &Molecule{Atoms: make([]Atom, 0, len(s)/2+1), Bonds: make([]Bond, 0, len(s)/2+2)}}
 	if err := r.read(); err != nil {
 		return nil, err
 	}
