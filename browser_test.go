@@ -155,6 +155,20 @@ func TestBrowserPage(t *testing.T) {
 	if err != nil || rows != 15 {
 		t.Errorf("upload of the demo list: %d rows, %v", rows, err)
 	}
+	// the API reference page renders the OpenAPI document
+	var ops []string
+	err = chromedp.Run(ctx,
+		chromedp.Navigate(s.base+"/docs"),
+		chromedp.WaitVisible("#ops section.op", chromedp.ByQuery),
+		chromedp.Evaluate(`Array.from(document.querySelectorAll('#ops section.op h2')).map(h => h.textContent)`, &ops),
+	)
+	joined := strings.Join(ops, "\n")
+	for _, want := range []string{"POST /v1/screen", "POST /v1/plan", "GET /v1/jobs/{id}/results", "POST /v1/monomers"} {
+		if err != nil || !strings.Contains(joined, want) {
+			t.Errorf("API reference page lacks %q (%v)", want, err)
+		}
+	}
+	chromedp.Run(ctx, chromedp.Navigate(s.base+"/"), chromedp.WaitVisible("#smiles", chromedp.ByQuery))
 	// narrow window: the page still lays out (no horizontal overflow of the form)
 	var overflow bool
 	err = chromedp.Run(ctx, chromedp.EmulateViewport(420, 800), chromedp.Evaluate(`document.querySelector('#screen-form').scrollWidth > window.innerWidth + 2`, &overflow))
