@@ -340,7 +340,9 @@ func TestJobsJSONUploadIdempotencyAndFormats(t *testing.T) {
 	if res2.StatusCode != 202 || created.Total != 2 || len(created.InputErrors) != 1 || created.InputErrors[0].Line != 3 {
 		t.Fatalf("upload: %d %+v", res2.StatusCode, created)
 	}
-	waitJob(t, ts, created.ID)
+	if st := waitJob(t, ts, created.ID); st.SourceFormat != "csv" || len(st.ExtraColumns) != 1 || st.ExtraColumns[0] != "batch" {
+		t.Errorf("upload recorded format %q and columns %v", st.SourceFormat, st.ExtraColumns)
+	}
 	csvR = do(t, ts, "GET", "/v1/jobs/"+created.ID+"/results?format=csv", "")
 	if !strings.Contains(string(csvR.body), ",batch") || !strings.Contains(string(csvR.body), ",A") {
 		t.Errorf("extra column not carried through:\n%s", csvR.body)

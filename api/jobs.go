@@ -200,7 +200,6 @@ func (r *jobRunner) screenOne(ctx context.Context, i int, it data.JobItem, cond 
 		return out
 	}
 	out.Verdict, out.Score, out.Result = res.Verdict, res.Score, mustJSON(res)
-	out.DG = math.Inf(1)
 	if res.Thermo != nil {
 		out.DG = res.Thermo.DGkJmol
 	} else {
@@ -376,17 +375,17 @@ func (s *Server) storeJobBody(c *gin.Context, body []byte) (data.Job, []screenin
 	if req.Conditions == nil {
 		cj = []byte("{}")
 	}
-	job, err := s.store.CreateJobStream(ctx, "json", func(add func(data.JobItem) error) (json.RawMessage, []string, error) {
+	job, err := s.store.CreateJobStream(ctx, func(add func(data.JobItem) error) (data.JobMeta, error) {
 		for i, it := range req.Items {
 			id := it.ID
 			if id == "" {
 				id = strconv.Itoa(i + 1)
 			}
 			if err := add(data.JobItem{ItemID: id, Source: mustJSON(jobSource{SMILES: it.SMILES, Descriptors: it.Descriptors, MonomerID: it.MonomerID})}); err != nil {
-				return nil, nil, err
+				return data.JobMeta{}, err
 			}
 		}
-		return cj, nil, nil
+		return data.JobMeta{Conditions: cj, Format: "json"}, nil
 	})
 	return job, nil, err
 }
@@ -428,12 +427,12 @@ func (s *Server) storeUpload(ctx context.Context, body []byte, boundary string) 
 		return data.Job{}, nil, err
 	}
 	var in *screening.Input
-	job, err := s.store.CreateJobStream(ctx, "upload", func(add func(data.JobItem) error) (json.RawMessage, []string, error) {
+	job, err := s.store.CreateJobStream(ctx, func(add func(data.JobItem) error) (data.JobMeta, error) {
 		mr := multipart.NewReader(bytes.NewReader(body), boundary)
 		for {
 			part, err := mr.NextPart()
 			if err != nil {
-				return nil, nil, badRequest(errMalformed, "file", "could not read the uploaded file")
+				return data.JobMeta{}, badRequest(errMalformed, "file", "could not read the uploaded file")
 			}
 			if part.FormName() != "file" {
 				continue
@@ -444,25 +443,22 @@ func (s *Server) storeUpload(ctx context.Context, body []byte, boundary string) 
 			if err != nil {
 				var fe *screening.FieldError
 				if errors.As(err, &fe) {
-					return nil, nil, err
+					return data.JobMeta{}, err
 				}
-				return nil, nil, &screening.FieldError{Field: "file", Msg: err.Error()}
+				return data.JobMeta{}, &screening.FieldError{Field: "file", Msg: err.Error()}
 			}
 			if in.Count == 0 {
 				msg := "the file holds no readable structures"
 				if len(in.Errors) > 0 {
 					msg += fmt.Sprintf(" (first problem: line %d: %s)", in.Errors[0].Line, in.Errors[0].Msg)
 				}
-				return nil, nil, &screening.FieldError{Field: "file", Msg: msg}
+				return data.JobMeta{}, &screening.FieldError{Field: "file", Msg: msg}
 			}
-			return mustJSON(ci), in.ExtraColumns, nil
+			return data.JobMeta{Conditions: mustJSON(ci), ExtraColumns: in.ExtraColumns, Format: in.Format}, nil
 		}
 	})
 	if err != nil {
 		return data.Job{}, nil, err
-	}
-	if _, err := s.store.DB().ExecContext(ctx, `UPDATE jobs SET source_format = ? WHERE id = ?`, in.Format, job.ID); err == nil {
-		job.SourceFormat = in.Format
 	}
 	return job, in.Errors, nil
 }

@@ -72,15 +72,23 @@ func tsPtr(s string) *time.Time {
 	return &t
 }
 
+// JobMeta is what a job's item producer reports once every item is read.
+type JobMeta struct {
+	Conditions   json.RawMessage
+	ExtraColumns []string // carried-through CSV columns
+	Format       string   // input format (json, smiles, csv, sdf)
+}
+
 // CreateJobStream stores a job whose items are produced by fill, in one transaction: fill calls
-// add for each item as it is read and finally returns the job's conditions and extra columns.
-// Nothing is stored when fill or any insert fails. Items never need to be held in memory at once.
-func (s *Store) CreateJobStream(ctx context.Context, format string, fill func(add func(JobItem) error) (json.RawMessage, []string, error)) (Job, error) {
-	j := Job{ID: newID("job_"), Status: JobQueued, SourceFormat: format}
+// add for each item as it is read and finally returns the job's conditions, extra columns and
+// input format. Nothing is stored when fill or any insert fails. Items never need to be held in
+// memory at once.
+func (s *Store) CreateJobStream(ctx context.Context, fill func(add func(JobItem) error) (JobMeta, error)) (Job, error) {
+	j := Job{ID: newID("job_"), Status: JobQueued}
 	ts := now()
 	err := s.tx(ctx, func(tx *sql.Tx) error {
 		// the job row first (invisible to workers until commit), completed after the items
-		if _, err := tx.ExecContext(ctx, `INSERT INTO jobs (id, status, conditions, total, source_format, created_at) VALUES (?, 'queued', '{}', 0, ?, ?)`, j.ID, format, ts); err != nil {
+		if _, err := tx.ExecContext(ctx, `INSERT INTO jobs (id, status, conditions, total, source_format, created_at) VALUES (?, 'queued', '{}', 0, '', ?)`, j.ID, ts); err != nil {
 			return err
 		}
 		stmt, err := tx.PrepareContext(ctx, `INSERT INTO job_items (job_id, seq, item_id, line, source, extra) VALUES (?, ?, ?, ?, ?, ?)`)
@@ -101,16 +109,17 @@ func (s *Store) CreateJobStream(ctx context.Context, format string, fill func(ad
 			n++
 			return nil
 		}
-		cond, extra, err := fill(add)
+		meta, err := fill(add)
 		if err != nil {
 			return err
 		}
-		if extra == nil {
-			extra = []string{}
+		if meta.ExtraColumns == nil {
+			meta.ExtraColumns = []string{}
 		}
-		ec, _ := json.Marshal(extra)
-		j.Conditions, j.ExtraColumns, j.Total = cond, extra, n
-		_, err = tx.ExecContext(ctx, `UPDATE jobs SET conditions = ?, total = ?, extra_columns = ? WHERE id = ?`, string(cond), n, string(ec), j.ID)
+		ec, _ := json.Marshal(meta.ExtraColumns)
+		j.Conditions, j.ExtraColumns, j.SourceFormat, j.Total = meta.Conditions, meta.ExtraColumns, meta.Format, n
+		_, err = tx.ExecContext(ctx, `UPDATE jobs SET conditions = ?, total = ?, extra_columns = ?, source_format = ? WHERE id = ?`,
+			string(meta.Conditions), n, string(ec), meta.Format, j.ID)
 		return err
 	})
 	if err != nil {

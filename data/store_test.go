@@ -135,13 +135,13 @@ func TestJobsRecordOnceAndCancel(t *testing.T) {
 	ctx := context.Background()
 	s, _ := openTemp(t)
 	items := []JobItem{{ItemID: "a", Source: json.RawMessage(`{"smiles":"C1=CCCC1"}`)}, {ItemID: "b", Source: json.RawMessage(`{"smiles":"C"}`)}}
-	j, err := s.CreateJobStream(ctx, "json", func(add func(JobItem) error) (json.RawMessage, []string, error) {
+	j, err := s.CreateJobStream(ctx, func(add func(JobItem) error) (JobMeta, error) {
 		for _, it := range items {
 			if err := add(it); err != nil {
-				return nil, nil, err
+				return JobMeta{}, err
 			}
 		}
-		return json.RawMessage(`{}`), nil, nil
+		return JobMeta{Conditions: json.RawMessage(`{}`), Format: "json"}, nil
 	})
 	if err != nil {
 		t.Fatal(err)
@@ -176,9 +176,9 @@ func TestJobsRecordOnceAndCancel(t *testing.T) {
 func TestJobStreamRollsBack(t *testing.T) {
 	ctx := context.Background()
 	s, _ := openTemp(t)
-	_, err := s.CreateJobStream(ctx, "json", func(add func(JobItem) error) (json.RawMessage, []string, error) {
+	_, err := s.CreateJobStream(ctx, func(add func(JobItem) error) (JobMeta, error) {
 		add(JobItem{ItemID: "a", Source: json.RawMessage(`{}`)})
-		return nil, nil, errors.New("bad row")
+		return JobMeta{}, errors.New("bad row")
 	})
 	if err == nil {
 		t.Fatal("no error")

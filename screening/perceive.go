@@ -551,15 +551,12 @@ func (p *Perceived) perceiveAromaticity() {
 			}
 			atoms := unionInts(ri.Atoms, rj.Atoms)
 			if huckel(atoms) {
-				var bonds []int
-				for _, b := range append(append([]int(nil), ri.Bonds...), rj.Bonds...) {
-					bonds = append(bonds, b)
-				}
-				mark(atoms, bonds)
+				mark(atoms, ri.Bonds)
+				mark(nil, rj.Bonds)
 			}
 		}
 	}
-	// a bond between two aromatic atoms inside one aromatic ring stays aromatic; others not
+	// the perceived flags replace the written ones
 	for i := range m.Atoms {
 		m.Atoms[i].Aromatic = p.AromaticAtom[i]
 	}

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"math"
 	"os"
+	"regexp"
 	"strconv"
 	"strings"
 	"testing"
@@ -63,35 +64,24 @@ func massTolerance(formula string) float64 {
 	return tol
 }
 
+// countElement returns how many atoms of element el a Hill formula holds (a trailing charge such
+// as "+" or "-2" is ignored).
 func countElement(formula, el string) int {
 	total := 0
-	for i := 0; i < len(formula); {
-		j := i + 1
-		for j < len(formula) && formula[j] >= 'a' && formula[j] <= 'z' {
-			j++
-		}
-		sym := formula[i:j]
-		k := j
-		for k < len(formula) && formula[k] >= '0' && formula[k] <= '9' {
-			k++
+	for _, m := range formulaTerm.FindAllStringSubmatch(formula, -1) {
+		if m[1] != el {
+			continue
 		}
 		n := 1
-		if k > j {
-			n, _ = strconv.Atoi(formula[j:k])
+		if m[2] != "" {
+			n, _ = strconv.Atoi(m[2])
 		}
-		if sym == el {
-			total += n
-		}
-		if k == i+1 && (formula[i] == '+' || formula[i] == '-') {
-			k = i + 1
-		}
-		i = k
-		if i < len(formula) && (formula[i] == '+' || formula[i] == '-') {
-			break
-		}
+		total += n
 	}
 	return total
 }
+
+var formulaTerm = regexp.MustCompile(`([A-Z][a-z]?)([0-9]*)`)
 
 func TestAgainstRDKitReference(t *testing.T) {
 	refs := loadRDKitRefs(t)

@@ -493,9 +493,8 @@ type GasEstimate struct {
 	Terms    []string // names of the monomer-side terms
 	Survive  []string // names of surviving terms
 	Row      *RingRow // whole-system row when the table has the system
-	Notes    []string
-	Spectate int    // spectator terms cancelled
-	Path     string // "monomer terms → surviving terms", for the result's source
+	Spectate int      // spectator terms cancelled
+	Path     string   // "monomer terms → surviving terms", for the result's source
 }
 
 // gasEstimate computes the ring-correction part for opening bond bi of the ring system atoms.
