@@ -6,10 +6,6 @@ import (
 	"fmt"
 	"io"
 	"os"
-	"runtime"
-	"sort"
-	"strings"
-	"sync"
 	"text/tabwriter"
 
 	"github.com/schollz/progressbar/v3"
@@ -17,9 +13,12 @@ import (
 	"golang.org/x/term"
 
 	"ringsieve/screening"
+	"ringsieve/screening/batch"
+	"ringsieve/screening/judge"
+	"ringsieve/screening/units"
 )
 
-// conditionFlags are the conditions flags shared by screen and submit.
+// conditionFlags are the conditions flags shared by screen, submit and plan.
 type conditionFlags struct {
 	tempC    float64
 	concMolL float64
@@ -37,30 +36,23 @@ func (f *conditionFlags) register(cmd *cobra.Command) {
 
 func (f *conditionFlags) conditions() (screening.Conditions, error) {
 	c := screening.DefaultConditions()
-	t, err := screening.TempFromCelsius(f.tempC)
+	t, err := units.TempFromCelsius(f.tempC)
 	if err != nil {
 		return c, fmt.Errorf("--temp-c: %w", err)
 	}
 	c.Temp = t
-	conc, err := screening.NewConcMolL(f.concMolL)
+	conc, err := units.NewConcMolL(f.concMolL)
 	if err != nil {
 		return c, fmt.Errorf("--conc-mol-l: %w", err)
 	}
 	c.Conc = conc
 	c.Bulk = f.bulk
-	cat, err := screening.ParseCatalystClass(f.catalyst)
+	cat, err := units.ParseCatalystClass(f.catalyst)
 	if err != nil {
 		return c, fmt.Errorf("--catalyst: %w", err)
 	}
 	c.Catalyst = cat
 	return c, nil
-}
-
-// ranked is one screened input item.
-type ranked struct {
-	item screening.InputItem
-	res  *screening.Result
-	err  error
 }
 
 func isTerminal(w io.Writer) bool {
@@ -77,8 +69,7 @@ func openInput(cmd *cobra.Command, name string) (io.ReadCloser, error) {
 
 func screenCmd() *cobra.Command {
 	var cf conditionFlags
-	var format, inFormat, idField, verdicts, compatible string
-	var minCeilingC float64
+	var format, inFormat, idField, verdicts, compatible, minCeilingC string
 	var cmpTemp, cmpConc float64
 	var cmpCatalyst string
 	cmd := &cobra.Command{
@@ -103,19 +94,9 @@ func screenCmd() *cobra.Command {
 			if format != "csv" && format != "jsonl" && format != "table" {
 				return fmt.Errorf("--format must be csv, jsonl or table")
 			}
-			keep, err := verdictSet(verdicts)
+			filter, err := batch.ParseFilter(verdicts, compatible, minCeilingC)
 			if err != nil {
-				return err
-			}
-			filter := screening.ResultFilter{Verdicts: keep}
-			if compatible != "" {
-				if filter.Compatible, err = screening.ParseCatalystClass(compatible); err != nil {
-					return fmt.Errorf("--compatible-with: %w", err)
-				}
-			}
-			if cmd.Flags().Changed("min-ceiling-c") {
-				k := minCeilingC + screening.ZeroCelsiusK
-				filter.MinCeilingK = &k
+				return fmt.Errorf("--%s", err)
 			}
 			compare := cmd.Flags().Changed("compare-temp-c") || cmd.Flags().Changed("compare-conc-mol-l") || cmd.Flags().Changed("compare-catalyst")
 			var condB screening.Conditions
@@ -139,7 +120,7 @@ func screenCmd() *cobra.Command {
 				return err
 			}
 			defer f.Close()
-			in, err := screening.ReadInput(f, inFormat, idField, 0)
+			in, err := batch.ReadInput(f, inFormat, idField, 0)
 			if err != nil {
 				return err
 			}
@@ -152,14 +133,12 @@ func screenCmd() *cobra.Command {
 					progressbar.OptionSetDescription("screening"), progressbar.OptionShowCount(), progressbar.OptionThrottle(100*1e6),
 					progressbar.OptionClearOnFinish())
 			}
-			rs := screenAll(in.Items, cond, bar)
-			rankAll(rs)
+			rs := screenAll(cmd, in.Items, cond, bar)
 			if compare {
-				rb := screenAll(in.Items, condB, nil)
-				rankAll(rb)
-				return writeCompared(out, format, rs, rb, cond, condB)
+				rb := screenAll(cmd, in.Items, condB, nil)
+				return writeCompared(out, format, in.Items, rs, rb, cond, condB)
 			}
-			return writeRanked(out, format, rs, in.ExtraColumns, filter)
+			return writeRanked(out, format, in.Items, rs, in.ExtraColumns, filter)
 		},
 	}
 	cf.register(cmd)
@@ -169,100 +148,46 @@ func screenCmd() *cobra.Command {
 	fl.StringVar(&idField, "id-field", "", "SDF data field (or CSV column) that holds the id")
 	fl.StringVar(&verdicts, "verdict", "", "comma-separated verdicts to keep (e.g. polymerizes,equilibrium_limited)")
 	fl.StringVar(&compatible, "compatible-with", "", "keep monomers this catalyst class tolerates (tolerated or conditional)")
-	fl.Float64Var(&minCeilingC, "min-ceiling-c", 0, "keep monomers whose ceiling temperature is at least this, °C (the top of your working window)")
+	fl.StringVar(&minCeilingC, "min-ceiling-c", "", "keep monomers whose ceiling temperature is at least this, °C (the top of your working window)")
 	fl.Float64Var(&cmpTemp, "compare-temp-c", 0, "also screen at this temperature (°C) and print both side by side")
 	fl.Float64Var(&cmpConc, "compare-conc-mol-l", 0, "also screen at this concentration (mol/L) and print both side by side")
 	fl.StringVar(&cmpCatalyst, "compare-catalyst", "", "also screen with this catalyst class and print both side by side")
 	return cmd
 }
 
-func verdictSet(s string) (map[string]bool, error) {
-	keep := map[string]bool{}
-	if s == "" {
-		return keep, nil
-	}
-	valid := map[string]bool{screening.VerdictPolymerizes: true, screening.VerdictEquilibrium: true, screening.VerdictUnfavorable: true,
-		screening.VerdictBlocked: true, screening.VerdictNotMonomer: true}
-	for _, v := range strings.Split(s, ",") {
-		v = strings.TrimSpace(v)
-		if !valid[v] {
-			return nil, fmt.Errorf("--verdict: unknown verdict %q", v)
+// screenAll screens items on every core and returns them ranked.
+func screenAll(cmd *cobra.Command, items []batch.InputItem, cond screening.Conditions, bar *progressbar.ProgressBar) []batch.Row {
+	rows := make([]batch.Row, len(items))
+	batch.Map(cmd.Context(), len(items), 0, func(i int) {
+		r, err := batch.ScreenItem(items[i], cond)
+		rows[i] = batch.NewRow(i, r, err)
+		if bar != nil {
+			bar.Add(1)
 		}
-		keep[v] = true
-	}
-	return keep, nil
-}
-
-// screenAll screens items on every core, keeping input order.
-func screenAll(items []screening.InputItem, cond screening.Conditions, bar *progressbar.ProgressBar) []ranked {
-	rs := make([]ranked, len(items))
-	next := make(chan int, 256)
-	var wg sync.WaitGroup
-	for w := 0; w < runtime.NumCPU(); w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range next {
-				r, err := screening.ScreenItem(items[i], cond)
-				rs[i] = ranked{item: items[i], err: err}
-				if err == nil {
-					rs[i].res = &r
-				}
-				if bar != nil {
-					bar.Add(1)
-				}
-			}
-		}()
-	}
-	for i := range items {
-		next <- i
-	}
-	close(next)
-	wg.Wait()
+	})
 	if bar != nil {
 		bar.Finish()
 	}
-	return rs
+	batch.Rank(rows)
+	return rows
 }
 
-// rankAll orders screened items by score descending, then ΔG_p, then input order; failures last.
-func rankAll(rs []ranked) {
-	dg := func(r *screening.Result) float64 {
-		if r.Thermo == nil {
-			return 1e9
-		}
-		return r.Thermo.DGkJmol
-	}
-	sort.SliceStable(rs, func(i, j int) bool {
-		a, b := rs[i].res, rs[j].res
-		if (a == nil) != (b == nil) {
-			return a != nil
-		}
-		if a == nil {
-			return false
-		}
-		if a.Score != b.Score {
-			return a.Score > b.Score
-		}
-		return dg(a) < dg(b)
-	})
-}
-
-func writeRanked(out io.Writer, format string, rs []ranked, extraCols []string, f screening.ResultFilter) error {
-	skip := func(r ranked) bool { return f.Active() && (r.res == nil || !f.Keeps(r.res)) }
+func writeRanked(out io.Writer, format string, items []batch.InputItem, rs []batch.Row, extraCols []string, f batch.ResultFilter) error {
+	skip := func(r batch.Row) bool { return f.Active() && (r.Result == nil || !f.Keeps(r.Result)) }
 	switch format {
 	case "csv":
 		w := csv.NewWriter(out)
-		w.Write(screening.CSVHeader(extraCols))
+		w.Write(batch.CSVHeader(extraCols))
 		for i, r := range rs {
 			if skip(r) {
 				continue
 			}
 			msg := ""
-			if r.err != nil {
-				msg = r.err.Error()
+			if r.Err != nil {
+				msg = r.Err.Error()
 			}
-			w.Write(screening.CSVRow(i+1, r.item.ID, r.item.Line, r.res, msg, r.item.Extra))
+			it := items[r.Seq]
+			w.Write(batch.CSVRow(i+1, it.ID, it.Line, r.Result, msg, it.Extra))
 		}
 		w.Flush()
 		return w.Error()
@@ -272,17 +197,18 @@ func writeRanked(out io.Writer, format string, rs []ranked, extraCols []string, 
 			if skip(r) {
 				continue
 			}
-			row := map[string]any{"rank": i + 1, "id": r.item.ID, "line": r.item.Line}
-			if r.err != nil {
-				row["error"] = r.err.Error()
+			it := items[r.Seq]
+			row := map[string]any{"rank": i + 1, "id": it.ID, "line": it.Line}
+			if r.Err != nil {
+				row["error"] = r.Err.Error()
 			} else {
-				row["result"] = r.res
+				row["result"] = r.Result
 			}
 			if len(extraCols) > 0 {
 				ex := map[string]string{}
 				for k, c := range extraCols {
-					if k < len(r.item.Extra) {
-						ex[c] = r.item.Extra[k]
+					if k < len(it.Extra) {
+						ex[c] = it.Extra[k]
 					}
 				}
 				row["extra"] = ex
@@ -299,13 +225,14 @@ func writeRanked(out io.Writer, format string, rs []ranked, extraCols []string, 
 			if skip(r) {
 				continue
 			}
-			if r.err != nil {
-				fmt.Fprintf(tw, "%d\t%s\terror\t\t\t\t\t%s\n", i+1, r.item.ID, r.err)
+			id := items[r.Seq].ID
+			if r.Err != nil {
+				fmt.Fprintf(tw, "%d\t%s\terror\t\t\t\t\t%s\n", i+1, id, r.Err)
 				continue
 			}
 			dh, tc, x := "", "", ""
-			if t := r.res.Thermo; t != nil {
-				dh = fmt.Sprintf("%.1f ± %.1f", t.DHkJmol, t.DHUncKJmol)
+			if t := r.Result.Thermo; t != nil {
+				dh = fmt.Sprintf("%.1f ± %.1f", t.DHkJmol, t.DHUncertaintyKJmol)
 				if t.CeilingTempK != nil {
 					tc = fmt.Sprintf("%.0f", *t.CeilingTempK)
 				} else {
@@ -313,26 +240,26 @@ func writeRanked(out io.Writer, format string, rs []ranked, extraCols []string, 
 				}
 				x = fmt.Sprintf("%.3f", t.EqConversion)
 			}
-			fmt.Fprintf(tw, "%d\t%s\t%s\t%.3f\t%s\t%s\t%s\t%s\n", i+1, r.item.ID, r.res.Verdict, r.res.Score, dh, tc, x, screening.MainReasons(r.res))
+			fmt.Fprintf(tw, "%d\t%s\t%s\t%.3f\t%s\t%s\t%s\t%s\n", i+1, id, r.Result.Verdict, r.Result.Score, dh, tc, x, judge.MainReasons(r.Result))
 		}
 		return tw.Flush()
 	}
 }
 
 // writeCompared prints one list under two condition sets side by side, in the order of set A.
-func writeCompared(out io.Writer, format string, a, b []ranked, ca, cb screening.Conditions) error {
-	rankB := make(map[int]int, len(b)) // input line -> rank under B
-	resB := make(map[int]*ranked, len(b))
+func writeCompared(out io.Writer, format string, items []batch.InputItem, a, b []batch.Row, ca, cb screening.Conditions) error {
+	rankB := make([]int, len(items)) // item sequence -> rank under B
+	resB := make([]*batch.Row, len(items))
 	for i := range b {
-		rankB[b[i].item.Line] = i + 1
-		resB[b[i].item.Line] = &b[i]
+		rankB[b[i].Seq] = i + 1
+		resB[b[i].Seq] = &b[i]
 	}
-	cell := func(r *ranked) (verdict, score, conv, tc string) {
-		if r == nil || r.res == nil {
+	cell := func(r *batch.Row) (verdict, score, conv, tc string) {
+		if r == nil || r.Result == nil {
 			return "error", "", "", ""
 		}
-		verdict, score = r.res.Verdict, fmt.Sprintf("%.4f", r.res.Score)
-		if t := r.res.Thermo; t != nil {
+		verdict, score = r.Result.Verdict, fmt.Sprintf("%.4f", r.Result.Score)
+		if t := r.Result.Thermo; t != nil {
 			conv = fmt.Sprintf("%.4f", t.EqConversion)
 			if t.CeilingTempK != nil {
 				tc = fmt.Sprintf("%.1f", *t.CeilingTempK)
@@ -347,8 +274,8 @@ func writeCompared(out io.Writer, format string, a, b []ranked, ca, cb screening
 	case "jsonl":
 		enc := json.NewEncoder(out)
 		for i := range a {
-			rb := resB[a[i].item.Line]
-			row := map[string]any{"id": a[i].item.ID, "a": map[string]any{"conditions": label(ca), "rank": i + 1, "result": a[i].res}, "b": map[string]any{"conditions": label(cb), "rank": rankB[a[i].item.Line], "result": rb.res}}
+			rb := resB[a[i].Seq]
+			row := map[string]any{"id": items[a[i].Seq].ID, "a": map[string]any{"conditions": label(ca), "rank": i + 1, "result": a[i].Result}, "b": map[string]any{"conditions": label(cb), "rank": rankB[a[i].Seq], "result": rb.Result}}
 			if err := enc.Encode(row); err != nil {
 				return err
 			}
@@ -358,10 +285,10 @@ func writeCompared(out io.Writer, format string, a, b []ranked, ca, cb screening
 		w := csv.NewWriter(out)
 		w.Write([]string{"id", "rank_a", "verdict_a", "score_a", "eq_conversion_a", "ceiling_temp_k_a", "rank_b", "verdict_b", "score_b", "eq_conversion_b", "ceiling_temp_k_b", "verdict_changes"})
 		for i := range a {
-			rb := resB[a[i].item.Line]
+			rb := resB[a[i].Seq]
 			va, sa, xa, ta := cell(&a[i])
 			vb, sb, xb, tb := cell(rb)
-			w.Write([]string{a[i].item.ID, fmt.Sprint(i + 1), va, sa, xa, ta, fmt.Sprint(rankB[a[i].item.Line]), vb, sb, xb, tb, fmt.Sprint(va != vb)})
+			w.Write([]string{items[a[i].Seq].ID, fmt.Sprint(i + 1), va, sa, xa, ta, fmt.Sprint(rankB[a[i].Seq]), vb, sb, xb, tb, fmt.Sprint(va != vb)})
 		}
 		w.Flush()
 		return w.Error()
@@ -370,14 +297,14 @@ func writeCompared(out io.Writer, format string, a, b []ranked, ca, cb screening
 		fmt.Fprintf(tw, "ID\tA: %s\t\t\tB: %s\t\t\tCHANGE\n", label(ca), label(cb))
 		fmt.Fprintln(tw, "\tRANK\tVERDICT\tX_eq\tRANK\tVERDICT\tX_eq\t")
 		for i := range a {
-			rb := resB[a[i].item.Line]
+			rb := resB[a[i].Seq]
 			va, _, xa, _ := cell(&a[i])
 			vb, _, xb, _ := cell(rb)
 			ch := ""
 			if va != vb {
 				ch = "verdict changes"
 			}
-			fmt.Fprintf(tw, "%s\t%d\t%s\t%s\t%d\t%s\t%s\t%s\n", a[i].item.ID, i+1, va, xa, rankB[a[i].item.Line], vb, xb, ch)
+			fmt.Fprintf(tw, "%s\t%d\t%s\t%s\t%d\t%s\t%s\t%s\n", items[a[i].Seq].ID, i+1, va, xa, rankB[a[i].Seq], vb, xb, ch)
 		}
 		return tw.Flush()
 	}

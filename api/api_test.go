@@ -15,6 +15,7 @@ import (
 	"time"
 
 	"ringsieve/data"
+	"ringsieve/screening/batch"
 )
 
 func newTestServer(t *testing.T, cfg Config) (*httptest.Server, *Server) {
@@ -272,7 +273,7 @@ func waitJob(t *testing.T, ts *httptest.Server, id string) JobStatus {
 	for time.Now().Before(deadline) {
 		var st JobStatus
 		do(t, ts, "GET", "/v1/jobs/"+id, "").json(t, &st)
-		if st.Status == data.JobDone || st.Status == data.JobFailed || st.Status == data.JobCanceled {
+		if st.Status == batch.JobDone || st.Status == batch.JobFailed || st.Status == batch.JobCanceled {
 			return st
 		}
 		time.Sleep(50 * time.Millisecond)
@@ -299,7 +300,7 @@ func TestJobsJSONUploadIdempotencyAndFormats(t *testing.T) {
 		t.Errorf("reused key with another body: %d", r.status)
 	}
 	st := waitJob(t, ts, c1.ID)
-	if st.Status != data.JobDone || st.Done != 3 || st.Failed != 1 || st.Percent != 100 {
+	if st.Status != batch.JobDone || st.Done != 3 || st.Failed != 1 || st.Percent != 100 {
 		t.Fatalf("job status %+v", st)
 	}
 	var res JobResults

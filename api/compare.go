@@ -7,6 +7,8 @@ import (
 	"github.com/gin-gonic/gin"
 
 	"ringsieve/screening"
+	"ringsieve/screening/judge"
+	"ringsieve/screening/units"
 )
 
 // CompareRequest screens one list under two condition sets.
@@ -46,7 +48,7 @@ type CompareResponse struct {
 func side(r BatchResult) CompareSide {
 	s := CompareSide{Rank: r.Rank, Error: r.Error}
 	if r.Result != nil {
-		s.Verdict, s.Score, s.MainReasons = r.Verdict, r.Score, screening.MainReasons(r.Result)
+		s.Verdict, s.Score, s.MainReasons = r.Verdict, r.Score, judge.MainReasons(r.Result)
 		if t := r.Thermo; t != nil {
 			dg, x := t.DGkJmol, t.EqConversion
 			s.DGkJmol, s.EqConversion, s.CeilingTempK = &dg, &x, t.CeilingTempK
@@ -75,12 +77,12 @@ func (s *Server) compare(c *gin.Context) {
 	}
 	ca, err := req.ConditionsA.toConditions()
 	if err != nil {
-		fail(c, prefixField(err, "conditions_a."))
+		fail(c, units.PrefixField(err, "conditions_a."))
 		return
 	}
 	cb, err := req.ConditionsB.toConditions()
 	if err != nil {
-		fail(c, prefixField(err, "conditions_b."))
+		fail(c, units.PrefixField(err, "conditions_b."))
 		return
 	}
 	if len(req.Items) == 0 || len(req.Items) > s.cfg.BatchLimit {
@@ -89,13 +91,11 @@ func (s *Server) compare(c *gin.Context) {
 	}
 	a := s.screenItems(c.Request.Context(), req.Items, ca)
 	b := s.screenItems(c.Request.Context(), req.Items, cb)
-	rankResults(a)
-	rankResults(b)
 	bySeq := make(map[int]BatchResult, len(b))
 	for _, r := range b {
 		bySeq[r.seq] = r
 	}
-	resp := CompareResponse{ConditionsA: conditionsOut(ca), ConditionsB: conditionsOut(cb)}
+	resp := CompareResponse{ConditionsA: judge.OutOf(ca), ConditionsB: judge.OutOf(cb)}
 	for _, r := range a {
 		rb := bySeq[r.seq]
 		row := CompareRow{ID: r.ID, A: side(r), B: side(rb)}
@@ -103,8 +103,4 @@ func (s *Server) compare(c *gin.Context) {
 		resp.Rows = append(resp.Rows, row)
 	}
 	c.JSON(http.StatusOK, resp)
-}
-
-func conditionsOut(c screening.Conditions) screening.ConditionsOut {
-	return screening.ConditionsOut{TemperatureC: c.Temp.Celsius(), TemperatureK: float64(c.Temp), MonomerConcMolL: float64(c.Conc), Bulk: c.Bulk, Catalyst: string(c.Catalyst)}
 }

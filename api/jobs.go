@@ -3,9 +3,7 @@ package api
 import (
 	"bytes"
 	"context"
-	"crypto/sha256"
 	"encoding/csv"
-	"encoding/hex"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -14,239 +12,56 @@ import (
 	"mime"
 	"mime/multipart"
 	"net/http"
-	"runtime"
-	"sort"
 	"strconv"
 	"strings"
-	"sync"
 	"time"
 
 	"github.com/gin-gonic/gin"
 
 	"ringsieve/data"
 	"ringsieve/screening"
+	"ringsieve/screening/batch"
 )
-
-// jobSource is the stored form of one job item's monomer.
-type jobSource struct {
-	SMILES      string                 `json:"smiles,omitempty"`
-	Molfile     string                 `json:"molfile,omitempty"`
-	Descriptors *screening.Descriptors `json:"descriptors,omitempty"`
-	MonomerID   string                 `json:"monomer_id,omitempty"`
-}
-
-// jobRunner screens queued jobs with a bounded pool of workers; one job at a time, items in
-// chunks, each chunk's outcomes written in one transaction.
-type jobRunner struct {
-	s       *Server
-	workers int
-	wake    chan struct{}
-	wg      sync.WaitGroup
-}
-
-const jobChunk = 1024
-
-func newJobRunner(s *Server) *jobRunner {
-	n := s.cfg.Workers
-	if n <= 0 {
-		n = runtime.NumCPU()
-	}
-	return &jobRunner{s: s, workers: n, wake: make(chan struct{}, 1)}
-}
-
-func (r *jobRunner) notify() {
-	select {
-	case r.wake <- struct{}{}:
-	default:
-	}
-}
-
-func (r *jobRunner) start(ctx context.Context) error {
-	r.wg.Add(1)
-	go func() {
-		defer r.wg.Done()
-		r.loop(ctx)
-	}()
-	return nil
-}
-
-func (r *jobRunner) wait() { r.wg.Wait() }
-
-func (r *jobRunner) loop(ctx context.Context) {
-	tick := time.NewTicker(2 * time.Second)
-	defer tick.Stop()
-	for {
-		if n, err := r.s.store.CountActiveJobs(ctx); err == nil {
-			r.s.metrics.queue.Set(float64(n))
-		}
-		job, err := r.s.store.NextRunnableJob(ctx)
-		if err == nil {
-			r.process(ctx, job)
-			continue
-		}
-		if !errors.Is(err, data.ErrNotFound) && ctx.Err() == nil {
-			r.s.log.Error("job queue", "err", err)
-		}
-		select {
-		case <-ctx.Done():
-			return
-		case <-r.wake:
-		case <-tick.C:
-		}
-	}
-}
-
-// process screens the pending items of a job. On shutdown it returns with the job still
-// running; the next start resumes from the first pending item, and items already recorded are
-// never screened or counted twice.
-func (r *jobRunner) process(ctx context.Context, job data.Job) {
-	log := r.s.log.With("job", job.ID)
-	if err := r.s.store.MarkJobRunning(ctx, job.ID); err != nil {
-		log.Error("start job", "err", err)
-		return
-	}
-	var ci ConditionsIn
-	if err := json.Unmarshal(job.Conditions, &ci); err != nil {
-		r.s.store.FinishJob(ctx, job.ID, data.JobFailed, "stored conditions unreadable")
-		return
-	}
-	cond, err := ci.toConditions()
-	if err != nil {
-		r.s.store.FinishJob(ctx, job.ID, data.JobFailed, err.Error())
-		return
-	}
-	after := -1
-	for ctx.Err() == nil {
-		items, err := r.s.store.PendingItems(ctx, job.ID, after, jobChunk)
-		if err != nil {
-			if ctx.Err() == nil {
-				log.Error("read items", "err", err)
-				r.s.store.FinishJob(context.Background(), job.ID, data.JobFailed, "could not read the job's items")
-			}
-			return
-		}
-		if len(items) == 0 {
-			break
-		}
-		outs := r.screenChunk(ctx, items, cond)
-		if ctx.Err() != nil {
-			return // shutting down: this chunk is not recorded and will be redone
-		}
-		status, err := r.s.store.RecordOutcomes(context.Background(), job.ID, outs)
-		if err != nil {
-			log.Error("record outcomes", "err", err)
-			return
-		}
-		r.s.metrics.jobItems.Add(float64(len(outs)))
-		if status == data.JobCanceled {
-			log.Info("job canceled")
-			return
-		}
-		after = items[len(items)-1].Seq
-	}
-	if ctx.Err() != nil {
-		return
-	}
-	if err := r.s.store.FinishJob(ctx, job.ID, data.JobDone, ""); err != nil {
-		log.Error("finish job", "err", err)
-	}
-}
-
-func (r *jobRunner) screenChunk(ctx context.Context, items []data.JobItem, cond screening.Conditions) []data.ItemOutcome {
-	outs := make([]data.ItemOutcome, len(items))
-	var wg sync.WaitGroup
-	next := make(chan int)
-	for w := 0; w < r.workers; w++ {
-		wg.Add(1)
-		go func() {
-			defer wg.Done()
-			for i := range next {
-				outs[i] = r.screenOne(ctx, i, items[i], cond)
-			}
-		}()
-	}
-	for i := range items {
-		next <- i
-	}
-	close(next)
-	wg.Wait()
-	return outs
-}
-
-func (r *jobRunner) screenOne(ctx context.Context, i int, it data.JobItem, cond screening.Conditions) (out data.ItemOutcome) {
-	out.Seq = it.Seq
-	defer func() {
-		if v := recover(); v != nil {
-			r.s.log.Error("panic screening job item", "seq", it.Seq, "panic", fmt.Sprint(v))
-			p := problemFor(fmt.Errorf("panic"))
-			out.Failed, out.Result = true, mustJSON(p)
-		}
-	}()
-	var src jobSource
-	var res screening.Result
-	err := json.Unmarshal(it.Source, &src)
-	if err == nil {
-		switch {
-		case src.Molfile != "":
-			res, err = screening.ScreenMolfile(src.Molfile, cond)
-			r.s.count(res, err)
-		default:
-			res, err = r.s.screenSource(ctx, MonomerSource{SMILES: src.SMILES, Descriptors: src.Descriptors, MonomerID: src.MonomerID}, cond)
-		}
-	}
-	if err != nil {
-		p := problemFor(err)
-		out.Failed, out.Result = true, mustJSON(p)
-		return out
-	}
-	out.Verdict, out.Score, out.Result = res.Verdict, res.Score, mustJSON(res)
-	if res.Thermo != nil {
-		out.DG = res.Thermo.DGkJmol
-	} else {
-		out.DG = 1e9 // no thermodynamics: after every screened item with a ΔG_p at equal score
-	}
-	return out
-}
-
-func mustJSON(v any) []byte {
-	b, err := json.Marshal(v)
-	if err != nil {
-		b, _ = json.Marshal(Problem{Type: problemBase + "internal", Title: "Internal error", Status: 500, Detail: "result could not be encoded"})
-	}
-	return b
-}
 
 // JobCreated is the 202 answer to a job submission.
 type JobCreated struct {
-	ID          string                 `json:"id"`
-	Status      string                 `json:"status"`
-	Total       int                    `json:"total"`
-	InputErrors []screening.InputError `json:"input_errors"`
-	StatusURL   string                 `json:"status_url"`
-	ResultsURL  string                 `json:"results_url"`
+	ID          string             `json:"id"`
+	Status      string             `json:"status"`
+	Total       int                `json:"total"`
+	InputErrors []batch.InputError `json:"input_errors"`
+	StatusURL   string             `json:"status_url"`
+	ResultsURL  string             `json:"results_url"`
+}
+
+func jobCreated(j batch.Job, inErrs []batch.InputError) JobCreated {
+	if inErrs == nil {
+		inErrs = []batch.InputError{}
+	}
+	return JobCreated{ID: j.ID, Status: j.Status, Total: j.Total, InputErrors: inErrs,
+		StatusURL: "/v1/jobs/" + j.ID, ResultsURL: "/v1/jobs/" + j.ID + "/results"}
 }
 
 // JobStatus is a job with progress.
 type JobStatus struct {
-	data.Job
+	batch.Job
 	Percent    float64  `json:"percent"`
 	ETASeconds *float64 `json:"eta_seconds"`
 	ResultsURL string   `json:"results_url"`
 }
 
-func jobStatus(j data.Job) JobStatus {
+func jobStatus(j batch.Job) JobStatus {
 	st := JobStatus{Job: j, ResultsURL: "/v1/jobs/" + j.ID + "/results"}
 	if j.Total > 0 {
 		st.Percent = math.Round(1000*float64(j.Done)/float64(j.Total)) / 10
 	} else {
 		st.Percent = 100
 	}
-	if j.Status == data.JobRunning && j.StartedAt != nil && j.Done > 0 {
+	if j.Status == batch.JobRunning && j.StartedAt != nil && j.Done > 0 {
 		el := time.Since(*j.StartedAt).Seconds()
 		eta := math.Round(el/float64(j.Done)*float64(j.Total-j.Done)*10) / 10
 		st.ETASeconds = &eta
 	}
-	if j.Status == data.JobDone {
+	if j.Status == batch.JobDone {
 		z := 0.0
 		st.ETASeconds = &z
 	}
@@ -269,90 +84,27 @@ func jobStatus(j data.Job) JobStatus {
 //	@Failure		422				{object}	Problem
 //	@Router			/v1/jobs [post]
 func (s *Server) createJob(c *gin.Context) {
-	body, err := readLimited(c, s.cfg.MaxFileBytes)
+	body, err := readBody(c)
 	if err != nil {
 		fail(c, err)
 		return
-	}
-	idem := c.GetHeader("Idempotency-Key")
-	hash := s.requestHash(c.GetHeader("Content-Type"), body)
-	if idem != "" {
-		s.idemMu.Lock()
-		defer s.idemMu.Unlock()
-		if s.replayed(c, "POST /v1/jobs", idem, hash) {
-			return
-		}
 	}
 	job, inErrs, err := s.storeJobBody(c, body)
 	if err != nil {
 		fail(c, err)
 		return
 	}
-	s.jobs.notify()
-	if inErrs == nil {
-		inErrs = []screening.InputError{}
-	}
-	resp := JobCreated{ID: job.ID, Status: job.Status, Total: job.Total, InputErrors: inErrs,
-		StatusURL: "/v1/jobs/" + job.ID, ResultsURL: "/v1/jobs/" + job.ID + "/results"}
-	b := mustJSON(resp)
-	if idem != "" {
-		if err := s.store.SaveIdempotent(c.Request.Context(), "POST /v1/jobs", idem, hash, http.StatusAccepted, b); err != nil {
-			s.log.Error("save idempotency record", "err", err)
-		}
+	if s.runner != nil {
+		s.runner.Notify()
 	}
 	c.Header("Location", "/v1/jobs/"+job.ID)
-	c.Data(http.StatusAccepted, "application/json", b)
-}
-
-// requestHash identifies a submission's content for Idempotency-Key checks: the raw body for
-// JSON; for multipart uploads the form fields and file contents, so that the random multipart
-// boundary of a retried upload does not make it look different.
-func (s *Server) requestHash(contentType string, body []byte) string {
-	h := sha256.New()
-	ct, params, _ := mime.ParseMediaType(contentType)
-	if ct == "multipart/form-data" && params["boundary"] != "" {
-		mr := multipart.NewReader(bytes.NewReader(body), params["boundary"])
-		var parts []string // one digest per part, sorted: field order does not matter
-		for {
-			part, err := mr.NextPart()
-			if err != nil {
-				break
-			}
-			ph := sha256.New()
-			fmt.Fprintf(ph, "%s\x00%s\x00", part.FormName(), part.FileName())
-			io.Copy(ph, part)
-			parts = append(parts, hex.EncodeToString(ph.Sum(nil)))
-		}
-		sort.Strings(parts)
-		for _, p := range parts {
-			h.Write([]byte(p))
-		}
-		return "multipart:" + hex.EncodeToString(h.Sum(nil))
-	}
-	h.Write([]byte(ct + "\n"))
-	h.Write(body)
-	return hex.EncodeToString(h.Sum(nil))
-}
-
-func readLimited(c *gin.Context, limit int64) ([]byte, error) {
-	if c.Request.ContentLength > limit {
-		return nil, badRequest(errTooLarge, "", fmt.Sprintf("request body exceeds %d bytes", limit))
-	}
-	b, err := io.ReadAll(http.MaxBytesReader(c.Writer, c.Request.Body, limit))
-	if err != nil {
-		var mbe *http.MaxBytesError
-		if errors.As(err, &mbe) {
-			return nil, badRequest(errTooLarge, "", fmt.Sprintf("request body exceeds %d bytes", limit))
-		}
-		return nil, badRequest(errMalformed, "", "could not read the request body")
-	}
-	return b, nil
+	c.JSON(http.StatusAccepted, jobCreated(job, inErrs))
 }
 
 // storeJobBody stores a JSON batch or a multipart upload as a job. Upload items go to the
 // database as they are read (one transaction), so memory does not grow with the item count
 // beyond the raw request body.
-func (s *Server) storeJobBody(c *gin.Context, body []byte) (data.Job, []screening.InputError, error) {
+func (s *Server) storeJobBody(c *gin.Context, body []byte) (batch.Job, []batch.InputError, error) {
 	ctx := c.Request.Context()
 	ct, params, _ := mime.ParseMediaType(c.GetHeader("Content-Type"))
 	if ct == "multipart/form-data" {
@@ -360,32 +112,29 @@ func (s *Server) storeJobBody(c *gin.Context, body []byte) (data.Job, []screenin
 	}
 	var req BatchRequest
 	if err := decodeJSONBytes(body, &req); err != nil {
-		return data.Job{}, nil, err
+		return batch.Job{}, nil, err
 	}
-	if _, err := req.Conditions.toConditions(); err != nil {
-		return data.Job{}, nil, err
+	cond, err := req.Conditions.toConditions()
+	if err != nil {
+		return batch.Job{}, nil, err
 	}
 	if len(req.Items) == 0 {
-		return data.Job{}, nil, &screening.FieldError{Field: "items", Msg: "give at least one item"}
+		return batch.Job{}, nil, &screening.FieldError{Field: "items", Msg: "give at least one item"}
 	}
 	if len(req.Items) > s.cfg.JobLimit {
-		return data.Job{}, nil, &screening.FieldError{Field: "items", Msg: fmt.Sprintf("at most %d items per job", s.cfg.JobLimit)}
+		return batch.Job{}, nil, &screening.FieldError{Field: "items", Msg: fmt.Sprintf("at most %d items per job", s.cfg.JobLimit)}
 	}
-	cj := mustJSON(req.Conditions)
-	if req.Conditions == nil {
-		cj = []byte("{}")
-	}
-	job, err := s.store.CreateJobStream(ctx, func(add func(data.JobItem) error) (data.JobMeta, error) {
+	job, err := s.store.CreateJob(ctx, 0, func(add func(data.JobInput) error) (data.JobMeta, error) {
 		for i, it := range req.Items {
 			id := it.ID
 			if id == "" {
 				id = strconv.Itoa(i + 1)
 			}
-			if err := add(data.JobItem{ItemID: id, Source: mustJSON(jobSource{SMILES: it.SMILES, Descriptors: it.Descriptors, MonomerID: it.MonomerID})}); err != nil {
+			if err := add(data.JobInput{ItemID: id, Source: batch.ItemSource{SMILES: it.SMILES, Descriptors: it.Descriptors, MonomerID: it.MonomerID}}); err != nil {
 				return data.JobMeta{}, err
 			}
 		}
-		return data.JobMeta{Conditions: cj, Format: "json"}, nil
+		return data.JobMeta{Conditions: batch.EffectiveConditions(cond), Format: "json"}, nil
 	})
 	return job, nil, err
 }
@@ -393,9 +142,9 @@ func (s *Server) storeJobBody(c *gin.Context, body []byte) (data.Job, []screenin
 // storeUpload streams a multipart upload: form fields (conditions, format, id_field) and one
 // file part. Fields may come before or after the file; they are validated before the
 // transaction commits.
-func (s *Server) storeUpload(ctx context.Context, body []byte, boundary string) (data.Job, []screening.InputError, error) {
+func (s *Server) storeUpload(ctx context.Context, body []byte, boundary string) (batch.Job, []batch.InputError, error) {
 	if boundary == "" {
-		return data.Job{}, nil, badRequest(errMalformed, "", "multipart body without a boundary")
+		return batch.Job{}, nil, badRequest(errMalformed, "", "multipart body without a boundary")
 	}
 	// fields first: a cheap pass over the parts that skips the file's content
 	vals := map[string]string{}
@@ -407,7 +156,7 @@ func (s *Server) storeUpload(ctx context.Context, body []byte, boundary string) 
 			break
 		}
 		if err != nil {
-			return data.Job{}, nil, badRequest(errMalformed, "", "malformed multipart body: "+err.Error())
+			return batch.Job{}, nil, badRequest(errMalformed, "", "malformed multipart body: "+err.Error())
 		}
 		if part.FormName() == "file" {
 			files++
@@ -415,19 +164,19 @@ func (s *Server) storeUpload(ctx context.Context, body []byte, boundary string) 
 		}
 		b, err := io.ReadAll(io.LimitReader(part, 4096))
 		if err != nil {
-			return data.Job{}, nil, badRequest(errMalformed, "", "malformed multipart body: "+err.Error())
+			return batch.Job{}, nil, badRequest(errMalformed, "", "malformed multipart body: "+err.Error())
 		}
 		vals[part.FormName()] = strings.TrimSpace(string(b))
 	}
 	if files != 1 {
-		return data.Job{}, nil, &screening.FieldError{Field: "file", Msg: "upload exactly one file in the field \"file\""}
+		return batch.Job{}, nil, &screening.FieldError{Field: "file", Msg: "upload exactly one file in the field \"file\""}
 	}
-	ci, err := uploadConditions(vals)
+	cond, err := uploadConditions(vals)
 	if err != nil {
-		return data.Job{}, nil, err
+		return batch.Job{}, nil, err
 	}
-	var in *screening.Input
-	job, err := s.store.CreateJobStream(ctx, func(add func(data.JobItem) error) (data.JobMeta, error) {
+	var in *batch.Input
+	job, err := s.store.CreateJob(ctx, 0, func(add func(data.JobInput) error) (data.JobMeta, error) {
 		mr := multipart.NewReader(bytes.NewReader(body), boundary)
 		for {
 			part, err := mr.NextPart()
@@ -437,8 +186,8 @@ func (s *Server) storeUpload(ctx context.Context, body []byte, boundary string) 
 			if part.FormName() != "file" {
 				continue
 			}
-			in, err = screening.ScanInput(part, vals["format"], vals["id_field"], s.cfg.JobLimit, func(it screening.InputItem) error {
-				return add(data.JobItem{ItemID: it.ID, Line: it.Line, Extra: it.Extra, Source: mustJSON(jobSource{SMILES: it.SMILES, Molfile: it.Molfile})})
+			in, err = batch.ScanInput(part, vals["format"], vals["id_field"], s.cfg.JobLimit, func(it batch.InputItem) error {
+				return add(data.JobInput{ItemID: it.ID, Line: it.Line, Extra: it.Extra, Source: batch.ItemSource{SMILES: it.SMILES, Molfile: it.Molfile}})
 			})
 			if err != nil {
 				var fe *screening.FieldError
@@ -454,17 +203,17 @@ func (s *Server) storeUpload(ctx context.Context, body []byte, boundary string) 
 				}
 				return data.JobMeta{}, &screening.FieldError{Field: "file", Msg: msg}
 			}
-			return data.JobMeta{Conditions: mustJSON(ci), ExtraColumns: in.ExtraColumns, Format: in.Format}, nil
+			return data.JobMeta{Conditions: batch.EffectiveConditions(cond), ExtraColumns: in.ExtraColumns, Format: in.Format}, nil
 		}
 	})
 	if err != nil {
-		return data.Job{}, nil, err
+		return batch.Job{}, nil, err
 	}
 	return job, in.Errors, nil
 }
 
 // uploadConditions reads the conditions of a multipart upload from its form fields.
-func uploadConditions(vals map[string]string) (ConditionsIn, error) {
+func uploadConditions(vals map[string]string) (screening.Conditions, error) {
 	var ci ConditionsIn
 	for _, k := range []string{"temperature_c", "temperature_k", "monomer_conc_mol_l"} {
 		v := vals[k]
@@ -473,7 +222,7 @@ func uploadConditions(vals map[string]string) (ConditionsIn, error) {
 		}
 		f, err := strconv.ParseFloat(v, 64)
 		if err != nil || math.IsNaN(f) || math.IsInf(f, 0) {
-			return ci, &screening.FieldError{Field: k, Msg: "must be a finite number"}
+			return screening.Conditions{}, &screening.FieldError{Field: k, Msg: "must be a finite number"}
 		}
 		switch k {
 		case "temperature_c":
@@ -487,13 +236,12 @@ func uploadConditions(vals map[string]string) (ConditionsIn, error) {
 	if b := vals["bulk"]; b != "" {
 		v, err := strconv.ParseBool(b)
 		if err != nil {
-			return ci, &screening.FieldError{Field: "bulk", Msg: "must be true or false"}
+			return screening.Conditions{}, &screening.FieldError{Field: "bulk", Msg: "must be true or false"}
 		}
 		ci.Bulk = v
 	}
 	ci.Catalyst = vals["catalyst"]
-	_, err := ci.toConditions()
-	return ci, err
+	return ci.toConditions()
 }
 
 // getJob godoc
@@ -526,10 +274,6 @@ func (s *Server) getJob(c *gin.Context) {
 //	@Router		/v1/jobs/{id} [delete]
 func (s *Server) cancelJob(c *gin.Context) {
 	j, err := s.store.CancelJob(c.Request.Context(), c.Param("id"))
-	if errors.Is(err, data.ErrConflict) {
-		fail(c, badRequest(errJobFinished, "", err.Error()))
-		return
-	}
 	if err != nil {
 		fail(c, err)
 		return
@@ -557,7 +301,7 @@ type JobResults struct {
 	NextOffset *int           `json:"next_offset"`
 }
 
-func resultRow(rank int, it data.JobItem, cols []string) JobResultRow {
+func resultRow(rank int, it data.RankedItem, cols []string) JobResultRow {
 	row := JobResultRow{Rank: rank, ID: it.ItemID, Line: it.Line, State: it.State}
 	if len(cols) > 0 {
 		row.Extra = map[string]string{}
@@ -568,45 +312,38 @@ func resultRow(rank int, it data.JobItem, cols []string) JobResultRow {
 		}
 	}
 	switch it.State {
-	case "done":
+	case batch.ItemDone:
 		row.Result = it.Result
-	case "failed":
-		row.Error = it.Result
+	case batch.ItemFailed:
+		row.Error = itemProblem(it.Result)
 	}
 	return row
 }
 
-// resultFilterFrom reads the ranking filters of a results request.
-func resultFilterFrom(c *gin.Context, verdicts map[string]bool) (screening.ResultFilter, error) {
-	f := screening.ResultFilter{Verdicts: verdicts}
-	if v := c.Query("compatible_with"); v != "" {
-		cat, err := screening.ParseCatalystClass(v)
-		if err != nil {
-			return f, reField(err, "compatible_with")
-		}
-		f.Compatible = cat
+// itemProblem renders a stored item error as a problem (the one error table decides).
+func itemProblem(stored []byte) json.RawMessage {
+	var ie batch.ItemError
+	if err := json.Unmarshal(stored, &ie); err != nil {
+		ie = batch.ItemError{Code: batch.CodeInternal}
 	}
-	if v := c.Query("min_ceiling_c"); v != "" {
-		x, err := strconv.ParseFloat(v, 64)
-		if err != nil || math.IsNaN(x) || math.IsInf(x, 0) {
-			return f, &screening.FieldError{Field: "min_ceiling_c", Msg: "must be a finite number (°C)"}
-		}
-		k := x + screening.ZeroCelsiusK
-		f.MinCeilingK = &k
+	p := problemFor(&ie)
+	b, err := json.Marshal(p)
+	if err != nil {
+		return nil
 	}
-	return f, nil
+	return b
 }
 
 // keepsItem applies a filter to a stored job row (only screened rows can pass).
-func keepsItem(f screening.ResultFilter, it data.JobItem) bool {
-	if it.State != "done" {
-		return false
+func keepsItem(f batch.ResultFilter, it data.RankedItem) (bool, error) {
+	if it.State != batch.ItemDone {
+		return false, nil
 	}
 	var r screening.Result
 	if err := json.Unmarshal(it.Result, &r); err != nil {
-		return false
+		return false, fmt.Errorf("stored result of item %d: %w", it.Seq, err)
 	}
-	return f.Keeps(&r)
+	return f.Keeps(&r), nil
 }
 
 // jobResults godoc
@@ -634,23 +371,19 @@ func (s *Server) jobResults(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	keep := map[string]bool{}
-	if v := c.Query("verdict"); v != "" {
-		for _, x := range strings.Split(v, ",") {
-			x = strings.TrimSpace(x)
-			if screening.VerdictRank(x) == 0 && x != screening.VerdictPolymerizes {
-				fail(c, &screening.FieldError{Field: "verdict", Msg: fmt.Sprintf("unknown verdict %q", x)})
-				return
-			}
-			keep[x] = true
-		}
-	}
-	f, err := resultFilterFrom(c, keep)
+	f, err := batch.ParseFilter(c.Query("verdict"), c.Query("compatible_with"), c.Query("min_ceiling_c"))
 	if err != nil {
 		fail(c, err)
 		return
 	}
-	filtered := func(it data.JobItem) bool { return f.Active() && !keepsItem(f, it) }
+	// skip reports an item the filter removes
+	skip := func(it data.RankedItem) (bool, error) {
+		if !f.Active() {
+			return false, nil
+		}
+		keep, err := keepsItem(f, it)
+		return !keep, err
+	}
 	switch format := c.DefaultQuery("format", "json"); format {
 	case "json":
 		limit, offset, err := pageQuery(c, 500, 5000)
@@ -660,7 +393,7 @@ func (s *Server) jobResults(c *gin.Context) {
 		}
 		out := JobResults{Job: jobStatus(j), Results: []JobResultRow{}, Offset: offset, Limit: limit}
 		if !f.Active() {
-			err = s.store.RankedItems(ctx, j.ID, offset, limit, func(rank int, it data.JobItem) error {
+			err = s.store.RankedItems(ctx, j.ID, offset, limit, func(rank int, it data.RankedItem) error {
 				out.Results = append(out.Results, resultRow(rank, it, j.ExtraColumns))
 				return nil
 			})
@@ -670,9 +403,9 @@ func (s *Server) jobResults(c *gin.Context) {
 			}
 		} else {
 			pos := 0
-			err = s.store.RankedItems(ctx, j.ID, 0, 0, func(rank int, it data.JobItem) error {
-				if filtered(it) {
-					return nil
+			err = s.store.RankedItems(ctx, j.ID, 0, 0, func(rank int, it data.RankedItem) error {
+				if drop, err := skip(it); drop || err != nil {
+					return err
 				}
 				pos++
 				if pos > offset && len(out.Results) < limit {
@@ -694,42 +427,54 @@ func (s *Server) jobResults(c *gin.Context) {
 		c.Header("Content-Disposition", fmt.Sprintf(`attachment; filename="%s.jsonl"`, j.ID))
 		c.Status(http.StatusOK)
 		enc := json.NewEncoder(c.Writer)
-		s.store.RankedItems(ctx, j.ID, 0, 0, func(rank int, it data.JobItem) error {
-			if filtered(it) {
-				return nil
+		err := s.store.RankedItems(ctx, j.ID, 0, 0, func(rank int, it data.RankedItem) error {
+			if drop, err := skip(it); drop || err != nil {
+				return err
 			}
 			return enc.Encode(resultRow(rank, it, j.ExtraColumns))
 		})
+		s.streamError(c, err)
 	case "csv":
 		c.Header("Content-Type", "text/csv; charset=utf-8")
 		c.Header("Content-Disposition", fmt.Sprintf(`attachment; filename="%s.csv"`, j.ID))
 		c.Status(http.StatusOK)
 		w := csv.NewWriter(c.Writer)
-		w.Write(screening.CSVHeader(j.ExtraColumns))
-		s.store.RankedItems(ctx, j.ID, 0, 0, func(rank int, it data.JobItem) error {
-			if filtered(it) {
-				return nil
+		w.Write(batch.CSVHeader(j.ExtraColumns))
+		err := s.store.RankedItems(ctx, j.ID, 0, 0, func(rank int, it data.RankedItem) error {
+			if drop, err := skip(it); drop || err != nil {
+				return err
 			}
 			var row []string
 			switch it.State {
-			case "done":
+			case batch.ItemDone:
 				var r screening.Result
 				if err := json.Unmarshal(it.Result, &r); err != nil {
-					return err
+					return fmt.Errorf("stored result of item %d: %w", it.Seq, err)
 				}
-				row = screening.CSVRow(rank, it.ItemID, it.Line, &r, "", it.Extra)
-			case "failed":
-				var p Problem
-				json.Unmarshal(it.Result, &p)
-				row = screening.CSVRow(rank, it.ItemID, it.Line, nil, p.Detail, it.Extra)
+				row = batch.CSVRow(rank, it.ItemID, it.Line, &r, "", it.Extra)
+			case batch.ItemFailed:
+				var ie batch.ItemError
+				if err := json.Unmarshal(it.Result, &ie); err != nil {
+					return fmt.Errorf("stored error of item %d: %w", it.Seq, err)
+				}
+				row = batch.CSVRow(rank, it.ItemID, it.Line, nil, problemFor(&ie).Detail, it.Extra)
 			default:
-				row = screening.CSVRow(rank, it.ItemID, it.Line, nil, "pending", it.Extra)
+				row = batch.CSVRow(rank, it.ItemID, it.Line, nil, "pending", it.Extra)
 			}
 			w.Write(row)
 			return w.Error()
 		})
 		w.Flush()
+		s.streamError(c, err)
 	default:
 		fail(c, &screening.FieldError{Field: "format", Msg: "must be json, jsonl or csv"})
+	}
+}
+
+// streamError logs an error that ended a streamed download after its status line was sent (the
+// client sees a truncated body; nothing else can be said).
+func (s *Server) streamError(c *gin.Context, err error) {
+	if err != nil && c.Request.Context().Err() == nil {
+		s.log.Error("results download ended early", "err", err, "request_id", c.GetString(ctxRequestID))
 	}
 }

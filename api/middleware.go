@@ -2,14 +2,19 @@ package api
 
 import (
 	"bytes"
+	"context"
 	"crypto/rand"
 	"crypto/sha256"
 	"encoding/hex"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
+	"mime"
+	"mime/multipart"
 	"net/http"
 	"regexp"
+	"sort"
 	"strconv"
 	"strings"
 	"time"
@@ -20,6 +25,7 @@ import (
 	"golang.org/x/time/rate"
 
 	"ringsieve/data"
+	"ringsieve/screening/batch"
 )
 
 const ctxRequestID = "request_id"
@@ -67,16 +73,6 @@ func (s *Server) logRequests(c *gin.Context) {
 	} else {
 		s.log.Debug("request", attrs...)
 	}
-}
-
-// limitBody caps JSON request bodies.
-func (s *Server) limitBody(c *gin.Context) {
-	if c.Request.ContentLength > s.cfg.MaxBodyBytes {
-		fail(c, badRequest(errTooLarge, "", fmt.Sprintf("request body exceeds %d bytes", s.cfg.MaxBodyBytes)))
-		return
-	}
-	c.Request.Body = http.MaxBytesReader(c.Writer, c.Request.Body, s.cfg.MaxBodyBytes)
-	c.Next()
 }
 
 // cors answers browser notebooks from the configured origins ("*" allows any).
@@ -205,11 +201,13 @@ func (w *captureWriter) Write(b []byte) (int, error) {
 	return w.ResponseWriter.Write(b)
 }
 
-// idempotent makes a POST with an Idempotency-Key safe to retry: the first successful (2xx)
-// response is stored with a hash of the body, and a repeat with the same key and body gets it
-// back (header Idempotent-Replayed: true) without running the handler again; the same key with
-// another body is a 422. Failed requests are not stored, so they can be retried as they are.
-// (POST /v1/jobs does the same in its handler, hashing uploads by content.)
+// idempotent makes a POST with an Idempotency-Key safe to retry, for every POST route (the one
+// idempotency path). The key is scoped to the caller's API key. A repeat with the same key and
+// body gets the first response back (header Idempotent-Replayed: true) without running the
+// handler again; the same key with another body is a 422. A write (monomer, job, saved result)
+// records the key in its own transaction, so a crash between the write and the response leaves
+// a record from which the response is rebuilt, never a second write. Requests with one key are
+// served one at a time; failed requests are not recorded and can be retried as they are.
 func (s *Server) idempotent(c *gin.Context) {
 	key := c.GetHeader("Idempotency-Key")
 	if key == "" {
@@ -220,52 +218,140 @@ func (s *Server) idempotent(c *gin.Context) {
 		fail(c, badRequest(errMalformed, "Idempotency-Key", "Idempotency-Key longer than 200 characters"))
 		return
 	}
-	body, err := io.ReadAll(c.Request.Body)
+	body, err := readBody(c)
 	if err != nil {
-		var mbe *http.MaxBytesError
-		if errors.As(err, &mbe) {
-			fail(c, badRequest(errTooLarge, "", fmt.Sprintf("request body exceeds %d bytes", mbe.Limit)))
-			return
-		}
-		fail(c, badRequest(errMalformed, "", "could not read the request body"))
+		fail(c, err)
 		return
 	}
-	sum := sha256.Sum256(body)
-	hash := hex.EncodeToString(sum[:])
-	route := c.Request.Method + " " + c.FullPath()
-	s.idemMu.Lock()
-	defer s.idemMu.Unlock()
-	if s.replayed(c, route, key, hash) {
+	id := data.Idempotency{Scope: c.GetString(ctxKeyID), Route: c.Request.Method + " " + c.FullPath(), Key: key,
+		BodyHash: requestHash(c.GetHeader("Content-Type"), body)}
+	unlock := s.idemLocks.lock(id.Scope + "\x00" + id.Route + "\x00" + id.Key)
+	defer unlock()
+	if s.replayed(c, id) {
 		return
 	}
-	c.Request.Body = io.NopCloser(bytes.NewReader(body))
+	c.Request = c.Request.WithContext(data.WithIdempotency(c.Request.Context(), id))
 	cw := &captureWriter{ResponseWriter: c.Writer}
 	c.Writer = cw
 	c.Next()
 	if st := cw.Status(); st >= 200 && st < 300 {
-		if err := s.store.SaveIdempotent(c.Request.Context(), route, key, hash, st, cw.buf.Bytes()); err != nil {
-			s.log.Error("save idempotency record", "err", err)
-		}
+		s.saveIdempotent(c, id, st, cw.buf.Bytes())
+	}
+}
+
+func (s *Server) saveIdempotent(c *gin.Context, id data.Idempotency, status int, body []byte) {
+	ctx, cancel := context.WithTimeout(context.WithoutCancel(c.Request.Context()), 5*time.Second)
+	defer cancel()
+	if err := s.store.SaveIdempotent(ctx, id, status, body); err != nil {
+		s.log.Error("save idempotency record", "err", err, "request_id", c.GetString(ctxRequestID))
 	}
 }
 
 // replayed answers a request whose Idempotency-Key and body were seen before with the stored
-// response (or a problem when the key came with another body); it reports whether it answered.
-func (s *Server) replayed(c *gin.Context, route, key, hash string) bool {
-	status, resp, err := s.store.Idempotent(c.Request.Context(), route, key, hash)
+// response, rebuilt from the created resource when the response was not recorded (or a problem
+// when the key came with another body); it reports whether it answered.
+func (s *Server) replayed(c *gin.Context, id data.Idempotency) bool {
+	r, err := s.store.Idempotent(c.Request.Context(), id)
 	switch {
-	case err == nil:
-		c.Header("Idempotent-Replayed", "true")
-		c.Data(status, "application/json", resp)
-		c.Abort()
-		return true
 	case errors.Is(err, data.ErrNotFound):
 		return false
 	case errors.Is(err, data.ErrIdempotencyMismatch):
 		fail(c, fmt.Errorf("this Idempotency-Key was used with a different request body: %w", err))
 		return true
-	default:
+	case err != nil:
 		fail(c, err)
 		return true
+	}
+	status, body := r.Status, r.Response
+	if status == 0 {
+		status, body, err = s.rebuild(c, id.Route, r.Resource)
+		if err != nil {
+			fail(c, err)
+			return true
+		}
+		s.saveIdempotent(c, id, status, body)
+	}
+	c.Header("Idempotent-Replayed", "true")
+	c.Data(status, "application/json", body)
+	c.Abort()
+	return true
+}
+
+// rebuild renders the response of a write whose response was never recorded, from what it
+// created.
+func (s *Server) rebuild(c *gin.Context, route, resource string) (int, []byte, error) {
+	ctx := c.Request.Context()
+	switch route {
+	case "POST /v1/monomers":
+		m, err := s.store.GetMonomer(ctx, resource)
+		if err != nil {
+			return 0, nil, err
+		}
+		c.Header("Location", "/v1/monomers/"+m.ID)
+		c.Header("ETag", etag(m))
+		b, err := json.Marshal(m)
+		return http.StatusCreated, b, err
+	case "POST /v1/jobs":
+		j, err := s.store.GetJob(ctx, resource)
+		if err != nil {
+			return 0, nil, err
+		}
+		c.Header("Location", "/v1/jobs/"+j.ID)
+		b, err := json.Marshal(jobCreated(j, nil))
+		return http.StatusAccepted, b, err
+	case "POST /v1/screen":
+		r, err := s.store.GetSavedResult(ctx, resource)
+		if err != nil {
+			return 0, nil, err
+		}
+		resp := ScreenResponse{MonomerID: r.MonomerID, SavedResultID: r.ID}
+		if err := json.Unmarshal(r.Result, &resp.Result); err != nil {
+			return 0, nil, fmt.Errorf("saved result %d: %w", r.ID, err)
+		}
+		b, err := json.Marshal(resp)
+		return http.StatusOK, b, err
+	}
+	return 0, nil, fmt.Errorf("no response recorded for %s %s", route, resource)
+}
+
+// requestHash identifies a submission's content for Idempotency-Key checks: the raw body for
+// JSON; for multipart uploads the form fields and file contents, so that the random multipart
+// boundary of a retried upload does not make it look different.
+func requestHash(contentType string, body []byte) string {
+	h := sha256.New()
+	ct, params, _ := mime.ParseMediaType(contentType)
+	if ct == "multipart/form-data" && params["boundary"] != "" {
+		mr := multipart.NewReader(bytes.NewReader(body), params["boundary"])
+		var parts []string // one digest per part, sorted: field order does not matter
+		for {
+			part, err := mr.NextPart()
+			if err != nil {
+				break
+			}
+			ph := sha256.New()
+			fmt.Fprintf(ph, "%s\x00%s\x00", part.FormName(), part.FileName())
+			io.Copy(ph, part)
+			parts = append(parts, hex.EncodeToString(ph.Sum(nil)))
+		}
+		sort.Strings(parts)
+		for _, p := range parts {
+			h.Write([]byte(p))
+		}
+		return "multipart:" + hex.EncodeToString(h.Sum(nil))
+	}
+	h.Write([]byte(ct + "\n"))
+	h.Write(body)
+	return hex.EncodeToString(h.Sum(nil))
+}
+
+// observeChunk counts the items of a stored job chunk (the runner's metrics hook).
+func (m *metrics) observeChunk(outs []batch.Outcome) {
+	m.jobItems.Add(float64(len(outs)))
+	for _, o := range outs {
+		v := o.Verdict
+		if o.Failed {
+			v = "error"
+		}
+		m.screenings.WithLabelValues(v).Inc()
 	}
 }

@@ -11,6 +11,7 @@ import (
 
 	"ringsieve/data"
 	"ringsieve/screening"
+	"ringsieve/screening/describe"
 )
 
 // MonomerIn is the body of POST and PUT /v1/monomers: a name and at least one of SMILES or a
@@ -38,7 +39,7 @@ func (in *MonomerIn) validate() (data.Monomer, error) {
 		return data.Monomer{}, &screening.FieldError{Field: "smiles", Msg: "give smiles, descriptors, or both"}
 	}
 	if in.SMILES != "" {
-		if _, err := screening.Describe(in.SMILES); err != nil {
+		if _, err := describe.Describe(in.SMILES); err != nil {
 			return data.Monomer{}, err
 		}
 	}

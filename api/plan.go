@@ -6,6 +6,7 @@ import (
 	"github.com/gin-gonic/gin"
 
 	"ringsieve/screening"
+	"ringsieve/screening/plan"
 )
 
 // PlanTarget is the target chain length: exactly one of dp or mn_g_mol.
@@ -45,7 +46,7 @@ type PlanRequest struct {
 //	@Accept			json
 //	@Produce		json
 //	@Param			request	body		PlanRequest	true	"monomer, conditions and target"
-//	@Success		200		{object}	screening.Plan
+//	@Success		200		{object}	plan.Plan
 //	@Failure		400		{object}	Problem
 //	@Failure		404		{object}	Problem
 //	@Failure		422		{object}	Problem
@@ -66,9 +67,9 @@ func (s *Server) plan(c *gin.Context) {
 		return
 	}
 	if cond.Bulk && r.Thermo != nil {
-		cond.Conc = screening.ConcMolL(r.Thermo.ConcMolL)
+		cond.Conc = screening.ConcMolL(r.Thermo.MonomerConcMolL)
 	}
-	p, err := screening.MakePlan(r, screening.PlanInput{
+	p, err := plan.Make(r, plan.Input{
 		TargetDP: req.Target.DP, TargetMn: req.Target.MnGmol, MonomerMassG: req.MonomerMassG, MonomerMolarMass: req.MonomerMolarMassGmol,
 		EndGroupMass: req.EndGroupMassGmol, CatalystMolarMass: req.CatalystMolarMassGmol, KiOverKp: req.KiOverKp, KpLmolS: req.KpLmolS,
 		TargetConversion: req.TargetConversion, Solvent: req.Solvent,

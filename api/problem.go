@@ -8,6 +8,7 @@ import (
 
 	"ringsieve/data"
 	"ringsieve/screening"
+	"ringsieve/screening/batch"
 )
 
 // Problem is an RFC 9457 problem details body (application/problem+json).
@@ -34,7 +35,6 @@ var (
 	errPrecondition = errors.New("precondition failed")
 	errUnauthorized = errors.New("missing or invalid API key")
 	errRateLimited  = errors.New("rate limit exceeded")
-	errJobFinished  = errors.New("job already finished")
 )
 
 // requestError wraps a sentinel with a message safe to show the client.
@@ -72,7 +72,8 @@ var errorMap = []struct {
 	{errPrecondition, http.StatusPreconditionFailed, "precondition-failed", "Precondition failed"},
 	{errUnauthorized, http.StatusUnauthorized, "unauthorized", "Unauthorized"},
 	{errRateLimited, http.StatusTooManyRequests, "rate-limited", "Too many requests"},
-	{errJobFinished, http.StatusConflict, "job-finished", "Job already finished"},
+	{data.ErrJobFinished, http.StatusConflict, "job-finished", "Job already finished"},
+	{data.ErrIdempotencyInFlight, http.StatusConflict, "idempotency-key-in-flight", "Request with this key in progress"},
 }
 
 const problemBase = "https://ringsieve.invalid/problems/"
@@ -91,6 +92,10 @@ func problemFor(err error) Problem {
 			var fe *screening.FieldError
 			if errors.As(err, &fe) {
 				p.Field = fe.Field
+			}
+			var ie *batch.ItemError
+			if errors.As(err, &ie) {
+				p.Field, p.Position = ie.Field, ie.Position
 			}
 			var re *requestError
 			if errors.As(err, &re) && re.field != "" {

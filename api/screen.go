@@ -3,17 +3,17 @@ package api
 import (
 	"context"
 	"encoding/json"
-	"errors"
 	"fmt"
-	"math"
 	"net/http"
-	"sort"
 	"strings"
 
 	"github.com/gin-gonic/gin"
 
 	"ringsieve/data"
 	"ringsieve/screening"
+	"ringsieve/screening/batch"
+	"ringsieve/screening/thermo"
+	"ringsieve/screening/units"
 )
 
 // ConditionsIn are the reaction conditions of a request; every field is optional (defaults:
@@ -37,16 +37,16 @@ func (ci *ConditionsIn) toConditions() (screening.Conditions, error) {
 		return c, &screening.FieldError{Field: "conditions.temperature_k", Msg: "give temperature_c or temperature_k, not both"}
 	}
 	if ci.TemperatureC != nil {
-		t, err := screening.TempFromCelsius(*ci.TemperatureC)
+		t, err := units.TempFromCelsius(*ci.TemperatureC)
 		if err != nil {
-			return c, reField(err, "conditions.temperature_c")
+			return c, units.Refield(err, "conditions.temperature_c")
 		}
 		c.Temp = t
 	}
 	if ci.TemperatureK != nil {
-		t, err := screening.NewTempK(*ci.TemperatureK)
+		t, err := units.NewTempK(*ci.TemperatureK)
 		if err != nil {
-			return c, reField(err, "conditions.temperature_k")
+			return c, units.Refield(err, "conditions.temperature_k")
 		}
 		c.Temp = t
 	}
@@ -54,17 +54,17 @@ func (ci *ConditionsIn) toConditions() (screening.Conditions, error) {
 		if ci.Bulk {
 			return c, &screening.FieldError{Field: "conditions.bulk", Msg: "give monomer_conc_mol_l or bulk, not both"}
 		}
-		v, err := screening.NewConcMolL(*ci.MonomerConcMolL)
+		v, err := units.NewConcMolL(*ci.MonomerConcMolL)
 		if err != nil {
-			return c, reField(err, "conditions.monomer_conc_mol_l")
+			return c, units.Refield(err, "conditions.monomer_conc_mol_l")
 		}
 		c.Conc = v
 	}
 	c.Bulk = ci.Bulk
 	if ci.Catalyst != "" {
-		cat, err := screening.ParseCatalystClass(ci.Catalyst)
+		cat, err := units.ParseCatalystClass(ci.Catalyst)
 		if err != nil {
-			return c, reField(err, "conditions.catalyst")
+			return c, units.Refield(err, "conditions.catalyst")
 		}
 		c.Catalyst = cat
 	}
@@ -108,26 +108,9 @@ type ScreenResponse struct {
 	SavedResultID int64  `json:"saved_result_id,omitempty"`
 }
 
-// reField renames the field of a *screening.FieldError.
-func reField(err error, field string) error {
-	var fe *screening.FieldError
-	if errors.As(err, &fe) {
-		return &screening.FieldError{Field: field, Msg: fe.Msg}
-	}
-	return err
-}
-
-// prefixField tags an error with the JSON path of the item it concerns.
-func prefixField(err error, prefix string) error {
-	var fe *screening.FieldError
-	if errors.As(err, &fe) {
-		return &screening.FieldError{Field: prefix + fe.Field, Msg: fe.Msg}
-	}
-	return err
-}
-
-// screenSource screens one monomer source under conditions c.
-func (s *Server) screenSource(ctx context.Context, src MonomerSource, c screening.Conditions) (screening.Result, error) {
+// source resolves a request's monomer source to what screening takes (a stored monomer is
+// read from the store).
+func (s *Server) source(ctx context.Context, src MonomerSource) (screening.Source, error) {
 	n := 0
 	if strings.TrimSpace(src.SMILES) != "" {
 		n++
@@ -139,41 +122,25 @@ func (s *Server) screenSource(ctx context.Context, src MonomerSource, c screenin
 		n++
 	}
 	if n != 1 {
-		return screening.Result{}, &screening.FieldError{Field: "smiles", Msg: "give exactly one monomer source: smiles, descriptors or monomer_id"}
+		return screening.Source{}, &screening.FieldError{Field: "smiles", Msg: "give exactly one monomer source: smiles, descriptors or monomer_id"}
 	}
-	switch {
-	case src.SMILES != "":
-		r, err := screening.ScreenSMILES(src.SMILES, c)
-		s.count(r, err)
-		return r, err
-	case src.Descriptors != nil:
-		r, err := screening.ScreenDescriptors(*src.Descriptors, c)
-		if err != nil {
-			return r, err
-		}
-		s.count(r, nil)
-		return r, nil
-	default:
+	if src.MonomerID != "" {
 		m, err := s.store.GetMonomer(ctx, src.MonomerID)
 		if err != nil {
-			return screening.Result{}, err
+			return screening.Source{}, err
 		}
-		return s.screenStored(m, c)
+		return data.SourceOf(m)
 	}
+	return screening.Source{SMILES: src.SMILES, Descriptors: src.Descriptors}, nil
 }
 
-// screenStored screens a stored monomer: its SMILES when it has one, else its record.
-func (s *Server) screenStored(m data.Monomer, c screening.Conditions) (screening.Result, error) {
-	if m.SMILES != "" {
-		r, err := screening.ScreenSMILES(m.SMILES, c)
-		s.count(r, err)
-		return r, err
+// screenSource screens one monomer source under conditions c.
+func (s *Server) screenSource(ctx context.Context, src MonomerSource, c screening.Conditions) (screening.Result, error) {
+	in, err := s.source(ctx, src)
+	if err != nil {
+		return screening.Result{}, err
 	}
-	var d screening.Descriptors
-	if err := json.Unmarshal(m.Descriptors, &d); err != nil {
-		return screening.Result{}, fmt.Errorf("stored descriptors of %s: %w", m.ID, err)
-	}
-	r, err := screening.ScreenDescriptors(d, c)
+	r, err := screening.Screen(in, c)
 	s.count(r, err)
 	return r, err
 }
@@ -216,8 +183,16 @@ func (s *Server) screen(c *gin.Context) {
 	}
 	resp := ScreenResponse{Result: r, MonomerID: req.MonomerID}
 	if req.Save {
-		condJSON, _ := json.Marshal(r.Conditions)
-		resJSON, _ := json.Marshal(r)
+		condJSON, err := json.Marshal(r.Conditions)
+		if err != nil {
+			fail(c, err)
+			return
+		}
+		resJSON, err := json.Marshal(r)
+		if err != nil {
+			fail(c, err)
+			return
+		}
 		saved, err := s.store.SaveResult(c.Request.Context(), data.SavedResult{MonomerID: req.MonomerID, Conditions: condJSON,
 			Verdict: r.Verdict, Score: r.Score, Result: resJSON, EngineVersion: r.EngineVersion})
 		if err != nil {
@@ -250,45 +225,9 @@ type BatchResult struct {
 	seq   int      // submission position
 }
 
-// BatchResponse lists results by rank (score descending, ties by ΔG_p), failed items last.
+// BatchResponse lists results by rank (the batch package's ranking rule), failed items last.
 type BatchResponse struct {
 	Results []BatchResult `json:"results"`
-}
-
-// rankResults sorts by score descending, then ΔG_p ascending, then submission order; failed
-// items go last in submission order; ranks are 1-based positions.
-func rankResults(rs []BatchResult) {
-	order := make([]int, len(rs))
-	for i := range order {
-		order[i] = i
-	}
-	sort.SliceStable(order, func(a, b int) bool { return lessResult(&rs[order[a]], &rs[order[b]]) })
-	out := make([]BatchResult, len(rs))
-	for k, i := range order {
-		out[k] = rs[i]
-		out[k].Rank = k + 1
-	}
-	copy(rs, out)
-}
-
-func lessResult(a, b *BatchResult) bool {
-	if (a.Result == nil) != (b.Result == nil) {
-		return a.Result != nil
-	}
-	if a.Result == nil {
-		return false
-	}
-	if a.Score != b.Score {
-		return a.Score > b.Score
-	}
-	return dgOf(a.Result) < dgOf(b.Result)
-}
-
-func dgOf(r *screening.Result) float64 {
-	if r.Thermo == nil {
-		return math.Inf(1)
-	}
-	return r.Thermo.DGkJmol
 }
 
 // batch godoc
@@ -318,32 +257,35 @@ func (s *Server) batch(c *gin.Context) {
 		return
 	}
 	results := s.screenItems(c.Request.Context(), req.Items, cond)
-	rankResults(results)
+	if c.Request.Context().Err() != nil {
+		return // the client has gone: nothing to answer
+	}
 	c.JSON(http.StatusOK, BatchResponse{Results: results})
 }
 
-// screenItems screens items in order; failures become problems in place.
+// screenItems screens items on the worker pool (input order kept) and returns them ranked;
+// failures become problems in place. It stops early when the client goes away.
 func (s *Server) screenItems(ctx context.Context, items []BatchItem, cond screening.Conditions) []BatchResult {
-	out := make([]BatchResult, len(items))
-	for i, it := range items {
+	rows := make([]batch.Row, len(items))
+	batch.Map(ctx, len(items), 0, func(i int) {
+		r, err := s.screenSource(ctx, items[i].MonomerSource, cond)
+		rows[i] = batch.NewRow(i, r, err)
+	})
+	batch.Rank(rows)
+	out := make([]BatchResult, len(rows))
+	for k, row := range rows {
+		it := items[row.Seq]
 		id := it.ID
 		if id == "" {
-			id = fmt.Sprintf("%d", i+1)
+			id = fmt.Sprintf("%d", row.Seq+1)
 		}
-		r, err := s.screenSource(ctx, it.MonomerSource, cond)
-		out[i] = itemResult(id, i, r, err)
-		out[i].seq = i
+		out[k] = BatchResult{ID: id, Rank: k + 1, Result: row.Result, seq: row.Seq}
+		if row.Err != nil {
+			p := problemFor(units.PrefixField(row.Err, fmt.Sprintf("items[%d].", row.Seq)))
+			out[k].Error = &p
+		}
 	}
 	return out
-}
-
-func itemResult(id string, i int, r screening.Result, err error) BatchResult {
-	if err != nil {
-		p := problemFor(prefixField(err, fmt.Sprintf("items[%d].", i)))
-		return BatchResult{ID: id, Error: &p}
-	}
-	rr := r
-	return BatchResult{ID: id, Result: &rr}
 }
 
 // SweepRange is a temperature range in °C.
@@ -362,9 +304,9 @@ type SweepRequest struct {
 
 // SweepResponse gives the thermodynamics used and one point per temperature.
 type SweepResponse struct {
-	Verdict string                 `json:"verdict"`
-	Thermo  *screening.Thermo      `json:"thermo"`
-	Points  []screening.SweepPoint `json:"points"`
+	Verdict string              `json:"verdict"`
+	Thermo  *screening.Thermo   `json:"thermo"`
+	Points  []thermo.SweepPoint `json:"points"`
 }
 
 // sweep godoc
@@ -394,9 +336,9 @@ func (s *Server) sweep(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	resp := SweepResponse{Verdict: r.Verdict, Thermo: r.Thermo, Points: []screening.SweepPoint{}}
+	resp := SweepResponse{Verdict: r.Verdict, Thermo: r.Thermo, Points: []thermo.SweepPoint{}}
 	if r.Thermo != nil {
-		pts, err := screening.Sweep(r.Thermo.DHkJmol, r.Thermo.DSJmolK, screening.ConcMolL(r.Thermo.ConcMolL), rg.FromC, rg.ToC, rg.StepC)
+		pts, err := thermo.Sweep(r.Thermo.DHkJmol, r.Thermo.DSJmolK, screening.ConcMolL(r.Thermo.MonomerConcMolL), rg.FromC, rg.ToC, rg.StepC)
 		if err != nil {
 			fail(c, err)
 			return
@@ -408,29 +350,29 @@ func (s *Server) sweep(c *gin.Context) {
 
 // RingTableRow is one row of the strain table as served.
 type RingTableRow struct {
-	Name        string   `json:"name"`
-	SMILES      string   `json:"smiles"`
-	SkeletonKey string   `json:"skeleton_key"`
-	RSCHkJmol   float64  `json:"ring_correction_h_kj_mol"`
-	RSCSJmolK   float64  `json:"ring_correction_s_j_mol_k"`
-	UHkJmol     float64  `json:"uncertainty_h_kj_mol"`
-	USJmolK     float64  `json:"uncertainty_s_j_mol_k"`
-	AnchorDH    *float64 `json:"measured_dh_kj_mol,omitempty"`
-	AnchorDS    *float64 `json:"measured_ds_j_mol_k,omitempty"`
-	Evidence    string   `json:"evidence"`
-	Source      string   `json:"source"`
-	Note        string   `json:"note,omitempty"`
+	Name                 string   `json:"name"`
+	SMILES               string   `json:"smiles"`
+	SkeletonKey          string   `json:"skeleton_key"`
+	RingCorrectionHkJmol float64  `json:"ring_correction_h_kj_mol"`
+	RingCorrectionSJmolK float64  `json:"ring_correction_s_j_mol_k"`
+	UncertaintyHkJmol    float64  `json:"uncertainty_h_kj_mol"`
+	UncertaintySJmolK    float64  `json:"uncertainty_s_j_mol_k"`
+	MeasuredDHkJmol      *float64 `json:"measured_dh_kj_mol,omitempty"`
+	MeasuredDSJmolK      *float64 `json:"measured_ds_j_mol_k,omitempty"`
+	Evidence             string   `json:"evidence"`
+	Source               string   `json:"source"`
+	Note                 string   `json:"note,omitempty"`
 }
 
 // RingTableResponse lists the strain table and the fitted condensed-phase offsets.
 type RingTableResponse struct {
-	OffsetHkJmol    float64        `json:"condensed_offset_h_kj_mol"`
-	OffsetHUnc      float64        `json:"condensed_offset_h_uncertainty_kj_mol"`
-	OffsetSJmolK    float64        `json:"condensed_offset_s_j_mol_k"`
-	OffsetSUnc      float64        `json:"condensed_offset_s_uncertainty_j_mol_k"`
-	Rows            []RingTableRow `json:"rows"`
-	EngineVersion   string         `json:"engine_version"`
-	ConversionsNote string         `json:"note"`
+	CondensedOffsetHkJmol            float64        `json:"condensed_offset_h_kj_mol"`
+	CondensedOffsetHUncertaintyKJmol float64        `json:"condensed_offset_h_uncertainty_kj_mol"`
+	CondensedOffsetSJmolK            float64        `json:"condensed_offset_s_j_mol_k"`
+	CondensedOffsetSUncertaintyJmolK float64        `json:"condensed_offset_s_uncertainty_j_mol_k"`
+	Rows                             []RingTableRow `json:"rows"`
+	EngineVersion                    string         `json:"engine_version"`
+	Note                             string         `json:"note"`
 }
 
 // ringTable godoc
@@ -441,12 +383,12 @@ type RingTableResponse struct {
 //	@Success	200	{object}	RingTableResponse
 //	@Router		/v1/tables/ring-systems [get]
 func (s *Server) ringTable(c *gin.Context) {
-	dh, udh, ds, uds := screening.Offsets()
-	resp := RingTableResponse{OffsetHkJmol: dh, OffsetHUnc: udh, OffsetSJmolK: ds, OffsetSUnc: uds, EngineVersion: screening.EngineVersion,
-		ConversionsNote: "ring corrections are ideal-gas Benson-type values at 298.15 K; 1 cal = 4.184 J"}
-	for _, r := range screening.TableRows() {
-		resp.Rows = append(resp.Rows, RingTableRow{Name: r.Name, SMILES: r.SMILES, SkeletonKey: r.Key, RSCHkJmol: r.RSCH, RSCSJmolK: r.RSCS,
-			UHkJmol: r.UH, USJmolK: r.US, AnchorDH: r.AnchorDH, AnchorDS: r.AnchorDS, Evidence: r.Evidence, Source: r.Source, Note: r.Note})
+	dh, udh, ds, uds := thermo.Offsets()
+	resp := RingTableResponse{CondensedOffsetHkJmol: dh, CondensedOffsetHUncertaintyKJmol: udh, CondensedOffsetSJmolK: ds, CondensedOffsetSUncertaintyJmolK: uds,
+		EngineVersion: screening.EngineVersion, Note: "ring corrections are ideal-gas Benson-type values at 298.15 K; 1 cal = 4.184 J"}
+	for _, r := range thermo.TableRows() {
+		resp.Rows = append(resp.Rows, RingTableRow{Name: r.Name, SMILES: r.SMILES, SkeletonKey: r.Key, RingCorrectionHkJmol: r.RSCH, RingCorrectionSJmolK: r.RSCS,
+			UncertaintyHkJmol: r.UH, UncertaintySJmolK: r.US, MeasuredDHkJmol: r.AnchorDH, MeasuredDSJmolK: r.AnchorDS, Evidence: r.Evidence, Source: r.Source, Note: r.Note})
 	}
 	c.JSON(http.StatusOK, resp)
 }

@@ -1,30 +1,27 @@
 package api
 
 import (
-	"bytes"
 	"context"
-	"encoding/json"
-	"errors"
-	"fmt"
-	"io"
 	"log/slog"
 	"net/http"
-	"strings"
+	"runtime"
 	"sync"
 	"time"
 
 	"github.com/gin-gonic/gin"
 
 	"ringsieve/data"
+	"ringsieve/screening/batch"
 )
 
 // Config holds the HTTP layer's settings; zero fields take the defaults of DefaultConfig.
 type Config struct {
 	MaxBodyBytes int64 // request body limit for JSON
-	MaxFileBytes int64 // request body limit for file uploads
+	MaxFileBytes int64 // request body limit for job submissions (uploads and JSON)
 	BatchLimit   int   // most items in one synchronous batch
 	JobLimit     int   // most items in one job
-	Workers      int   // job worker pool size (0: one per core)
+	Workers      int  // goroutines screening job chunks (0: one per core)
+	ServeOnly    bool // no job work in this process (other processes work the jobs)
 	CORSOrigins  []string
 	RequireKeys  bool // API keys required for writes
 	KeysForReads bool // and for reads
@@ -43,11 +40,12 @@ type Server struct {
 	store   *data.Store
 	log     *slog.Logger
 	metrics *metrics
-	jobs    *jobRunner
-	// idemMu serializes Idempotency-Key handling so a retried POST never creates two jobs.
-	idemMu sync.Mutex
+	runner  *batch.Runner
+	// idemLocks serializes requests that carry the same Idempotency-Key (per key, not per server).
+	idemLocks keyedMutex
 	// limiters holds one token bucket per API key id (*rate.Limiter).
 	limiters sync.Map
+	wg       sync.WaitGroup
 }
 
 // New builds a server over an open store. Start background work with Start.
@@ -72,16 +70,59 @@ func New(cfg Config, store *data.Store, log *slog.Logger) *Server {
 		cfg.RateBurst = def.RateBurst
 	}
 	s := &Server{cfg: cfg, store: store, log: log, metrics: newMetrics()}
-	s.jobs = newJobRunner(s)
+	if cfg.Workers <= 0 {
+		cfg.Workers = runtime.NumCPU()
+	}
+	if !cfg.ServeOnly {
+		s.runner = &batch.Runner{Store: store, Workers: cfg.Workers, Log: log, Observe: s.metrics.observeChunk}
+	}
 	return s
 }
 
-// Start launches the job workers; they stop when ctx ends. Jobs interrupted by a restart are
-// resumed from their first unrecorded item.
-func (s *Server) Start(ctx context.Context) error { return s.jobs.start(ctx) }
+// Start launches the background work: the job runner (when this server works jobs), the queue
+// gauge and the purge of expired idempotency records; it stops when ctx ends. Jobs interrupted
+// by a restart are resumed from their first unrecorded chunk.
+func (s *Server) Start(ctx context.Context) error {
+	if s.runner != nil {
+		s.wg.Add(1)
+		go func() {
+			defer s.wg.Done()
+			s.runner.Run(ctx)
+		}()
+	}
+	s.wg.Add(1)
+	go func() {
+		defer s.wg.Done()
+		s.housekeeping(ctx)
+	}()
+	return nil
+}
 
-// Wait blocks until the job workers have stopped.
-func (s *Server) Wait() { s.jobs.wait() }
+// housekeeping refreshes the job-queue gauge and purges expired idempotency records.
+func (s *Server) housekeeping(ctx context.Context) {
+	tick := time.NewTicker(2 * time.Second)
+	defer tick.Stop()
+	lastPurge := time.Time{}
+	for {
+		if n, err := s.store.CountActiveJobs(ctx); err == nil {
+			s.metrics.queue.Set(float64(n))
+		}
+		if time.Since(lastPurge) > time.Hour {
+			if _, err := s.store.PurgeIdempotency(ctx); err != nil && ctx.Err() == nil {
+				s.log.Warn("purge idempotency records", "err", err)
+			}
+			lastPurge = time.Now()
+		}
+		select {
+		case <-ctx.Done():
+			return
+		case <-tick.C:
+		}
+	}
+}
+
+// Wait blocks until the background work has stopped.
+func (s *Server) Wait() { s.wg.Wait() }
 
 func init() { gin.SetMode(gin.ReleaseMode) }
 
@@ -105,20 +146,21 @@ func (s *Server) Handler() http.Handler {
 	r.GET("/static/*file", s.static)
 	r.GET("/metrics", s.metricsHandler())
 
+	json, file := s.bodyLimit(s.cfg.MaxBodyBytes), s.bodyLimit(s.cfg.MaxFileBytes)
 	v1 := r.Group("/v1", s.auth)
-	v1.POST("/screen", s.limitBody, s.idempotent, s.screen)
-	v1.POST("/screen/batch", s.limitBody, s.idempotent, s.batch)
-	v1.POST("/screen/compare", s.limitBody, s.idempotent, s.compare)
-	v1.POST("/sweep", s.limitBody, s.idempotent, s.sweep)
-	v1.POST("/plan", s.limitBody, s.idempotent, s.plan)
+	v1.POST("/screen", json, s.idempotent, s.screen)
+	v1.POST("/screen/batch", json, s.idempotent, s.batch)
+	v1.POST("/screen/compare", json, s.idempotent, s.compare)
+	v1.POST("/sweep", json, s.idempotent, s.sweep)
+	v1.POST("/plan", json, s.idempotent, s.plan)
 	v1.GET("/tables/ring-systems", s.ringTable)
-	v1.POST("/monomers", s.limitBody, s.idempotent, s.createMonomer)
+	v1.POST("/monomers", json, s.idempotent, s.createMonomer)
 	v1.GET("/monomers", s.listMonomers)
 	v1.GET("/monomers/:id", s.getMonomer)
-	v1.PUT("/monomers/:id", s.limitBody, s.replaceMonomer)
+	v1.PUT("/monomers/:id", json, s.replaceMonomer)
 	v1.DELETE("/monomers/:id", s.deleteMonomer)
 	v1.GET("/monomers/:id/results", s.monomerResults)
-	v1.POST("/jobs", s.createJob)
+	v1.POST("/jobs", file, s.idempotent, s.createJob)
 	v1.GET("/jobs/:id", s.getJob)
 	v1.GET("/jobs/:id/results", s.jobResults)
 	v1.DELETE("/jobs/:id", s.cancelJob)
@@ -147,85 +189,4 @@ func (s *Server) healthz(c *gin.Context) {
 		return
 	}
 	c.JSON(http.StatusOK, Health{Status: "ok"})
-}
-
-// decodeJSON reads exactly one JSON object from the body into v, refusing unknown fields.
-func decodeJSON(c *gin.Context, v any) error {
-	ct := c.ContentType()
-	if ct != "" && ct != "application/json" && !strings.HasSuffix(ct, "+json") {
-		return badRequest(errUnsupported, "", "send application/json (got "+ct+")")
-	}
-	body, err := io.ReadAll(c.Request.Body)
-	if err != nil {
-		var mbe *http.MaxBytesError
-		if errors.As(err, &mbe) {
-			return badRequest(errTooLarge, "", fmt.Sprintf("request body exceeds %d bytes", mbe.Limit))
-		}
-		return badRequest(errMalformed, "", "could not read the request body")
-	}
-	return decodeJSONBytes(body, v)
-}
-
-func decodeJSONBytes(body []byte, v any) error {
-	dec := json.NewDecoder(bytes.NewReader(body))
-	dec.DisallowUnknownFields()
-	if err := dec.Decode(v); err != nil {
-		return badRequest(errMalformed, jsonErrField(err), jsonErrMessage(err))
-	}
-	if dec.More() {
-		return badRequest(errMalformed, "", "trailing data after the JSON object")
-	}
-	var extra json.RawMessage
-	if err := dec.Decode(&extra); err != io.EOF {
-		return badRequest(errMalformed, "", "trailing data after the JSON object")
-	}
-	return nil
-}
-
-func jsonErrField(err error) string {
-	var te *json.UnmarshalTypeError
-	if errors.As(err, &te) {
-		return jsonPath(te.Field)
-	}
-	if msg := err.Error(); strings.HasPrefix(msg, "json: unknown field ") {
-		return strings.Trim(strings.TrimPrefix(msg, "json: unknown field "), `"`)
-	}
-	return ""
-}
-
-// jsonPath drops the Go names of embedded structs from a decoder field path
-// ("MonomerSource.smiles" → "smiles").
-func jsonPath(field string) string {
-	var keep []string
-	for _, p := range strings.Split(field, ".") {
-		if p != "" && !(p[0] >= 'A' && p[0] <= 'Z') {
-			keep = append(keep, p)
-		}
-	}
-	return strings.Join(keep, ".")
-}
-
-func jsonErrMessage(err error) string {
-	var se *json.SyntaxError
-	if errors.As(err, &se) {
-		return fmt.Sprintf("malformed JSON at byte %d: %s", se.Offset, se.Error())
-	}
-	var te *json.UnmarshalTypeError
-	if errors.As(err, &te) {
-		if f := jsonPath(te.Field); f != "" {
-			return fmt.Sprintf("field %q: expected %s (got JSON %s) at byte %d", f, te.Type, te.Value, te.Offset)
-		}
-		return fmt.Sprintf("expected %s (got JSON %s) at byte %d", te.Type, te.Value, te.Offset)
-	}
-	if errors.Is(err, io.EOF) {
-		return "empty request body: send a JSON object"
-	}
-	if errors.Is(err, io.ErrUnexpectedEOF) {
-		return "request body ends in the middle of the JSON object"
-	}
-	msg := err.Error()
-	if strings.HasPrefix(msg, "json: unknown field ") {
-		return "unknown field " + strings.TrimPrefix(msg, "json: unknown field ")
-	}
-	return "malformed JSON: " + strings.TrimPrefix(msg, "json: ")
 }

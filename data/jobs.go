@@ -2,108 +2,70 @@ package data
 
 import (
 	"context"
-	"crypto/rand"
-	"crypto/sha256"
 	"database/sql"
-	"encoding/hex"
 	"encoding/json"
 	"errors"
 	"fmt"
-	"strings"
 	"time"
+
+	"ringsieve/screening"
+	"ringsieve/screening/batch"
 )
 
-// Job states.
-const (
-	JobQueued   = "queued"
-	JobRunning  = "running"
-	JobDone     = "done"
-	JobFailed   = "failed"
-	JobCanceled = "canceled"
-)
-
-// ErrIdempotencyMismatch reports a reused Idempotency-Key with a different body.
-var ErrIdempotencyMismatch = errors.New("idempotency key reused with a different request")
-
-// Job is an asynchronous screening job.
-type Job struct {
-	ID           string          `json:"id"`
-	Status       string          `json:"status"`
-	Conditions   json.RawMessage `json:"conditions" swaggertype:"object"`
-	Total        int             `json:"total"`
-	Done         int             `json:"done"`
-	Failed       int             `json:"failed"`
-	SourceFormat string          `json:"source_format"`
-	ExtraColumns []string        `json:"extra_columns"`
-	Error        string          `json:"error,omitempty"`
-	CreatedAt    time.Time       `json:"created_at"`
-	StartedAt    *time.Time      `json:"started_at,omitempty"`
-	FinishedAt   *time.Time      `json:"finished_at,omitempty"`
-}
-
-// JobItem is one submitted item of a job.
-type JobItem struct {
-	Seq    int
+// JobInput is one item as submitted.
+type JobInput struct {
 	ItemID string
-	Line   int
-	Source json.RawMessage // JSON monomer source
+	Line   int // input line (file uploads), 0 for JSON
+	Source batch.ItemSource
 	Extra  []string
-	State  string
-	Result json.RawMessage // screen result (done) or problem (failed)
-	Score  *float64
-	DG     *float64
-}
-
-// ItemOutcome is what a worker writes back for one item.
-type ItemOutcome struct {
-	Seq     int
-	Failed  bool
-	Verdict string
-	Score   float64
-	DG      float64
-	Result  []byte
-}
-
-func tsPtr(s string) *time.Time {
-	if s == "" {
-		return nil
-	}
-	t := parseTime(s)
-	return &t
 }
 
 // JobMeta is what a job's item producer reports once every item is read.
 type JobMeta struct {
-	Conditions   json.RawMessage
+	Conditions   screening.ConditionsOut
 	ExtraColumns []string // carried-through CSV columns
 	Format       string   // input format (json, smiles, csv, sdf)
 }
 
-// CreateJobStream stores a job whose items are produced by fill, in one transaction: fill calls
-// add for each item as it is read and finally returns the job's conditions, extra columns and
-// input format. Nothing is stored when fill or any insert fails. Items never need to be held in
-// memory at once.
-func (s *Store) CreateJobStream(ctx context.Context, fill func(add func(JobItem) error) (JobMeta, error)) (Job, error) {
-	j := Job{ID: newID("job_"), Status: JobQueued}
+// DefaultChunkSize is the number of items a worker claims at a time (design choice: about
+// 20 ms of screening per item-thousand on one core for the fast tier, so a chunk is claimed,
+// screened and stored a few times a second).
+const DefaultChunkSize = 1024
+
+// CreateJob stores a job whose items are produced by fill, in one transaction: fill calls add
+// for each item as it is read and finally returns the job's conditions, extra columns and input
+// format. The items are split into chunks of chunkSize (≤ 0: DefaultChunkSize) that workers
+// claim. Nothing is stored when fill or any insert fails, and items never need to be held in
+// memory at once. An idempotency claim in ctx is recorded in the same transaction.
+func (s *Store) CreateJob(ctx context.Context, chunkSize int, fill func(add func(JobInput) error) (JobMeta, error)) (batch.Job, error) {
+	if chunkSize <= 0 {
+		chunkSize = DefaultChunkSize
+	}
+	j := batch.Job{ID: newID("job_"), Status: batch.JobQueued}
 	ts := now()
 	err := s.tx(ctx, func(tx *sql.Tx) error {
 		// the job row first (invisible to workers until commit), completed after the items
-		if _, err := tx.ExecContext(ctx, `INSERT INTO jobs (id, status, conditions, total, source_format, created_at) VALUES (?, 'queued', '{}', 0, '', ?)`, j.ID, ts); err != nil {
+		if _, err := s.exec(ctx, tx, `INSERT INTO jobs (id, status, conditions, total, source_format, created_at) VALUES (?, 'queued', '{}', 0, '', ?)`, j.ID, ts); err != nil {
 			return err
 		}
-		stmt, err := tx.PrepareContext(ctx, `INSERT INTO job_items (job_id, seq, item_id, line, source, extra) VALUES (?, ?, ?, ?, ?, ?)`)
+		stmt, err := tx.PrepareContext(ctx, s.q(`INSERT INTO job_items (job_id, seq, item_id, line, source, extra) VALUES (?, ?, ?, ?, ?, ?)`))
 		if err != nil {
 			return err
 		}
 		defer stmt.Close()
 		n := 0
-		add := func(it JobItem) error {
-			ex := "[]"
-			if len(it.Extra) > 0 {
-				b, _ := json.Marshal(it.Extra)
-				ex = string(b)
+		add := func(it JobInput) error {
+			src, err := json.Marshal(it.Source)
+			if err != nil {
+				return err
 			}
-			if _, err := stmt.ExecContext(ctx, j.ID, n, it.ItemID, it.Line, string(it.Source), ex); err != nil {
+			ex := []byte("[]")
+			if len(it.Extra) > 0 {
+				if ex, err = json.Marshal(it.Extra); err != nil {
+					return err
+				}
+			}
+			if _, err := stmt.ExecContext(ctx, j.ID, n, it.ItemID, it.Line, string(src), string(ex)); err != nil {
 				return err
 			}
 			n++
@@ -116,49 +78,72 @@ func (s *Store) CreateJobStream(ctx context.Context, fill func(add func(JobItem)
 		if meta.ExtraColumns == nil {
 			meta.ExtraColumns = []string{}
 		}
-		ec, _ := json.Marshal(meta.ExtraColumns)
+		ec, err := json.Marshal(meta.ExtraColumns)
+		if err != nil {
+			return err
+		}
+		cj, err := json.Marshal(meta.Conditions)
+		if err != nil {
+			return err
+		}
 		j.Conditions, j.ExtraColumns, j.SourceFormat, j.Total = meta.Conditions, meta.ExtraColumns, meta.Format, n
-		_, err = tx.ExecContext(ctx, `UPDATE jobs SET conditions = ?, total = ?, extra_columns = ?, source_format = ? WHERE id = ?`,
-			string(meta.Conditions), n, string(ec), meta.Format, j.ID)
-		return err
+		if _, err := s.exec(ctx, tx, `UPDATE jobs SET conditions = ?, total = ?, extra_columns = ?, source_format = ? WHERE id = ?`,
+			string(cj), n, string(ec), meta.Format, j.ID); err != nil {
+			return err
+		}
+		if err := s.insertChunks(ctx, tx, j.ID, n, chunkSize); err != nil {
+			return err
+		}
+		return s.claimIdempotency(ctx, tx, j.ID)
 	})
 	if err != nil {
-		return Job{}, fmt.Errorf("create job: %w", err)
+		return batch.Job{}, fmt.Errorf("create job: %w", err)
 	}
 	j.CreatedAt = parseTime(ts)
 	return j, nil
 }
 
-// GetJob returns a job or ErrNotFound.
-func (s *Store) GetJob(ctx context.Context, id string) (Job, error) {
-	var j Job
+// insertChunks splits items 0 … total−1 of a job into chunks of size.
+func (s *Store) insertChunks(ctx context.Context, tx *sql.Tx, jobID string, total, size int) error {
+	for no, first := 0, 0; first < total; no, first = no+1, first+size {
+		last := min(first+size, total) - 1
+		if _, err := s.exec(ctx, tx, `INSERT INTO job_chunks (job_id, chunk_no, first_seq, last_seq) VALUES (?, ?, ?, ?)`, jobID, no, first, last); err != nil {
+			return fmt.Errorf("insert chunk: %w", err)
+		}
+	}
+	return nil
+}
+
+const jobCols = `id, status, conditions, total, done, failed, source_format, extra_columns, error, created_at, started_at, finished_at`
+
+func scanJob(r rowScanner) (batch.Job, error) {
+	var j batch.Job
 	var cond, ec, created, started, finished string
-	err := s.db.QueryRowContext(ctx, `SELECT id, status, conditions, total, done, failed, source_format, extra_columns, error, created_at, started_at, finished_at FROM jobs WHERE id = ?`, id).
-		Scan(&j.ID, &j.Status, &cond, &j.Total, &j.Done, &j.Failed, &j.SourceFormat, &ec, &j.Error, &created, &started, &finished)
-	if errors.Is(err, sql.ErrNoRows) {
-		return Job{}, fmt.Errorf("job %q: %w", id, ErrNotFound)
+	if err := r.Scan(&j.ID, &j.Status, &cond, &j.Total, &j.Done, &j.Failed, &j.SourceFormat, &ec, &j.Error, &created, &started, &finished); err != nil {
+		return batch.Job{}, err
 	}
+	c, err := batch.DecodeConditions([]byte(cond))
 	if err != nil {
-		return Job{}, fmt.Errorf("get job: %w", err)
+		return batch.Job{}, fmt.Errorf("job %s: %w", j.ID, err)
 	}
-	j.Conditions = json.RawMessage(cond)
-	_ = json.Unmarshal([]byte(ec), &j.ExtraColumns)
+	j.Conditions = c
+	if err := json.Unmarshal([]byte(ec), &j.ExtraColumns); err != nil {
+		return batch.Job{}, fmt.Errorf("job %s: extra columns: %w", j.ID, err)
+	}
 	j.CreatedAt, j.StartedAt, j.FinishedAt = parseTime(created), tsPtr(started), tsPtr(finished)
 	return j, nil
 }
 
-// NextRunnableJob returns the oldest job that is queued or was running (interrupted), or
-// ErrNotFound.
-func (s *Store) NextRunnableJob(ctx context.Context) (Job, error) {
-	var id string
-	err := s.db.QueryRowContext(ctx, `SELECT id FROM jobs WHERE status IN ('running', 'queued') ORDER BY status = 'queued', created_at, id LIMIT 1`).Scan(&id)
+// GetJob returns a job or ErrNotFound.
+func (s *Store) GetJob(ctx context.Context, id string) (batch.Job, error) {
+	j, err := scanJob(s.db.QueryRowContext(ctx, s.q(`SELECT `+jobCols+` FROM jobs WHERE id = ?`), id))
 	if errors.Is(err, sql.ErrNoRows) {
-		return Job{}, ErrNotFound
+		return batch.Job{}, fmt.Errorf("job %q: %w", id, ErrNotFound)
 	}
 	if err != nil {
-		return Job{}, err
+		return batch.Job{}, fmt.Errorf("get job: %w", err)
 	}
-	return s.GetJob(ctx, id)
+	return j, nil
 }
 
 // CountActiveJobs returns the number of queued or running jobs.
@@ -168,132 +153,78 @@ func (s *Store) CountActiveJobs(ctx context.Context) (int, error) {
 	return n, err
 }
 
-// MarkJobRunning sets a queued job running (and its start time once).
-func (s *Store) MarkJobRunning(ctx context.Context, id string) error {
-	_, err := s.db.ExecContext(ctx, `UPDATE jobs SET status = 'running', started_at = CASE WHEN started_at = '' THEN ? ELSE started_at END WHERE id = ? AND status IN ('queued', 'running')`, now(), id)
-	return err
-}
-
-// PendingItems returns up to limit pending items of a job in submission order after seq after.
-func (s *Store) PendingItems(ctx context.Context, jobID string, after, limit int) ([]JobItem, error) {
-	rows, err := s.db.QueryContext(ctx, `SELECT seq, item_id, line, source, extra FROM job_items WHERE job_id = ? AND state = 'pending' AND seq > ? ORDER BY seq LIMIT ?`, jobID, after, limit)
-	if err != nil {
-		return nil, err
-	}
-	defer rows.Close()
-	var out []JobItem
-	for rows.Next() {
-		var it JobItem
-		var src, ex string
-		if err := rows.Scan(&it.Seq, &it.ItemID, &it.Line, &src, &ex); err != nil {
-			return nil, err
-		}
-		it.Source = json.RawMessage(src)
-		_ = json.Unmarshal([]byte(ex), &it.Extra)
-		out = append(out, it)
-	}
-	return out, rows.Err()
-}
-
-// RecordOutcomes writes item outcomes and advances the job's counters in one transaction. Items
-// already finished are left alone, so a replay after a crash never double-counts. It returns the
-// job's status after the write (a canceled job stays canceled).
-func (s *Store) RecordOutcomes(ctx context.Context, jobID string, outs []ItemOutcome) (string, error) {
-	var status string
-	err := s.tx(ctx, func(tx *sql.Tx) error {
-		stmt, err := tx.PrepareContext(ctx, `UPDATE job_items SET state = ?, verdict = ?, score = ?, dg = ?, result = ? WHERE job_id = ? AND seq = ? AND state = 'pending'`)
-		if err != nil {
-			return err
-		}
-		defer stmt.Close()
-		done, failed := 0, 0
-		for _, o := range outs {
-			state := "done"
-			var score, dg any = o.Score, o.DG
-			if o.Failed {
-				state, score, dg = "failed", nil, nil
-			}
-			res, err := stmt.ExecContext(ctx, state, o.Verdict, score, dg, o.Result, jobID, o.Seq)
-			if err != nil {
-				return err
-			}
-			if n, _ := res.RowsAffected(); n == 1 {
-				done++
-				if o.Failed {
-					failed++
-				}
-			}
-		}
-		if _, err := tx.ExecContext(ctx, `UPDATE jobs SET done = done + ?, failed = failed + ? WHERE id = ?`, done, failed, jobID); err != nil {
-			return err
-		}
-		return tx.QueryRowContext(ctx, `SELECT status FROM jobs WHERE id = ?`, jobID).Scan(&status)
-	})
-	if err != nil {
-		return "", fmt.Errorf("record outcomes: %w", err)
-	}
-	return status, nil
-}
-
-// FinishJob sets a running job's final status (done or failed) unless it was canceled.
-func (s *Store) FinishJob(ctx context.Context, id, status, msg string) error {
-	_, err := s.db.ExecContext(ctx, `UPDATE jobs SET status = ?, error = ?, finished_at = ? WHERE id = ? AND status IN ('queued', 'running')`, status, msg, now(), id)
-	return err
-}
-
-// CancelJob cancels a queued or running job; it returns ErrConflict when the job has already
-// finished and ErrNotFound when there is none.
-func (s *Store) CancelJob(ctx context.Context, id string) (Job, error) {
+// CancelJob cancels a queued or running job; it returns ErrJobFinished when the job has already
+// finished and ErrNotFound when there is none. Results stored so far are kept.
+func (s *Store) CancelJob(ctx context.Context, id string) (batch.Job, error) {
 	err := s.tx(ctx, func(tx *sql.Tx) error {
 		var st string
-		if err := tx.QueryRowContext(ctx, `SELECT status FROM jobs WHERE id = ?`, id).Scan(&st); err != nil {
+		if err := s.queryRow(ctx, tx, `SELECT status FROM jobs WHERE id = ?`, id).Scan(&st); err != nil {
 			if errors.Is(err, sql.ErrNoRows) {
 				return fmt.Errorf("job %q: %w", id, ErrNotFound)
 			}
 			return err
 		}
-		if st != JobQueued && st != JobRunning {
-			return fmt.Errorf("job %q is %s: %w", id, st, ErrConflict)
+		if st != batch.JobQueued && st != batch.JobRunning {
+			return fmt.Errorf("job %q is %s: %w", id, st, ErrJobFinished)
 		}
-		_, err := tx.ExecContext(ctx, `UPDATE jobs SET status = 'canceled', finished_at = ? WHERE id = ?`, now(), id)
+		_, err := s.exec(ctx, tx, `UPDATE jobs SET status = 'canceled', finished_at = ? WHERE id = ?`, now(), id)
 		return err
 	})
 	if err != nil {
-		return Job{}, err
+		return batch.Job{}, err
 	}
 	return s.GetJob(ctx, id)
 }
 
-// RankedItems streams a job's items in rank order (screened by score descending, ΔG_p
-// ascending, submission order; then failed and still-pending items in submission order),
-// calling fn for each from position offset, at most limit (limit <= 0: all).
-func (s *Store) RankedItems(ctx context.Context, jobID string, offset, limit int, fn func(rank int, it JobItem) error) error {
+// RankedItem is one item of a job in rank order: its input and, once screened, its result (a
+// screen result) or error (an item error).
+type RankedItem struct {
+	Seq    int
+	ItemID string
+	Line   int
+	Extra  []string
+	State  string // batch.ItemPending, ItemDone or ItemFailed
+	Result json.RawMessage
+}
+
+// RankedItems streams a job's items in rank order (the rank key of batch, then submission
+// order; failed and still-pending items share the key that puts them last), calling fn for each
+// from position offset, at most limit (limit ≤ 0: all). fn's error stops the stream and is
+// returned.
+func (s *Store) RankedItems(ctx context.Context, jobID string, offset, limit int, fn func(rank int, it RankedItem) error) error {
 	if limit <= 0 {
 		limit = -1
+		if s.dialect.numbered {
+			limit = 1 << 62
+		}
 	}
-	rows, err := s.db.QueryContext(ctx, `SELECT seq, item_id, line, source, extra, state, result, score, dg FROM job_items WHERE job_id = ?
-		ORDER BY CASE state WHEN 'done' THEN 0 ELSE 1 END, score DESC, dg, seq LIMIT ? OFFSET ?`, jobID, limit, offset)
+	last := batch.FailedKey()
+	rows, err := s.db.QueryContext(ctx, s.q(`SELECT i.seq, i.item_id, i.line, i.extra, r.failed, r.result
+		FROM job_items i LEFT JOIN job_results r ON r.job_id = i.job_id AND r.seq = i.seq
+		WHERE i.job_id = ? ORDER BY COALESCE(r.rank_key, ?), i.seq LIMIT ? OFFSET ?`), jobID, last[:], limit, offset)
 	if err != nil {
 		return fmt.Errorf("ranked items: %w", err)
 	}
 	defer rows.Close()
 	rank := offset
 	for rows.Next() {
-		var it JobItem
-		var src, ex, res string
-		var score, dg sql.NullFloat64
-		if err := rows.Scan(&it.Seq, &it.ItemID, &it.Line, &src, &ex, &it.State, &res, &score, &dg); err != nil {
+		var it RankedItem
+		var ex string
+		var failed sql.NullInt64
+		var res []byte
+		if err := rows.Scan(&it.Seq, &it.ItemID, &it.Line, &ex, &failed, &res); err != nil {
 			return fmt.Errorf("ranked items: %w", err)
 		}
-		it.Source, it.Result = json.RawMessage(src), json.RawMessage(res)
-		_ = json.Unmarshal([]byte(ex), &it.Extra)
-		if score.Valid {
-			v := score.Float64
-			it.Score = &v
+		if err := json.Unmarshal([]byte(ex), &it.Extra); err != nil {
+			return fmt.Errorf("ranked items: item %d extra columns: %w", it.Seq, err)
 		}
-		if dg.Valid {
-			v := dg.Float64
-			it.DG = &v
+		switch {
+		case !failed.Valid:
+			it.State = batch.ItemPending
+		case failed.Int64 != 0:
+			it.State, it.Result = batch.ItemFailed, res
+		default:
+			it.State, it.Result = batch.ItemDone, res
 		}
 		rank++
 		if err := fn(rank, it); err != nil {
@@ -303,103 +234,152 @@ func (s *Store) RankedItems(ctx context.Context, jobID string, offset, limit int
 	return rows.Err()
 }
 
-// Idempotent returns a stored response for (route, key) when one exists with the same body
-// hash; ErrIdempotencyMismatch when the key was used with another body; ErrNotFound when new.
-func (s *Store) Idempotent(ctx context.Context, route, key, bodyHash string) (int, []byte, error) {
-	var h string
-	var status int
-	var resp []byte
-	err := s.db.QueryRowContext(ctx, `SELECT body_hash, status, response FROM idempotency WHERE route = ? AND key = ?`, route, key).Scan(&h, &status, &resp)
-	if errors.Is(err, sql.ErrNoRows) {
-		return 0, nil, ErrNotFound
-	}
+// The batch.Store methods: chunk claims under leases.
+
+var _ batch.Store = (*Store)(nil)
+
+func nowMs() int64 { return time.Now().UnixMilli() }
+
+// ClaimChunk implements batch.Store.
+func (s *Store) ClaimChunk(ctx context.Context, owner string, lease time.Duration) (batch.Chunk, error) {
+	var c batch.Chunk
+	err := s.tx(ctx, func(tx *sql.Tx) error {
+		t := nowMs()
+		var cond string
+		err := s.queryRow(ctx, tx, `SELECT c.job_id, c.chunk_no, c.first_seq, c.last_seq, j.conditions FROM job_chunks c JOIN jobs j ON j.id = c.job_id
+			WHERE j.status IN ('queued', 'running') AND (c.state = 'pending' OR (c.state = 'claimed' AND c.lease_until_ms < ?))
+			ORDER BY j.created_at, j.id, c.chunk_no LIMIT 1`+s.dialect.lockSkip, t).Scan(&c.JobID, &c.No, &c.FirstSeq, &c.LastSeq, &cond)
+		if errors.Is(err, sql.ErrNoRows) {
+			return ErrNotFound
+		}
+		if err != nil {
+			return err
+		}
+		if c.Conditions, err = batch.DecodeConditions([]byte(cond)); err != nil {
+			return err
+		}
+		c.Owner = owner
+		if _, err := s.exec(ctx, tx, `UPDATE job_chunks SET state = 'claimed', owner = ?, lease_until_ms = ?, attempts = attempts + 1 WHERE job_id = ? AND chunk_no = ?`,
+			owner, t+lease.Milliseconds(), c.JobID, c.No); err != nil {
+			return err
+		}
+		_, err = s.exec(ctx, tx, `UPDATE jobs SET status = 'running', started_at = CASE WHEN started_at = '' THEN ? ELSE started_at END WHERE id = ? AND status = 'queued'`, now(), c.JobID)
+		return err
+	})
 	if err != nil {
-		return 0, nil, err
+		return batch.Chunk{}, err
 	}
-	if h != bodyHash {
-		return 0, nil, ErrIdempotencyMismatch
-	}
-	return status, resp, nil
+	return c, nil
 }
 
-// SaveIdempotent records the response of a request made with an Idempotency-Key. A concurrent
-// first request with the same key keeps the earlier record.
-func (s *Store) SaveIdempotent(ctx context.Context, route, key, bodyHash string, status int, resp []byte) error {
-	_, err := s.db.ExecContext(ctx, `INSERT OR IGNORE INTO idempotency (route, key, body_hash, status, response, created_at) VALUES (?, ?, ?, ?, ?, ?)`,
-		route, key, bodyHash, status, resp, now())
-	return err
-}
-
-// APIKey is a stored key (the secret is never stored, only its SHA-256).
-type APIKey struct {
-	ID        string    `json:"id"`
-	Name      string    `json:"name"`
-	CreatedAt time.Time `json:"created_at"`
-	Revoked   bool      `json:"revoked"`
-}
-
-func hashKey(secret string) string {
-	h := sha256.Sum256([]byte(secret))
-	return hex.EncodeToString(h[:])
-}
-
-// CreateAPIKey makes a key and returns it with its secret, shown once.
-func (s *Store) CreateAPIKey(ctx context.Context, name string) (APIKey, string, error) {
-	var b [24]byte
-	if _, err := rand.Read(b[:]); err != nil {
-		return APIKey{}, "", err
-	}
-	secret := "rsk_" + hex.EncodeToString(b[:])
-	k := APIKey{ID: newID("key_"), Name: name}
-	ts := now()
-	if _, err := s.db.ExecContext(ctx, `INSERT INTO api_keys (id, name, hash, created_at) VALUES (?, ?, ?, ?)`, k.ID, name, hashKey(secret), ts); err != nil {
-		return APIKey{}, "", fmt.Errorf("create key: %w", err)
-	}
-	k.CreatedAt = parseTime(ts)
-	return k, secret, nil
-}
-
-// CheckAPIKey returns the id of the unrevoked key with this secret, or ErrNotFound.
-func (s *Store) CheckAPIKey(ctx context.Context, secret string) (string, error) {
-	if !strings.HasPrefix(secret, "rsk_") {
-		return "", ErrNotFound
-	}
-	var id string
-	err := s.db.QueryRowContext(ctx, `SELECT id FROM api_keys WHERE hash = ? AND revoked_at = ''`, hashKey(secret)).Scan(&id)
-	if errors.Is(err, sql.ErrNoRows) {
-		return "", ErrNotFound
-	}
-	return id, err
-}
-
-// ListAPIKeys lists keys (never secrets).
-func (s *Store) ListAPIKeys(ctx context.Context) ([]APIKey, error) {
-	rows, err := s.db.QueryContext(ctx, `SELECT id, name, created_at, revoked_at FROM api_keys ORDER BY created_at`)
+// ChunkItems implements batch.Store: the chunk's items that have no result yet.
+func (s *Store) ChunkItems(ctx context.Context, c batch.Chunk) ([]batch.Item, error) {
+	rows, err := s.db.QueryContext(ctx, s.q(`SELECT i.seq, i.item_id, i.line, i.source, i.extra FROM job_items i
+		WHERE i.job_id = ? AND i.seq BETWEEN ? AND ? AND NOT EXISTS (SELECT 1 FROM job_results r WHERE r.job_id = i.job_id AND r.seq = i.seq)
+		ORDER BY i.seq`), c.JobID, c.FirstSeq, c.LastSeq)
 	if err != nil {
 		return nil, err
 	}
 	defer rows.Close()
-	out := []APIKey{}
+	var out []batch.Item
 	for rows.Next() {
-		var k APIKey
-		var created, revoked string
-		if err := rows.Scan(&k.ID, &k.Name, &created, &revoked); err != nil {
+		var it batch.Item
+		var src, ex string
+		if err := rows.Scan(&it.Seq, &it.ItemID, &it.Line, &src, &ex); err != nil {
 			return nil, err
 		}
-		k.CreatedAt, k.Revoked = parseTime(created), revoked != ""
-		out = append(out, k)
+		if err := json.Unmarshal([]byte(src), &it.Source); err != nil {
+			return nil, fmt.Errorf("item %d source: %w", it.Seq, err)
+		}
+		if err := json.Unmarshal([]byte(ex), &it.Extra); err != nil {
+			return nil, fmt.Errorf("item %d extra columns: %w", it.Seq, err)
+		}
+		out = append(out, it)
 	}
 	return out, rows.Err()
 }
 
-// RevokeAPIKey revokes a key by id.
-func (s *Store) RevokeAPIKey(ctx context.Context, id string) error {
-	res, err := s.db.ExecContext(ctx, `UPDATE api_keys SET revoked_at = ? WHERE id = ? AND revoked_at = ''`, now(), id)
-	if err != nil {
+// RenewLease implements batch.Store.
+func (s *Store) RenewLease(ctx context.Context, c batch.Chunk, lease time.Duration) (string, error) {
+	var status string
+	err := s.tx(ctx, func(tx *sql.Tx) error {
+		res, err := s.exec(ctx, tx, `UPDATE job_chunks SET lease_until_ms = ? WHERE job_id = ? AND chunk_no = ? AND state = 'claimed' AND owner = ?`,
+			nowMs()+lease.Milliseconds(), c.JobID, c.No, c.Owner)
+		if err != nil {
+			return err
+		}
+		if n, err := res.RowsAffected(); err != nil {
+			return err
+		} else if n == 0 {
+			return batch.ErrLeaseLost
+		}
+		return s.queryRow(ctx, tx, `SELECT status FROM jobs WHERE id = ?`, c.JobID).Scan(&status)
+	})
+	return status, err
+}
+
+// CompleteChunk implements batch.Store: outcomes of items already recorded are skipped, so a
+// chunk redone after a lost lease never counts an item twice.
+func (s *Store) CompleteChunk(ctx context.Context, c batch.Chunk, outs []batch.Outcome) (string, error) {
+	var status string
+	err := s.tx(ctx, func(tx *sql.Tx) error {
+		res, err := s.exec(ctx, tx, `UPDATE job_chunks SET state = 'done', owner = '', lease_until_ms = 0 WHERE job_id = ? AND chunk_no = ? AND state = 'claimed' AND owner = ?`,
+			c.JobID, c.No, c.Owner)
+		if err != nil {
+			return err
+		}
+		if n, err := res.RowsAffected(); err != nil {
+			return err
+		} else if n == 0 {
+			return batch.ErrLeaseLost
+		}
+		stmt, err := tx.PrepareContext(ctx, s.q(`INSERT INTO job_results (job_id, seq, rank_key, verdict, failed, result) VALUES (?, ?, ?, ?, ?, ?) ON CONFLICT DO NOTHING`))
+		if err != nil {
+			return err
+		}
+		defer stmt.Close()
+		done, failed := 0, 0
+		for _, o := range outs {
+			f := 0
+			if o.Failed {
+				f = 1
+			}
+			r, err := stmt.ExecContext(ctx, c.JobID, o.Seq, o.Key[:], o.Verdict, f, o.Result)
+			if err != nil {
+				return err
+			}
+			if n, err := r.RowsAffected(); err != nil {
+				return err
+			} else if n == 1 {
+				done++
+				failed += f
+			}
+		}
+		if _, err := s.exec(ctx, tx, `UPDATE jobs SET done = done + ?, failed = failed + ? WHERE id = ?`, done, failed, c.JobID); err != nil {
+			return err
+		}
+		if _, err := s.exec(ctx, tx, `UPDATE jobs SET status = 'done', finished_at = ? WHERE id = ? AND status = 'running'
+			AND NOT EXISTS (SELECT 1 FROM job_chunks WHERE job_id = ? AND state != 'done')`, now(), c.JobID, c.JobID); err != nil {
+			return err
+		}
+		return s.queryRow(ctx, tx, `SELECT status FROM jobs WHERE id = ?`, c.JobID).Scan(&status)
+	})
+	return status, err
+}
+
+// ReleaseChunk implements batch.Store.
+func (s *Store) ReleaseChunk(ctx context.Context, c batch.Chunk) error {
+	return s.tx(ctx, func(tx *sql.Tx) error {
+		_, err := s.exec(ctx, tx, `UPDATE job_chunks SET state = 'pending', owner = '', lease_until_ms = 0 WHERE job_id = ? AND chunk_no = ? AND state = 'claimed' AND owner = ?`,
+			c.JobID, c.No, c.Owner)
 		return err
-	}
-	if n, _ := res.RowsAffected(); n == 0 {
-		return fmt.Errorf("key %q: %w", id, ErrNotFound)
-	}
-	return nil
+	})
+}
+
+// FailJob implements batch.Store.
+func (s *Store) FailJob(ctx context.Context, jobID, msg string) error {
+	return s.tx(ctx, func(tx *sql.Tx) error {
+		_, err := s.exec(ctx, tx, `UPDATE jobs SET status = 'failed', error = ?, finished_at = ? WHERE id = ? AND status IN ('queued', 'running')`, msg, now(), jobID)
+		return err
+	})
 }

@@ -1,5 +1,7 @@
-// Package data is ringsieve's SQLite store: monomers with their descriptor records and tags,
-// saved screening results, and asynchronous jobs. It imports no HTTP.
+// Package data is ringsieve's store: monomers with their descriptor records and tags, saved
+// screening results, asynchronous jobs (items, chunks claimed under leases, results), API keys
+// and idempotency records. SQLite is the embedded default; the SQL is written so that the
+// server engine behind the same Store runs it too. It imports no HTTP.
 package data
 
 import (
@@ -7,61 +9,70 @@ import (
 	"crypto/rand"
 	"database/sql"
 	"encoding/hex"
-	"encoding/json"
 	"errors"
 	"fmt"
-	"net/url"
-	"sort"
+	"strconv"
 	"strings"
 	"time"
 
-	_ "github.com/mattn/go-sqlite3" // SQLite driver (cgo)
-	"github.com/pressly/goose/v3"
-
-	"ringsieve/migrations"
+	"ringsieve/screening/batch"
 )
 
 // Store errors; callers test them with errors.Is.
 var (
-	ErrNotFound = errors.New("not found")
+	// ErrNotFound: no such monomer, job, key or record (the batch runner's sentinel, so that a
+	// missing monomer in a job is told apart from a failing store).
+	ErrNotFound = batch.ErrNotFound
+	// ErrConflict: the stored version is not the one the write was conditional on.
 	ErrConflict = errors.New("version conflict")
+	// ErrJobFinished: the job has already finished and cannot be canceled.
+	ErrJobFinished = errors.New("job already finished")
+	// ErrIdempotencyMismatch: an Idempotency-Key reused with a different request.
+	ErrIdempotencyMismatch = errors.New("idempotency key reused with a different request")
+	// ErrIdempotencyInFlight: another request with the same Idempotency-Key is being served.
+	ErrIdempotencyInFlight = errors.New("a request with this idempotency key is in progress")
 )
 
-// Store is an open SQLite database.
+// Store is an open database.
 type Store struct {
-	db *sql.DB
+	db      *sql.DB
+	dialect dialect
+	path    string // SQLite file, for messages
 }
 
-// Open opens (creating if needed) the SQLite database at path with WAL journaling, foreign keys
-// on and a busy timeout, and applies every pending migration.
-func Open(ctx context.Context, path string) (*Store, error) {
-	q := url.Values{}
-	q.Set("_journal_mode", "WAL")
-	q.Set("_foreign_keys", "on")
-	q.Set("_busy_timeout", "5000")
-	q.Set("_synchronous", "NORMAL")
-	q.Set("_txlock", "immediate")
-	// the path is part of a URI: escape the characters that would end or change it
-	esc := strings.NewReplacer("%", "%25", "?", "%3f", "#", "%23").Replace(path)
-	db, err := sql.Open("sqlite3", "file:"+esc+"?"+q.Encode())
-	if err != nil {
-		return nil, fmt.Errorf("open %s: %w", path, err)
+// dialect holds what differs between the engines the SQL runs on.
+type dialect struct {
+	name string
+	// numbered placeholders ($1, $2, ...) instead of ?
+	numbered bool
+	// lockSkip is appended to the claim query to lock the row and skip rows other workers hold
+	lockSkip string
+	// tagList aggregates a monomer's tags separated by the unit separator
+	tagList string
+}
+
+var sqliteDialect = dialect{
+	name:    "sqlite",
+	tagList: `COALESCE((SELECT group_concat(tag, char(31)) FROM monomer_tags t WHERE t.monomer_id = m.id), '')`,
+}
+
+// q rewrites a query written with ? placeholders for the store's engine.
+func (s *Store) q(query string) string {
+	if !s.dialect.numbered {
+		return query
 	}
-	db.SetMaxOpenConns(8)
-	if err := db.PingContext(ctx); err != nil {
-		db.Close()
-		return nil, fmt.Errorf("open %s: %w", path, err)
+	var b strings.Builder
+	n := 0
+	for i := 0; i < len(query); i++ {
+		if query[i] == '?' {
+			n++
+			b.WriteByte('$')
+			b.WriteString(strconv.Itoa(n))
+			continue
+		}
+		b.WriteByte(query[i])
 	}
-	prov, err := goose.NewProvider(goose.DialectSQLite3, db, migrations.FS)
-	if err != nil {
-		db.Close()
-		return nil, fmt.Errorf("migrations: %w", err)
-	}
-	if _, err := prov.Up(ctx); err != nil {
-		db.Close()
-		return nil, fmt.Errorf("migrate %s: %w", path, err)
-	}
-	return &Store{db: db}, nil
+	return b.String()
 }
 
 // Close closes the database.
@@ -72,6 +83,9 @@ func (s *Store) Ping(ctx context.Context) error { return s.db.PingContext(ctx) }
 
 // DB exposes the handle for tests and maintenance.
 func (s *Store) DB() *sql.DB { return s.db }
+
+// Engine names the database engine ("sqlite").
+func (s *Store) Engine() string { return s.dialect.name }
 
 func newID(prefix string) string {
 	var b [8]byte
@@ -88,274 +102,34 @@ func parseTime(s string) time.Time {
 	return t
 }
 
-// tx runs fn in a transaction, committing on success.
+func tsPtr(s string) *time.Time {
+	if s == "" {
+		return nil
+	}
+	t := parseTime(s)
+	return &t
+}
+
+// tx runs fn in a transaction, committing on success and rolling back on any error.
 func (s *Store) tx(ctx context.Context, fn func(*sql.Tx) error) error {
 	t, err := s.db.BeginTx(ctx, nil)
 	if err != nil {
 		return err
 	}
 	if err := fn(t); err != nil {
-		t.Rollback()
+		if rb := t.Rollback(); rb != nil && !errors.Is(rb, sql.ErrTxDone) {
+			return fmt.Errorf("%w (and rollback: %v)", err, rb)
+		}
 		return err
 	}
 	return t.Commit()
 }
 
-// Monomer is a stored monomer.
-type Monomer struct {
-	ID          string          `json:"id"`
-	Name        string          `json:"name"`
-	SMILES      string          `json:"smiles,omitempty"`
-	Descriptors json.RawMessage `json:"descriptors,omitempty" swaggertype:"object"`
-	Tags        []string        `json:"tags"`
-	Version     int             `json:"version"`
-	CreatedAt   time.Time       `json:"created_at"`
-	UpdatedAt   time.Time       `json:"updated_at"`
+// exec and queryRow run a ?-placeholder query in a transaction on the store's engine.
+func (s *Store) exec(ctx context.Context, tx *sql.Tx, query string, args ...any) (sql.Result, error) {
+	return tx.ExecContext(ctx, s.q(query), args...)
 }
 
-func normTags(tags []string) []string {
-	set := map[string]bool{}
-	out := []string{}
-	for _, t := range tags {
-		t = strings.TrimSpace(t)
-		if t != "" && !set[t] {
-			set[t] = true
-			out = append(out, t)
-		}
-	}
-	sort.Strings(out)
-	return out
-}
-
-func descText(d json.RawMessage) string {
-	if len(d) == 0 {
-		return "null"
-	}
-	return string(d)
-}
-
-// CreateMonomer stores a new monomer and returns it with its id, version 1 and timestamps.
-func (s *Store) CreateMonomer(ctx context.Context, m Monomer) (Monomer, error) {
-	m.ID = newID("mon_")
-	m.Tags = normTags(m.Tags)
-	m.Version = 1
-	ts := now()
-	err := s.tx(ctx, func(tx *sql.Tx) error {
-		if _, err := tx.ExecContext(ctx, `INSERT INTO monomers (id, name, smiles, descriptors, version, created_at, updated_at) VALUES (?, ?, ?, ?, 1, ?, ?)`,
-			m.ID, m.Name, m.SMILES, descText(m.Descriptors), ts, ts); err != nil {
-			return err
-		}
-		return insertTags(ctx, tx, m.ID, m.Tags)
-	})
-	if err != nil {
-		return Monomer{}, fmt.Errorf("create monomer: %w", err)
-	}
-	m.CreatedAt, m.UpdatedAt = parseTime(ts), parseTime(ts)
-	return m, nil
-}
-
-func insertTags(ctx context.Context, tx *sql.Tx, id string, tags []string) error {
-	for _, t := range tags {
-		if _, err := tx.ExecContext(ctx, `INSERT INTO monomer_tags (monomer_id, tag) VALUES (?, ?)`, id, t); err != nil {
-			return err
-		}
-	}
-	return nil
-}
-
-type rowScanner interface{ Scan(...any) error }
-
-func scanMonomer(r rowScanner) (Monomer, error) {
-	var m Monomer
-	var desc, created, updated, tags string
-	if err := r.Scan(&m.ID, &m.Name, &m.SMILES, &desc, &m.Version, &created, &updated, &tags); err != nil {
-		return Monomer{}, err
-	}
-	if desc != "null" {
-		m.Descriptors = json.RawMessage(desc)
-	}
-	m.CreatedAt, m.UpdatedAt = parseTime(created), parseTime(updated)
-	m.Tags = []string{}
-	if tags != "" {
-		m.Tags = strings.Split(tags, "\x1f")
-		sort.Strings(m.Tags)
-	}
-	return m, nil
-}
-
-const monomerCols = `m.id, m.name, m.smiles, m.descriptors, m.version, m.created_at, m.updated_at,
-	COALESCE((SELECT group_concat(tag, char(31)) FROM monomer_tags t WHERE t.monomer_id = m.id), '')`
-
-// GetMonomer returns the monomer with id, or ErrNotFound.
-func (s *Store) GetMonomer(ctx context.Context, id string) (Monomer, error) {
-	m, err := scanMonomer(s.db.QueryRowContext(ctx, `SELECT `+monomerCols+` FROM monomers m WHERE m.id = ?`, id))
-	if errors.Is(err, sql.ErrNoRows) {
-		return Monomer{}, fmt.Errorf("monomer %q: %w", id, ErrNotFound)
-	}
-	if err != nil {
-		return Monomer{}, fmt.Errorf("get monomer: %w", err)
-	}
-	return m, nil
-}
-
-// MonomerFilter selects monomers for listing.
-type MonomerFilter struct {
-	Tag    string // exact tag
-	Name   string // case-insensitive substring of the name
-	Limit  int    // 1..500
-	Offset int
-}
-
-// ListMonomers returns one page of monomers, newest first, and the total matching.
-func (s *Store) ListMonomers(ctx context.Context, f MonomerFilter) ([]Monomer, int, error) {
-	var where []string
-	var args []any
-	if f.Tag != "" {
-		where = append(where, `EXISTS (SELECT 1 FROM monomer_tags t WHERE t.monomer_id = m.id AND t.tag = ?)`)
-		args = append(args, f.Tag)
-	}
-	if f.Name != "" {
-		where = append(where, `instr(lower(m.name), lower(?)) > 0`)
-		args = append(args, f.Name)
-	}
-	cond := ""
-	if len(where) > 0 {
-		cond = " WHERE " + strings.Join(where, " AND ")
-	}
-	var total int
-	if err := s.db.QueryRowContext(ctx, `SELECT count(*) FROM monomers m`+cond, args...).Scan(&total); err != nil {
-		return nil, 0, fmt.Errorf("count monomers: %w", err)
-	}
-	rows, err := s.db.QueryContext(ctx, `SELECT `+monomerCols+` FROM monomers m`+cond+` ORDER BY m.created_at DESC, m.id LIMIT ? OFFSET ?`,
-		append(args, f.Limit, f.Offset)...)
-	if err != nil {
-		return nil, 0, fmt.Errorf("list monomers: %w", err)
-	}
-	defer rows.Close()
-	out := []Monomer{}
-	for rows.Next() {
-		m, err := scanMonomer(rows)
-		if err != nil {
-			return nil, 0, fmt.Errorf("list monomers: %w", err)
-		}
-		out = append(out, m)
-	}
-	return out, total, rows.Err()
-}
-
-// ReplaceMonomer replaces name, SMILES, descriptors and tags of monomer id. When ifVersion > 0
-// the replace happens only if the stored version matches (else ErrConflict). The version is
-// bumped.
-func (s *Store) ReplaceMonomer(ctx context.Context, id string, m Monomer, ifVersion int) (Monomer, error) {
-	m.Tags = normTags(m.Tags)
-	ts := now()
-	var out Monomer
-	err := s.tx(ctx, func(tx *sql.Tx) error {
-		var ver int
-		var created string
-		err := tx.QueryRowContext(ctx, `SELECT version, created_at FROM monomers WHERE id = ?`, id).Scan(&ver, &created)
-		if errors.Is(err, sql.ErrNoRows) {
-			return fmt.Errorf("monomer %q: %w", id, ErrNotFound)
-		}
-		if err != nil {
-			return err
-		}
-		if ifVersion > 0 && ver != ifVersion {
-			return fmt.Errorf("monomer %q is at version %d, not %d: %w", id, ver, ifVersion, ErrConflict)
-		}
-		if _, err := tx.ExecContext(ctx, `UPDATE monomers SET name = ?, smiles = ?, descriptors = ?, version = version + 1, updated_at = ? WHERE id = ?`,
-			m.Name, m.SMILES, descText(m.Descriptors), ts, id); err != nil {
-			return err
-		}
-		if _, err := tx.ExecContext(ctx, `DELETE FROM monomer_tags WHERE monomer_id = ?`, id); err != nil {
-			return err
-		}
-		if err := insertTags(ctx, tx, id, m.Tags); err != nil {
-			return err
-		}
-		out = m
-		out.ID, out.Version = id, ver+1
-		out.CreatedAt, out.UpdatedAt = parseTime(created), parseTime(ts)
-		return nil
-	})
-	if err != nil {
-		return Monomer{}, fmt.Errorf("replace monomer: %w", err)
-	}
-	return out, nil
-}
-
-// DeleteMonomer removes monomer id and its saved results.
-func (s *Store) DeleteMonomer(ctx context.Context, id string) error {
-	return s.tx(ctx, func(tx *sql.Tx) error {
-		res, err := tx.ExecContext(ctx, `DELETE FROM monomers WHERE id = ?`, id)
-		if err != nil {
-			return fmt.Errorf("delete monomer: %w", err)
-		}
-		if n, _ := res.RowsAffected(); n == 0 {
-			return fmt.Errorf("monomer %q: %w", id, ErrNotFound)
-		}
-		return nil
-	})
-}
-
-// SavedResult is a screening result stored against a monomer.
-type SavedResult struct {
-	ID            int64           `json:"id"`
-	MonomerID     string          `json:"monomer_id"`
-	Conditions    json.RawMessage `json:"conditions" swaggertype:"object"`
-	Verdict       string          `json:"verdict"`
-	Score         float64         `json:"score"`
-	Result        json.RawMessage `json:"result" swaggertype:"object"`
-	EngineVersion string          `json:"engine_version"`
-	CreatedAt     time.Time       `json:"created_at"`
-}
-
-// SaveResult stores a result for monomer r.MonomerID (ErrNotFound when it does not exist).
-func (s *Store) SaveResult(ctx context.Context, r SavedResult) (SavedResult, error) {
-	ts := now()
-	err := s.tx(ctx, func(tx *sql.Tx) error {
-		var one int
-		if err := tx.QueryRowContext(ctx, `SELECT 1 FROM monomers WHERE id = ?`, r.MonomerID).Scan(&one); err != nil {
-			if errors.Is(err, sql.ErrNoRows) {
-				return fmt.Errorf("monomer %q: %w", r.MonomerID, ErrNotFound)
-			}
-			return err
-		}
-		res, err := tx.ExecContext(ctx, `INSERT INTO results (monomer_id, conditions, verdict, score, result, engine_version, created_at) VALUES (?, ?, ?, ?, ?, ?, ?)`,
-			r.MonomerID, string(r.Conditions), r.Verdict, r.Score, string(r.Result), r.EngineVersion, ts)
-		if err != nil {
-			return err
-		}
-		r.ID, err = res.LastInsertId()
-		return err
-	})
-	if err != nil {
-		return SavedResult{}, fmt.Errorf("save result: %w", err)
-	}
-	r.CreatedAt = parseTime(ts)
-	return r, nil
-}
-
-// ListResults returns the saved results of a monomer, newest first (ErrNotFound when the
-// monomer does not exist).
-func (s *Store) ListResults(ctx context.Context, monomerID string, limit int) ([]SavedResult, error) {
-	if _, err := s.GetMonomer(ctx, monomerID); err != nil {
-		return nil, err
-	}
-	rows, err := s.db.QueryContext(ctx, `SELECT id, monomer_id, conditions, verdict, score, result, engine_version, created_at FROM results WHERE monomer_id = ? ORDER BY id DESC LIMIT ?`, monomerID, limit)
-	if err != nil {
-		return nil, fmt.Errorf("list results: %w", err)
-	}
-	defer rows.Close()
-	out := []SavedResult{}
-	for rows.Next() {
-		var r SavedResult
-		var cond, res, created string
-		if err := rows.Scan(&r.ID, &r.MonomerID, &cond, &r.Verdict, &r.Score, &res, &r.EngineVersion, &created); err != nil {
-			return nil, fmt.Errorf("list results: %w", err)
-		}
-		r.Conditions, r.Result, r.CreatedAt = json.RawMessage(cond), json.RawMessage(res), parseTime(created)
-		out = append(out, r)
-	}
-	return out, rows.Err()
+func (s *Store) queryRow(ctx context.Context, tx *sql.Tx, query string, args ...any) *sql.Row {
+	return tx.QueryRowContext(ctx, s.q(query), args...)
 }

@@ -5,10 +5,15 @@ import (
 	"database/sql"
 	"encoding/json"
 	"errors"
+	"fmt"
 	"os"
 	"path/filepath"
 	"sync"
 	"testing"
+	"time"
+
+	"ringsieve/screening"
+	"ringsieve/screening/batch"
 )
 
 // Store tests run on a real SQLite file in a temporary directory.
@@ -121,7 +126,7 @@ func TestFailedWriteLeavesNothing(t *testing.T) {
 		if _, err := tx.ExecContext(ctx, `INSERT INTO monomers (id, name, created_at, updated_at) VALUES (?, 'x', 'now', 'now')`, id); err != nil {
 			return err
 		}
-		return insertTags(ctx, tx, id, []string{"dup", "dup"})
+		return s.insertTags(ctx, tx, id, []string{"dup", "dup"})
 	})
 	if err == nil {
 		t.Fatal("duplicate tag insert succeeded")
@@ -131,44 +136,147 @@ func TestFailedWriteLeavesNothing(t *testing.T) {
 	}
 }
 
-func TestJobsRecordOnceAndCancel(t *testing.T) {
-	ctx := context.Background()
-	s, _ := openTemp(t)
-	items := []JobItem{{ItemID: "a", Source: json.RawMessage(`{"smiles":"C1=CCCC1"}`)}, {ItemID: "b", Source: json.RawMessage(`{"smiles":"C"}`)}}
-	j, err := s.CreateJobStream(ctx, func(add func(JobItem) error) (JobMeta, error) {
-		for _, it := range items {
-			if err := add(it); err != nil {
+// newJob stores a job of n items (sources as given, cycled) in chunks of size.
+func newJob(t *testing.T, s *Store, size int, sources ...string) batch.Job {
+	t.Helper()
+	j, err := s.CreateJob(context.Background(), size, func(add func(JobInput) error) (JobMeta, error) {
+		for i, smi := range sources {
+			if err := add(JobInput{ItemID: fmt.Sprint("item-", i), Source: batch.ItemSource{SMILES: smi}}); err != nil {
 				return JobMeta{}, err
 			}
 		}
-		return JobMeta{Conditions: json.RawMessage(`{}`), Format: "json"}, nil
+		return JobMeta{Conditions: batch.EffectiveConditions(screening.DefaultConditions()), Format: "json"}, nil
 	})
 	if err != nil {
 		t.Fatal(err)
 	}
-	out := []ItemOutcome{{Seq: 0, Verdict: "polymerizes", Score: 0.9, DG: -10, Result: []byte(`{}`)}}
-	// recording the same outcome twice (a replay after a crash) counts it once
-	for i := 0; i < 2; i++ {
-		if _, err := s.RecordOutcomes(ctx, j.ID, out); err != nil {
-			t.Fatal(err)
-		}
+	return j
+}
+
+func outcomes(items []batch.Item) []batch.Outcome {
+	var outs []batch.Outcome
+	for _, it := range items {
+		outs = append(outs, batch.Outcome{Seq: it.Seq, Verdict: "polymerizes", Key: batch.ScoreKey(0.9, -10), Result: []byte(`{}`)})
+	}
+	return outs
+}
+
+// TestChunksClaimedOnceAndRecordedOnce: two workers never hold one chunk; a worker whose lease
+// expired and was taken over cannot store its outcomes; a chunk redone does not count twice;
+// the job finishes with its last chunk.
+func TestChunksClaimedOnceAndRecordedOnce(t *testing.T) {
+	ctx := context.Background()
+	s, _ := openTemp(t)
+	j := newJob(t, s, 2, "C1=CCCC1", "C", "C1=CC2CCC1C2")
+	a, err := s.ClaimChunk(ctx, "A", time.Minute)
+	if err != nil || a.No != 0 || a.FirstSeq != 0 || a.LastSeq != 1 {
+		t.Fatalf("first claim %+v %v", a, err)
+	}
+	b, err := s.ClaimChunk(ctx, "B", time.Minute)
+	if err != nil || b.No != 1 || b.FirstSeq != 2 || b.LastSeq != 2 {
+		t.Fatalf("second claim %+v %v", b, err)
+	}
+	if _, err := s.ClaimChunk(ctx, "C", time.Minute); !errors.Is(err, ErrNotFound) {
+		t.Fatalf("third claim: %v, want no work", err)
 	}
 	got, _ := s.GetJob(ctx, j.ID)
-	if got.Done != 1 {
-		t.Fatalf("done %d after a replay, want 1", got.Done)
+	if got.Status != batch.JobRunning || got.StartedAt == nil {
+		t.Fatalf("after claims: %+v", got)
+	}
+	// A's lease runs out; C takes the chunk over; A can no longer store or renew it
+	if _, err := s.DB().Exec(`UPDATE job_chunks SET lease_until_ms = 1 WHERE job_id = ? AND chunk_no = 0`, j.ID); err != nil {
+		t.Fatal(err)
+	}
+	c, err := s.ClaimChunk(ctx, "C", time.Minute)
+	if err != nil || c.No != 0 {
+		t.Fatalf("takeover %+v %v", c, err)
+	}
+	items, err := s.ChunkItems(ctx, a)
+	if err != nil || len(items) != 2 || items[1].Source.SMILES != "C" {
+		t.Fatalf("items %+v %v", items, err)
+	}
+	if _, err := s.CompleteChunk(ctx, a, outcomes(items)); !errors.Is(err, batch.ErrLeaseLost) {
+		t.Fatalf("stale worker stored its outcomes: %v", err)
+	}
+	if _, err := s.RenewLease(ctx, a, time.Minute); !errors.Is(err, batch.ErrLeaseLost) {
+		t.Fatalf("stale worker renewed: %v", err)
+	}
+	if st, err := s.CompleteChunk(ctx, c, outcomes(items)); err != nil || st != batch.JobRunning {
+		t.Fatalf("complete: %s %v", st, err)
+	}
+	if _, err := s.CompleteChunk(ctx, c, outcomes(items)); !errors.Is(err, batch.ErrLeaseLost) {
+		t.Fatalf("a done chunk stored again: %v", err)
+	}
+	bi, _ := s.ChunkItems(ctx, b)
+	if st, err := s.CompleteChunk(ctx, b, outcomes(bi)); err != nil || st != batch.JobDone {
+		t.Fatalf("last chunk: %s %v", st, err)
+	}
+	got, _ = s.GetJob(ctx, j.ID)
+	if got.Done != 3 || got.Status != batch.JobDone || got.FinishedAt == nil {
+		t.Fatalf("finished job %+v", got)
+	}
+	var n int
+	s.DB().QueryRow(`SELECT count(*) FROM job_results WHERE job_id = ?`, j.ID).Scan(&n)
+	if n != 3 {
+		t.Fatalf("%d results stored, want 3", n)
+	}
+	if _, err := s.CancelJob(ctx, j.ID); !errors.Is(err, ErrJobFinished) {
+		t.Fatalf("cancel of a finished job: %v", err)
+	}
+}
+
+// TestCancelKeepsResults: a canceled job is not claimed again, keeps what was stored, and stays
+// canceled when a chunk in flight completes.
+func TestCancelKeepsResults(t *testing.T) {
+	ctx := context.Background()
+	s, _ := openTemp(t)
+	j := newJob(t, s, 1, "C1=CCCC1", "C1=CCCC1")
+	c, err := s.ClaimChunk(ctx, "A", time.Minute)
+	if err != nil {
+		t.Fatal(err)
 	}
 	if _, err := s.CancelJob(ctx, j.ID); err != nil {
 		t.Fatal(err)
 	}
-	if _, err := s.CancelJob(ctx, j.ID); !errors.Is(err, ErrConflict) {
-		t.Fatalf("second cancel: %v", err)
+	items, _ := s.ChunkItems(ctx, c)
+	if st, err := s.CompleteChunk(ctx, c, outcomes(items)); err != nil || st != batch.JobCanceled {
+		t.Fatalf("complete after cancel: %s %v", st, err)
 	}
-	if err := s.FinishJob(ctx, j.ID, JobDone, ""); err != nil {
+	if _, err := s.ClaimChunk(ctx, "B", time.Minute); !errors.Is(err, ErrNotFound) {
+		t.Fatalf("a canceled job's chunk was claimed: %v", err)
+	}
+	got, _ := s.GetJob(ctx, j.ID)
+	if got.Status != batch.JobCanceled || got.Done != 1 {
+		t.Fatalf("canceled job %+v", got)
+	}
+}
+
+// TestRankedItems orders by the rank key, then submission; failed and pending items last in
+// submission order.
+func TestRankedItems(t *testing.T) {
+	ctx := context.Background()
+	s, _ := openTemp(t)
+	j := newJob(t, s, 10, "a", "b", "c", "d")
+	c, _ := s.ClaimChunk(ctx, "A", time.Minute)
+	outs := []batch.Outcome{
+		{Seq: 0, Key: batch.ScoreKey(0.5, -1), Result: []byte(`"0"`)},
+		{Seq: 1, Key: batch.FailedKey(), Failed: true, Result: []byte(`"1"`)},
+		{Seq: 3, Key: batch.ScoreKey(0.9, -1), Result: []byte(`"3"`)},
+	}
+	if _, err := s.CompleteChunk(ctx, c, outs); err != nil {
 		t.Fatal(err)
 	}
-	got, _ = s.GetJob(ctx, j.ID)
-	if got.Status != JobCanceled {
-		t.Fatalf("a canceled job became %s", got.Status)
+	var order []string
+	err := s.RankedItems(ctx, j.ID, 0, 0, func(rank int, it RankedItem) error {
+		order = append(order, fmt.Sprintf("%d:%d:%s", rank, it.Seq, it.State))
+		return nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := "[1:3:done 2:0:done 3:1:failed 4:2:pending]"
+	if fmt.Sprint(order) != want {
+		t.Fatalf("order %v, want %s", order, want)
 	}
 }
 
@@ -176,15 +284,15 @@ func TestJobsRecordOnceAndCancel(t *testing.T) {
 func TestJobStreamRollsBack(t *testing.T) {
 	ctx := context.Background()
 	s, _ := openTemp(t)
-	_, err := s.CreateJobStream(ctx, func(add func(JobItem) error) (JobMeta, error) {
-		add(JobItem{ItemID: "a", Source: json.RawMessage(`{}`)})
+	_, err := s.CreateJob(ctx, 0, func(add func(JobInput) error) (JobMeta, error) {
+		add(JobInput{ItemID: "a"})
 		return JobMeta{}, errors.New("bad row")
 	})
 	if err == nil {
 		t.Fatal("no error")
 	}
 	var n int
-	s.DB().QueryRow(`SELECT (SELECT count(*) FROM jobs) + (SELECT count(*) FROM job_items)`).Scan(&n)
+	s.DB().QueryRow(`SELECT (SELECT count(*) FROM jobs) + (SELECT count(*) FROM job_items) + (SELECT count(*) FROM job_chunks)`).Scan(&n)
 	if n != 0 {
 		t.Fatalf("%d rows left behind", n)
 	}
@@ -209,15 +317,48 @@ func TestAPIKeysAndIdempotency(t *testing.T) {
 	if _, err := s.CheckAPIKey(ctx, secret); !errors.Is(err, ErrNotFound) {
 		t.Fatal("revoked key accepted")
 	}
-	if _, _, err := s.Idempotent(ctx, "r", "k", "h"); !errors.Is(err, ErrNotFound) {
+	id := Idempotency{Scope: "key_a", Route: "POST /r", Key: "k", BodyHash: "h"}
+	if _, err := s.Idempotent(ctx, id); !errors.Is(err, ErrNotFound) {
 		t.Fatal(err)
 	}
-	s.SaveIdempotent(ctx, "r", "k", "h", 202, []byte(`{"id":"x"}`))
-	if st, b, err := s.Idempotent(ctx, "r", "k", "h"); err != nil || st != 202 || string(b) != `{"id":"x"}` {
-		t.Fatalf("replay: %d %s %v", st, b, err)
+	if err := s.SaveIdempotent(ctx, id, 202, []byte(`{"id":"x"}`)); err != nil {
+		t.Fatal(err)
 	}
-	if _, _, err := s.Idempotent(ctx, "r", "k", "other"); !errors.Is(err, ErrIdempotencyMismatch) {
+	if r, err := s.Idempotent(ctx, id); err != nil || r.Status != 202 || string(r.Response) != `{"id":"x"}` {
+		t.Fatalf("replay: %+v %v", r, err)
+	}
+	other := id
+	other.BodyHash = "other"
+	if _, err := s.Idempotent(ctx, other); !errors.Is(err, ErrIdempotencyMismatch) {
 		t.Fatal("different body not detected")
+	}
+	scoped := id
+	scoped.Scope = "key_b"
+	if _, err := s.Idempotent(ctx, scoped); !errors.Is(err, ErrNotFound) {
+		t.Fatal("another API key's record was found")
+	}
+}
+
+// TestIdempotencyInTheWriteTransaction: the record is written with the monomer; a second write
+// under the same key is refused and rolled back; the resource survives without a response.
+func TestIdempotencyInTheWriteTransaction(t *testing.T) {
+	s, _ := openTemp(t)
+	id := Idempotency{Route: "POST /v1/monomers", Key: "k1", BodyHash: "h"}
+	ctx := WithIdempotency(context.Background(), id)
+	m, err := s.CreateMonomer(ctx, Monomer{Name: "MEM-01", SMILES: "C1=CC2CCC1C2"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	r, err := s.Idempotent(context.Background(), id)
+	if err != nil || r.Status != 0 || r.Resource != m.ID {
+		t.Fatalf("record after the write (no response yet): %+v %v", r, err)
+	}
+	if _, err := s.CreateMonomer(ctx, Monomer{Name: "MEM-01 again", SMILES: "C1=CC2CCC1C2"}); !errors.Is(err, ErrIdempotencyInFlight) {
+		t.Fatalf("second write under one key: %v", err)
+	}
+	_, total, _ := s.ListMonomers(context.Background(), MonomerFilter{Limit: 10})
+	if total != 1 {
+		t.Fatalf("%d monomers after a refused duplicate", total)
 	}
 }
 

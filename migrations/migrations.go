@@ -1,10 +1,23 @@
-// Package migrations holds the numbered SQL migrations of the ringsieve store, embedded so the
-// binary migrates its database on start.
+// Package migrations holds the numbered SQL migrations of the ringsieve store, one folder per
+// engine (goose format), embedded so the binary migrates its database on start. Version 4 is a
+// data migration written in Go (data/migrate_jobs.go).
 package migrations
 
-import "embed"
+import (
+	"embed"
+	"io/fs"
+)
 
-// FS holds the *.sql migration files (goose format).
-//
-//go:embed *.sql
-var FS embed.FS
+//go:embed sqlite/*.sql
+var sqliteFS embed.FS
+
+// SQLite holds the migrations of the embedded SQLite store.
+var SQLite = sub(sqliteFS, "sqlite")
+
+func sub(f embed.FS, dir string) fs.FS {
+	s, err := fs.Sub(f, dir)
+	if err != nil {
+		panic(err) // the folder is embedded at build time
+	}
+	return s
+}

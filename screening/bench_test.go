@@ -1,10 +1,18 @@
-package screening
+package screening_test
 
 import (
 	"bufio"
 	"os"
 	"strings"
 	"testing"
+
+	. "ringsieve/screening"
+	"ringsieve/screening/canon"
+	"ringsieve/screening/internal/reftest"
+	"ringsieve/screening/mol"
+	"ringsieve/screening/rings"
+	"ringsieve/screening/smiles"
+	"ringsieve/screening/thermo"
 )
 
 // Benchmarks on the committed corpus of 10,000 generated candidate monomers
@@ -12,7 +20,7 @@ import (
 // performance section; run: go test ./screening -run '^$' -bench . -benchmem
 
 func loadCorpus(b *testing.B) []string {
-	f, err := os.Open("../testdata/corpus/candidates.smi")
+	f, err := os.Open(reftest.Path(b, "corpus/candidates.smi"))
 	if err != nil {
 		b.Fatal(err)
 	}
@@ -37,7 +45,7 @@ func BenchmarkParseSMILES(b *testing.B) {
 	b.ReportAllocs()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		if _, err := ParseSMILES(c[i%len(c)]); err != nil {
+		if _, err := smiles.Parse(c[i%len(c)]); err != nil {
 			b.Fatal(err)
 		}
 	}
@@ -48,8 +56,9 @@ func BenchmarkParseSMILES(b *testing.B) {
 func BenchmarkScreenSMILESCold(b *testing.B) {
 	c := loadCorpus(b)
 	cond := DefaultConditions()
-	Table()
-	keyMemo, gasMemo = newMemo[string](50000), newMemo[GasEstimate](50000)
+	thermo.Table()
+	canon.ResetCache()
+	thermo.ResetCache()
 	b.ReportAllocs()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
@@ -61,14 +70,14 @@ func BenchmarkScreenSMILESCold(b *testing.B) {
 
 func BenchmarkPerceive(b *testing.B) {
 	c := loadCorpus(b)
-	mols := make([]*Molecule, len(c))
+	mols := make([]*mol.Molecule, len(c))
 	for i, s := range c {
-		mols[i], _ = ParseSMILES(s)
+		mols[i], _ = smiles.Parse(s)
 	}
 	b.ReportAllocs()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
-		Perceive(mols[i%len(mols)])
+		rings.Perceive(mols[i%len(mols)])
 	}
 }
 

@@ -1,15 +1,16 @@
-package screening
+package screening_test
 
 import (
 	"errors"
-	"fmt"
-	"strings"
 	"testing"
-	"time"
+
+	. "ringsieve/screening"
 )
 
 // FuzzScreenSMILES: any input string either screens or fails with a SMILES error carrying a
-// position inside (or at the end of) the input; it never panics or hangs. The seed corpus is in
+// position inside (or at the end of) the input; it never panics. Work per structure is bounded by
+// operation counts inside the steps (kekulization, ring search and canonical-key budgets), not by
+// a clock. The seed corpus is in
 // testdata/fuzz/FuzzScreenSMILES. Run: go test ./screening -run '^$' -fuzz FuzzScreenSMILES.
 func FuzzScreenSMILES(f *testing.F) {
 	for _, s := range []string{"C1=CC2CCC1C2", "c1ccccc1", "[13CH3:2][C@@H](F)/C=C\\Cl", "C%12CC%12", "[Na+].[O-]C(=O)C1CC2C=CC1C2",
@@ -17,8 +18,6 @@ func FuzzScreenSMILES(f *testing.F) {
 		f.Add(s)
 	}
 	f.Fuzz(func(t *testing.T, s string) {
-		tm := time.AfterFunc(3*time.Second, func() { panic(fmt.Sprintf("slow input %q", s)) })
-		defer tm.Stop()
 		r, err := ScreenSMILES(s, DefaultConditions())
 		if err != nil {
 			var se *SMILESError
@@ -39,25 +38,6 @@ func FuzzScreenSMILES(f *testing.F) {
 		}
 		if r.Verdict == "" || (r.Verdict != VerdictNotMonomer && r.Thermo == nil) {
 			t.Fatalf("%q: verdict %q, thermo %v", s, r.Verdict, r.Thermo)
-		}
-	})
-}
-
-// FuzzReadInput: file inputs of any content are read or refused without panics.
-func FuzzReadInput(f *testing.F) {
-	f.Add("id,smiles\na,C1=CCCC1\n", "")
-	f.Add("C1=CC2CCC1C2 nb\n", "smiles")
-	f.Add("x\n\n\n  1  0  0  0  0  0  0  0  0  0999 V2000\n    0.0 0.0 0.0 C   0  0\nM  END\n$$$$\n", "sdf")
-	f.Fuzz(func(t *testing.T, content, format string) {
-		if format != "" && format != FormatCSV && format != FormatSMILES && format != FormatSDF {
-			format = ""
-		}
-		in, err := ReadInput(strings.NewReader(content), format, "", 1000)
-		if err != nil || in == nil {
-			return
-		}
-		for _, it := range in.Items {
-			ScreenItem(it, DefaultConditions())
 		}
 	})
 }

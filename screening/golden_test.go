@@ -1,4 +1,4 @@
-package screening
+package screening_test
 
 import (
 	"bytes"
@@ -6,6 +6,10 @@ import (
 	"flag"
 	"os"
 	"testing"
+
+	. "ringsieve/screening"
+	"ringsieve/screening/batch"
+	"ringsieve/screening/internal/reftest"
 )
 
 var update = flag.Bool("update", false, "rewrite golden files under testdata/golden")
@@ -14,12 +18,12 @@ var update = flag.Bool("update", false, "rewrite golden files under testdata/gol
 // compares the full results with testdata/golden/demo_screen.json. Run with -update after an
 // intended change and review the diff; the golden file pins behaviour, not published values.
 func TestGoldenDemoScreen(t *testing.T) {
-	f, err := os.Open("../testdata/demo/membrane_candidates.csv")
+	f, err := os.Open(reftest.Path(t, "demo/membrane_candidates.csv"))
 	if err != nil {
 		t.Fatal(err)
 	}
 	defer f.Close()
-	in, err := ReadInput(f, FormatCSV, "", 0)
+	in, err := batch.ReadInput(f, batch.FormatCSV, "", 0)
 	if err != nil || len(in.Errors) > 0 {
 		t.Fatalf("demo file: %v %v", err, in.Errors)
 	}
@@ -29,7 +33,7 @@ func TestGoldenDemoScreen(t *testing.T) {
 	}
 	var rows []row
 	for _, it := range in.Items {
-		r, err := ScreenItem(it, DefaultConditions())
+		r, err := batch.ScreenItem(it, DefaultConditions())
 		if err != nil {
 			t.Fatalf("%s: %v", it.ID, err)
 		}
@@ -37,7 +41,7 @@ func TestGoldenDemoScreen(t *testing.T) {
 	}
 	got, _ := json.MarshalIndent(rows, "", "  ")
 	got = append(got, '\n')
-	path := "../testdata/golden/demo_screen.json"
+	path := reftest.Path(t, "golden/demo_screen.json")
 	if *update {
 		if err := os.WriteFile(path, got, 0o644); err != nil {
 			t.Fatal(err)

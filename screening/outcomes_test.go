@@ -1,6 +1,13 @@
-package screening
+package screening_test
 
-import "testing"
+import (
+	"testing"
+
+	. "ringsieve/screening"
+	"ringsieve/screening/internal/reftest"
+	"ringsieve/screening/judge"
+	"ringsieve/screening/units"
+)
 
 // TestOutcomesReference screens every structure of romp_outcomes.csv at the catalyst class of
 // its row (ru → ru-nhc, mo_w → mo-w-imido, classical → classical, any → ru-nhc), 25 °C and
@@ -9,8 +16,8 @@ import "testing"
 // Each row's source is in the csv (printed with any miss). Known misses are listed in
 // knownMisses with the reason; none is special-cased in the engine.
 func TestOutcomesReference(t *testing.T) {
-	recs := readReferenceCSV(t, "romp_outcomes.csv")
-	classOf := map[string]CatalystClass{"ru": CatRuNHC, "mo_w": CatMoWImido, "classical": CatClassical, "any": CatRuNHC}
+	recs := reftest.CSV(t, "romp_outcomes.csv")
+	classOf := map[string]CatalystClass{"ru": units.CatRuNHC, "mo_w": units.CatMoWImido, "classical": units.CatClassical, "any": units.CatRuNHC}
 	// Known misses, explained (the engine is not special-cased for them):
 	knownMisses := map[string]string{}
 	agree := 0
@@ -44,7 +51,7 @@ func TestOutcomesReference(t *testing.T) {
 			t.Logf("known miss %s %s: %s gives %s (%s)", id, name, outcome, res.Verdict, why)
 			continue
 		}
-		t.Errorf("%s %s (%s; %s): expected %s, got %s (score %.3f, reasons %s)", id, name, cls, source, outcome, res.Verdict, res.Score, MainReasons(&res))
+		t.Errorf("%s %s (%s; %s): expected %s, got %s (score %.3f, reasons %s)", id, name, cls, source, outcome, res.Verdict, res.Score, judge.MainReasons(&res))
 	}
 	t.Logf("agreement with romp_outcomes.csv: %d of %d rows", agree, len(recs)-1)
 }

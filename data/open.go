@@ -1,0 +1,83 @@
+package data
+
+import (
+	"context"
+	"database/sql"
+	"errors"
+	"fmt"
+	"io/fs"
+	"net/url"
+	"os"
+	"strings"
+
+	_ "github.com/mattn/go-sqlite3" // SQLite driver (cgo)
+	"github.com/pressly/goose/v3"
+
+	"ringsieve/migrations"
+)
+
+// Open opens the store named by dsn: a file path is an SQLite database (created with mode 0600
+// and migrated when needed).
+func Open(ctx context.Context, dsn string) (*Store, error) {
+	return openSQLite(ctx, dsn)
+}
+
+// SQLite settings: WAL journaling (readers never block the writer), foreign keys on, a busy
+// timeout, immediate write transactions (no lock upgrades that deadlock), and synchronous=FULL:
+// a write acknowledged to a client has been flushed to the disk with its WAL frame, so it
+// survives a crash of the process and of the machine (power loss), at the cost of one sync per
+// commit (design choice; job results are committed a chunk at a time, so the cost is small).
+func openSQLite(ctx context.Context, path string) (*Store, error) {
+	if err := createPrivate(path); err != nil {
+		return nil, fmt.Errorf("open %s: %w", path, err)
+	}
+	q := url.Values{}
+	q.Set("_journal_mode", "WAL")
+	q.Set("_foreign_keys", "on")
+	q.Set("_busy_timeout", "5000")
+	q.Set("_synchronous", "FULL")
+	q.Set("_txlock", "immediate")
+	// the path is part of a URI: escape the characters that would end or change it
+	esc := strings.NewReplacer("%", "%25", "?", "%3f", "#", "%23").Replace(path)
+	db, err := sql.Open("sqlite3", "file:"+esc+"?"+q.Encode())
+	if err != nil {
+		return nil, fmt.Errorf("open %s: %w", path, err)
+	}
+	db.SetMaxOpenConns(8)
+	if err := db.PingContext(ctx); err != nil {
+		db.Close()
+		return nil, fmt.Errorf("open %s: %w", path, err)
+	}
+	s := &Store{db: db, dialect: sqliteDialect, path: path}
+	if err := s.migrate(ctx, goose.DialectSQLite3, migrations.SQLite); err != nil {
+		db.Close()
+		return nil, fmt.Errorf("migrate %s: %w", path, err)
+	}
+	return s, nil
+}
+
+// createPrivate creates the database file readable by its owner only when it does not exist
+// yet (SQLite gives its WAL and shared-memory files the same mode).
+func createPrivate(path string) error {
+	f, err := os.OpenFile(path, os.O_RDWR|os.O_CREATE|os.O_EXCL, 0o600)
+	if errors.Is(err, fs.ErrExist) {
+		return nil
+	}
+	if err != nil {
+		return err
+	}
+	return f.Close()
+}
+
+// migrate applies every pending migration of the engine's folder, and the data migration that
+// moves job results of earlier versions into the chunked layout.
+func (s *Store) migrate(ctx context.Context, d goose.Dialect, fsys fs.FS) error {
+	prov, err := goose.NewProvider(d, s.db, fsys, goose.WithGoMigrations(
+		goose.NewGoMigration(4, &goose.GoFunc{RunTx: s.moveLegacyJobResults}, nil),
+	))
+	if err != nil {
+		return fmt.Errorf("migrations: %w", err)
+	}
+	_, err = prov.Up(ctx)
+	return err
+}

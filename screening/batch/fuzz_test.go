@@ -1,0 +1,27 @@
+package batch
+
+import (
+	"strings"
+	"testing"
+
+	"ringsieve/screening"
+)
+
+// FuzzReadInput: file inputs of any content are read or refused without panics.
+func FuzzReadInput(f *testing.F) {
+	f.Add("id,smiles\na,C1=CCCC1\n", "")
+	f.Add("C1=CC2CCC1C2 nb\n", "smiles")
+	f.Add("x\n\n\n  1  0  0  0  0  0  0  0  0  0999 V2000\n    0.0 0.0 0.0 C   0  0\nM  END\n$$$$\n", "sdf")
+	f.Fuzz(func(t *testing.T, content, format string) {
+		if format != "" && format != FormatCSV && format != FormatSMILES && format != FormatSDF {
+			format = ""
+		}
+		in, err := ReadInput(strings.NewReader(content), format, "", 1000)
+		if err != nil || in == nil {
+			return
+		}
+		for _, it := range in.Items {
+			ScreenItem(it, screening.DefaultConditions())
+		}
+	})
+}

@@ -1,0 +1,64 @@
+package batch
+
+import (
+	"math"
+	"os"
+	"strconv"
+	"strings"
+	"testing"
+
+	"ringsieve/screening/internal/reftest"
+	"ringsieve/screening/molfile"
+)
+
+func TestSDFAgainstRDKit(t *testing.T) {
+	f, err := os.Open(reftest.Path(t, "reference/rdkit_structures.sdf"))
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer f.Close()
+	in, err := ReadInput(f, FormatSDF, "ID", 0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(in.Errors) > 0 {
+		t.Fatalf("unreadable records: %v", in.Errors)
+	}
+	if len(in.Items) < 200 {
+		t.Fatalf("%d records", len(in.Items))
+	}
+	// the data fields are not kept on items: read them again from the file
+	b := reftest.ReadFile(t, "reference/rdkit_structures.sdf")
+	records := strings.Split(string(b), "$$$$")
+	for i, it := range in.Items {
+		rec := records[i]
+		get := func(name string) string {
+			k := strings.Index(rec, "<"+name+">")
+			if k < 0 {
+				t.Fatalf("record %d lacks <%s>", i, name)
+			}
+			lines := strings.SplitN(rec[k:], "\n", 3) // header line, value line, rest
+			return strings.TrimSpace(lines[1])
+		}
+		if it.ID != get("ID") || !strings.HasPrefix(it.ID, "S") {
+			t.Fatalf("record %d: id %q, want %q", i, it.ID, get("ID"))
+		}
+		m, _, err := molfile.Parse(it.Molfile)
+		if err != nil {
+			t.Errorf("%s: %v", it.ID, err)
+			continue
+		}
+		formula := get("FORMULA")
+		if got := m.Formula(); got != formula {
+			t.Errorf("%s (%s): formula %s, RDKit %s", it.ID, get("SMILES"), got, formula)
+		}
+		mw, _ := strconv.ParseFloat(get("MW"), 64)
+		if got := m.MolWeight(); math.Abs(got-mw) > reftest.MassTolerance(formula) {
+			t.Errorf("%s: average mass %.4f, RDKit %.4f", it.ID, got, mw)
+		}
+		em, _ := strconv.ParseFloat(get("EXACT_MASS"), 64)
+		if got := m.MonoisotopicMass(); math.Abs(got-em) > 2e-4 {
+			t.Errorf("%s: monoisotopic mass %.6f, RDKit %.6f", it.ID, got, em)
+		}
+	}
+}

@@ -1,0 +1,90 @@
+package batch
+
+import (
+	"bytes"
+	"encoding/binary"
+	"math"
+	"sort"
+
+	"ringsieve/screening"
+)
+
+// The ranking rule, the one place it is written: screened items first, by score descending,
+// then ΔG_p ascending (an item without thermodynamics after every item with one at the same
+// score); items that failed, or are not screened yet, after every screened item; ties in
+// submission order. The rule is a byte key so that the stores can order by it without
+// restating it (job results are sorted by their stored key, then sequence).
+
+// KeyLen is the length of a rank key.
+const KeyLen = 17
+
+// Key is the rank key of one item; smaller keys rank first (compare with bytes.Compare).
+type Key [KeyLen]byte
+
+// KeyOf returns the rank key of a screened result.
+func KeyOf(r *screening.Result) Key {
+	dg := math.Inf(1)
+	if r.Thermo != nil {
+		dg = r.Thermo.DGkJmol
+	}
+	return ScoreKey(r.Score, dg)
+}
+
+// ScoreKey returns the rank key of a screened item from its score and ΔG_p in kJ/mol (+Inf when
+// it has no thermodynamics).
+func ScoreKey(score, dg float64) Key {
+	var k Key
+	binary.BigEndian.PutUint64(k[1:9], sortable(-score))
+	binary.BigEndian.PutUint64(k[9:17], sortable(dg))
+	return k
+}
+
+// FailedKey is the rank key of an item that could not be screened (and of one still pending).
+func FailedKey() Key {
+	var k Key
+	k[0] = 1
+	return k
+}
+
+// Less reports whether key a ranks before key b (equal keys keep submission order).
+func Less(a, b Key) bool { return bytes.Compare(a[:], b[:]) < 0 }
+
+// sortable maps a float64 to a uint64 whose unsigned order is the numeric order (−0 and +0 map
+// alike).
+func sortable(x float64) uint64 {
+	if x == 0 {
+		x = 0 // −0 ranks as +0
+	}
+	b := math.Float64bits(x)
+	if b>>63 == 1 {
+		return ^b
+	}
+	return b | 1<<63
+}
+
+// Row is one item's place in a ranking: its submission sequence, the result or the error, and
+// its rank key.
+type Row struct {
+	Seq    int
+	Result *screening.Result
+	Err    error
+	Key    Key
+}
+
+// NewRow builds the row of item seq from a screening's outcome.
+func NewRow(seq int, r screening.Result, err error) Row {
+	if err != nil {
+		return Row{Seq: seq, Err: err, Key: FailedKey()}
+	}
+	return Row{Seq: seq, Result: &r, Key: KeyOf(&r)}
+}
+
+// Rank orders rows by the ranking rule (rank key, then submission sequence).
+func Rank(rows []Row) {
+	sort.Slice(rows, func(i, j int) bool {
+		if c := bytes.Compare(rows[i].Key[:], rows[j].Key[:]); c != 0 {
+			return c < 0
+		}
+		return rows[i].Seq < rows[j].Seq
+	})
+}

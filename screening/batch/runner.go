@@ -1,0 +1,230 @@
+package batch
+
+import (
+	"context"
+	"crypto/rand"
+	"encoding/hex"
+	"encoding/json"
+	"errors"
+	"fmt"
+	"log/slog"
+	"time"
+
+	"ringsieve/screening"
+)
+
+// Runner works jobs: it claims chunks from the store under a lease, screens their items on a
+// pool of workers (input order kept), and stores each chunk's outcomes in one transaction. Any
+// number of runners (in one or many processes) may share a store: claims are atomic and a
+// chunk whose worker died is claimed again when its lease expires.
+type Runner struct {
+	Store   Store
+	Workers int           // screening goroutines (0: one per core)
+	Lease   time.Duration // chunk lease (0: DefaultLease)
+	Owner   string        // worker name recorded with claims ("" : a random one)
+	Log     *slog.Logger
+	// Observe, when set, is called once per stored chunk with its outcomes (metrics).
+	Observe func(outs []Outcome)
+
+	wake chan struct{}
+}
+
+// DefaultLease is how long a claimed chunk stays with its worker without a renewal (design
+// choice: renewed every third of it, so only a dead worker loses a chunk).
+const DefaultLease = 60 * time.Second
+
+// Write retries: a chunk whose outcomes cannot be stored is retried with exponential back-off
+// from writeBackoff up to writeBackoffMax, at most writeAttempts times; then the job fails
+// (design choices: a storage fault of about two minutes is ridden out).
+const (
+	writeAttempts   = 10
+	writeBackoff    = 250 * time.Millisecond
+	writeBackoffMax = 30 * time.Second
+	idlePoll        = 2 * time.Second
+)
+
+// Notify wakes the runner when work arrives.
+func (r *Runner) Notify() {
+	r.init()
+	select {
+	case r.wake <- struct{}{}:
+	default:
+	}
+}
+
+func (r *Runner) init() {
+	if r.wake == nil {
+		r.wake = make(chan struct{}, 1)
+	}
+	if r.Lease <= 0 {
+		r.Lease = DefaultLease
+	}
+	if r.Log == nil {
+		r.Log = slog.New(slog.DiscardHandler)
+	}
+	if r.Owner == "" {
+		var b [6]byte
+		rand.Read(b[:])
+		r.Owner = "worker-" + hex.EncodeToString(b[:])
+	}
+}
+
+// Run works jobs until ctx ends. A chunk in progress at shutdown is given back unrecorded and
+// redone by the next claim; nothing is recorded twice.
+func (r *Runner) Run(ctx context.Context) {
+	r.init()
+	tick := time.NewTicker(idlePoll)
+	defer tick.Stop()
+	for ctx.Err() == nil {
+		c, err := r.Store.ClaimChunk(ctx, r.Owner, r.Lease)
+		if err == nil {
+			r.process(ctx, c)
+			continue
+		}
+		if !errors.Is(err, ErrNotFound) && ctx.Err() == nil {
+			r.Log.Error("claim a job chunk", "err", err)
+		}
+		select {
+		case <-ctx.Done():
+		case <-r.wake:
+		case <-tick.C:
+		}
+	}
+}
+
+// process screens one claimed chunk and stores its outcomes.
+func (r *Runner) process(ctx context.Context, c Chunk) {
+	log := r.Log.With("job", c.JobID, "chunk", c.No)
+	cond, err := ConditionsOf(c.Conditions)
+	if err != nil {
+		r.fail(ctx, log, c, "stored conditions are invalid: "+err.Error())
+		return
+	}
+	items, err := r.Store.ChunkItems(ctx, c)
+	if err != nil {
+		if ctx.Err() == nil {
+			log.Error("read chunk items", "err", err)
+		}
+		r.release(log, c)
+		return
+	}
+	work, stop := context.WithCancel(ctx)
+	defer stop()
+	renewed := make(chan struct{})
+	go func() {
+		defer close(renewed)
+		t := time.NewTicker(r.Lease / 3)
+		defer t.Stop()
+		for {
+			select {
+			case <-work.Done():
+				return
+			case <-t.C:
+				st, err := r.Store.RenewLease(work, c, r.Lease)
+				if errors.Is(err, ErrLeaseLost) || st == JobCanceled || st == JobFailed {
+					log.Info("chunk given up", "status", st, "err", err)
+					stop()
+					return
+				}
+			}
+		}
+	}()
+	outs := make([]Outcome, len(items))
+	err = Map(work, len(items), r.Workers, func(i int) { outs[i] = r.screenOne(work, items[i], cond) })
+	stop()
+	<-renewed
+	if err != nil {
+		if ctx.Err() != nil {
+			r.release(log, c) // shutting down: redone by the next claim
+		}
+		return
+	}
+	r.store(ctx, log, c, outs)
+}
+
+// store writes a chunk's outcomes, retrying storage faults with back-off; after the last
+// attempt the job fails.
+func (r *Runner) store(ctx context.Context, log *slog.Logger, c Chunk, outs []Outcome) {
+	wait := writeBackoff
+	for attempt := 1; ; attempt++ {
+		_, err := r.Store.CompleteChunk(ctx, c, outs)
+		switch {
+		case err == nil:
+			if r.Observe != nil {
+				r.Observe(outs)
+			}
+			return
+		case errors.Is(err, ErrLeaseLost):
+			log.Warn("lease lost before the chunk was stored; another worker redoes it")
+			return
+		case ctx.Err() != nil:
+			r.release(log, c)
+			return
+		}
+		log.Error("store chunk outcomes", "attempt", attempt, "err", err)
+		if attempt == writeAttempts {
+			r.fail(ctx, log, c, fmt.Sprintf("results could not be stored after %d attempts", attempt))
+			return
+		}
+		select {
+		case <-ctx.Done():
+			r.release(log, c)
+			return
+		case <-time.After(wait):
+		}
+		if _, err := r.Store.RenewLease(ctx, c, r.Lease); errors.Is(err, ErrLeaseLost) {
+			log.Warn("lease lost while retrying the write; another worker redoes the chunk")
+			return
+		}
+		wait = min(2*wait, writeBackoffMax)
+	}
+}
+
+func (r *Runner) release(log *slog.Logger, c Chunk) {
+	ctx, cancel := context.WithTimeout(context.Background(), 5*time.Second)
+	defer cancel()
+	if err := r.Store.ReleaseChunk(ctx, c); err != nil {
+		log.Warn("release chunk (its lease will expire instead)", "err", err)
+	}
+}
+
+func (r *Runner) fail(ctx context.Context, log *slog.Logger, c Chunk, msg string) {
+	if err := r.Store.FailJob(ctx, c.JobID, msg); err != nil {
+		log.Error("fail job", "err", err, "reason", msg)
+		return
+	}
+	log.Error("job failed", "reason", msg)
+}
+
+// screenOne screens one item; a panic is caught and recorded as an internal item error.
+func (r *Runner) screenOne(ctx context.Context, it Item, cond screening.Conditions) (out Outcome) {
+	out.Seq = it.Seq
+	defer func() {
+		if v := recover(); v != nil {
+			r.Log.Error("panic screening a job item", "seq", it.Seq, "panic", fmt.Sprint(v))
+			out = failed(it.Seq, &ItemError{Code: CodeInternal, Message: "the item could not be screened; the failure has been logged"})
+		}
+	}()
+	src := screening.Source{SMILES: it.Source.SMILES, Molfile: it.Source.Molfile, Descriptors: it.Source.Descriptors}
+	if it.Source.MonomerID != "" {
+		s, err := r.Store.MonomerSource(ctx, it.Source.MonomerID)
+		if err != nil {
+			return failed(it.Seq, NewItemError(err))
+		}
+		src = s
+	}
+	res, err := screening.Screen(src, cond)
+	if err != nil {
+		return failed(it.Seq, NewItemError(err))
+	}
+	b, err := json.Marshal(res)
+	if err != nil {
+		return failed(it.Seq, NewItemError(err))
+	}
+	return Outcome{Seq: it.Seq, Verdict: res.Verdict, Key: KeyOf(&res), Result: b}
+}
+
+func failed(seq int, e *ItemError) Outcome {
+	b, _ := json.Marshal(e) // an ItemError always encodes
+	return Outcome{Seq: seq, Key: FailedKey(), Result: b, Failed: true}
+}

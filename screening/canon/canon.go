@@ -1,0 +1,348 @@
+// Package canon computes canonical skeleton keys: a SMILES-like string for a set of atoms (a
+// ring system or part of one) that is the same however the molecule was written, and written
+// signatures that name a subgraph exactly as written (cache keys).
+package canon
+
+import (
+	"sort"
+	"strconv"
+	"strings"
+
+	"ringsieve/screening/mol"
+	"ringsieve/screening/rings"
+)
+
+// Canonical skeleton keys: a SMILES-like string for a set of atoms (a ring system or part of one)
+// that is the same however the molecule was written. Only the atoms in the set and the bonds
+// between them count; substituents are stripped, elements, aromaticity and bond orders kept.
+// The labelling is colour refinement with individualization of tied atoms; every tied choice is
+// tried (up to a budget) and the smallest string kept, so the key does not depend on input order.
+
+// canonBranchBudget bounds the tie-breaking branches tried per key (design choice).
+const canonBranchBudget = 4096
+
+// maxCanonAtoms bounds the subgraphs (design choice) that get a full canonical key; larger ring systems (never in
+// the strain table) get a deterministic invariant summary instead.
+const maxCanonAtoms = 64
+
+// largeKey summarizes a large subgraph by its atom labels with their degrees and its bond
+// count: equal for equal graphs, possibly equal for some different ones, which is harmless since
+// no table row is that large. It is linear in the size so that no input can make it slow.
+func (g *subgraph) largeKey() string {
+	counts := map[string]int{}
+	bonds := 0
+	for i := range g.atoms {
+		counts[g.label[i]+strconv.Itoa(len(g.nbr[i]))]++
+		bonds += len(g.nbr[i])
+	}
+	var parts []string
+	for k, v := range counts {
+		parts = append(parts, k+"x"+strconv.Itoa(v))
+	}
+	sort.Strings(parts)
+	return "large:" + strconv.Itoa(len(g.atoms)) + "/" + strconv.Itoa(bonds/2) + ":" + strings.Join(parts, ",")
+}
+
+type subgraph struct {
+	atoms []int       // molecule atom indices
+	local map[int]int // molecule index -> local index
+	nbr   [][]int     // local adjacency
+	ord   [][]int     // bond order to each neighbour (4 = aromatic)
+	label []string    // atom label: element symbol, lower-case when aromatic
+}
+
+func newSubgraph(m *mol.Molecule, r *rings.Rings, atoms []int, skipBond int) *subgraph {
+	g := &subgraph{atoms: append([]int(nil), atoms...), local: map[int]int{}}
+	sort.Ints(g.atoms)
+	for i, a := range g.atoms {
+		g.local[a] = i
+	}
+	n := len(g.atoms)
+	g.nbr = make([][]int, n)
+	g.ord = make([][]int, n)
+	g.label = make([]string, n)
+	for i, a := range g.atoms {
+		at := &m.Atoms[a]
+		sym := "*"
+		if e := mol.ElementByZ(at.Z); e != nil {
+			sym = e.Symbol
+		}
+		if r.AromaticAtom[a] {
+			sym = strings.ToLower(sym)
+		}
+		g.label[i] = sym
+		for _, bi := range m.Neighbors(a) {
+			if bi == skipBond {
+				continue
+			}
+			o := m.Other(bi, a)
+			j, ok := g.local[o]
+			if !ok {
+				continue
+			}
+			ord := m.Bonds[bi].Order
+			if r.AromaticBond[bi] {
+				ord = 4
+			}
+			g.nbr[i] = append(g.nbr[i], j)
+			g.ord[i] = append(g.ord[i], ord)
+		}
+	}
+	return g
+}
+
+// refine runs colour refinement from the given colours until the partition is stable and returns
+// dense ranks (0 = smallest).
+func (g *subgraph) refine(col []int) []int {
+	n := len(col)
+	cur := append([]int(nil), col...)
+	for iter := 0; iter < n+1; iter++ {
+		sigs := make([]string, n)
+		for i := 0; i < n; i++ {
+			parts := make([]string, len(g.nbr[i]))
+			for k, j := range g.nbr[i] {
+				parts[k] = strconv.Itoa(cur[j]) + "/" + strconv.Itoa(g.ord[i][k])
+			}
+			sort.Strings(parts)
+			sigs[i] = strconv.Itoa(cur[i]) + "|" + strings.Join(parts, ",")
+		}
+		next := denseRanks(sigs)
+		if countDistinct(next) == countDistinct(cur) {
+			return next
+		}
+		cur = next
+	}
+	return cur
+}
+
+func denseRanks(sigs []string) []int {
+	uniq := append([]string(nil), sigs...)
+	sort.Strings(uniq)
+	rank := map[string]int{}
+	for _, s := range uniq {
+		if _, ok := rank[s]; !ok {
+			rank[s] = len(rank)
+		}
+	}
+	out := make([]int, len(sigs))
+	for i, s := range sigs {
+		out[i] = rank[s]
+	}
+	return out
+}
+
+func countDistinct(x []int) int {
+	seen := map[int]bool{}
+	for _, v := range x {
+		seen[v] = true
+	}
+	return len(seen)
+}
+
+// canonicalKey returns the canonical string of the subgraph.
+func (g *subgraph) canonicalKey() string {
+	n := len(g.atoms)
+	if n == 0 {
+		return ""
+	}
+	if n > maxCanonAtoms {
+		return g.largeKey()
+	}
+	init := make([]string, n)
+	for i := 0; i < n; i++ {
+		sum := 0
+		for _, o := range g.ord[i] {
+			sum += o
+		}
+		init[i] = g.label[i] + "|" + strconv.Itoa(len(g.nbr[i])) + "|" + strconv.Itoa(sum)
+	}
+	best := ""
+	budget := canonBranchBudget
+	var search func(col []int)
+	search = func(col []int) {
+		if budget <= 0 {
+			return
+		}
+		col = g.refine(col)
+		if countDistinct(col) == n {
+			budget--
+			s := g.write(col)
+			if best == "" || s < best {
+				best = s
+			}
+			return
+		}
+		// first tied class with the smallest rank
+		counts := map[int]int{}
+		for _, c := range col {
+			counts[c]++
+		}
+		target := -1
+		for c := 0; c < n; c++ {
+			if counts[c] > 1 {
+				target = c
+				break
+			}
+		}
+		for i := 0; i < n && budget > 0; i++ {
+			if col[i] != target {
+				continue
+			}
+			next := make([]int, n)
+			for k := range col {
+				next[k] = col[k] * 2
+				if col[k] > target || (col[k] == target && k != i) {
+					next[k]++
+				}
+			}
+			search(next)
+		}
+	}
+	search(denseRanks(init))
+	return best
+}
+
+// write renders the subgraph as SMILES-like text from a complete ranking: depth-first from the
+// lowest-ranked atom of each connected piece, neighbours in rank order, ring closures numbered in
+// order of opening.
+func (g *subgraph) write(rank []int) string {
+	n := len(g.atoms)
+	order := make([]int, n)
+	for i := range order {
+		order[i] = i
+	}
+	sort.Slice(order, func(a, b int) bool { return rank[order[a]] < rank[order[b]] })
+	visited := make([]bool, n)
+	var sb strings.Builder
+	bondSym := func(o int) string {
+		switch o {
+		case 2:
+			return "="
+		case 3:
+			return "#"
+		case 4:
+			return ":"
+		}
+		return ""
+	}
+	// first pass: DFS tree to find ring-closure pairs
+	type edge struct{ a, b int }
+	parent := make([]int, n)
+	for i := range parent {
+		parent[i] = -1
+	}
+	var closures []edge
+	seenEdge := map[[2]int]bool{}
+	var dfs1 func(a int)
+	dfs1 = func(a int) {
+		visited[a] = true
+		nb := g.sortedNbrs(a, rank)
+		for _, j := range nb {
+			key := [2]int{min(a, j), max(a, j)}
+			if seenEdge[key] {
+				continue
+			}
+			seenEdge[key] = true
+			if visited[j] {
+				closures = append(closures, edge{a, j})
+				continue
+			}
+			parent[j] = a
+			dfs1(j)
+		}
+	}
+	var roots []int
+	for _, s := range order {
+		if !visited[s] {
+			roots = append(roots, s)
+			dfs1(s)
+		}
+	}
+	// ring-closure digits per atom
+	ringsAt := make([][]int, n) // closure indices at each atom in order of appearance
+	for ci, c := range closures {
+		ringsAt[c.b] = append(ringsAt[c.b], ci)
+		ringsAt[c.a] = append(ringsAt[c.a], ci)
+	}
+	visited = make([]bool, n)
+	digitOf := map[int]int{}
+	free := []int{}
+	nextDigit := 1
+	var dfs2 func(a int)
+	dfs2 = func(a int) {
+		visited[a] = true
+		sb.WriteString(g.label[a])
+		for _, ci := range ringsAt[a] {
+			c := closures[ci]
+			if d, ok := digitOf[ci]; ok {
+				sb.WriteString(bondSym(g.orderBetween(c.a, c.b)))
+				sb.WriteString(ringDigit(d))
+				free = append(free, d)
+				sort.Ints(free)
+				delete(digitOf, ci)
+			} else {
+				d := 0
+				if len(free) > 0 {
+					d, free = free[0], free[1:]
+				} else {
+					d = nextDigit
+					nextDigit++
+				}
+				digitOf[ci] = d
+				sb.WriteString(ringDigit(d))
+			}
+		}
+		var kids []int
+		for _, j := range g.sortedNbrs(a, rank) {
+			if parent[j] == a && !visited[j] {
+				kids = append(kids, j)
+			}
+		}
+		for k, j := range kids {
+			if k < len(kids)-1 {
+				sb.WriteString("(")
+			}
+			sb.WriteString(bondSym(g.orderBetween(a, j)))
+			dfs2(j)
+			if k < len(kids)-1 {
+				sb.WriteString(")")
+			}
+		}
+	}
+	for i, r := range roots {
+		if i > 0 {
+			sb.WriteString(".")
+		}
+		dfs2(r)
+	}
+	return sb.String()
+}
+
+func ringDigit(d int) string {
+	if d < 10 {
+		return strconv.Itoa(d)
+	}
+	return "%" + strconv.Itoa(d)
+}
+
+func (g *subgraph) sortedNbrs(a int, rank []int) []int {
+	nb := append([]int(nil), g.nbr[a]...)
+	sort.Slice(nb, func(x, y int) bool { return rank[nb[x]] < rank[nb[y]] })
+	return nb
+}
+
+func (g *subgraph) orderBetween(a, b int) int {
+	for k, j := range g.nbr[a] {
+		if j == b {
+			return g.ord[a][k]
+		}
+	}
+	return 1
+}
+
+// SkeletonKey returns the canonical key of the atoms given (bonds among them only), optionally
+// leaving out one bond (skipBond >= 0), as used for the ring left after ring opening.
+// Aromaticity is read from r, the rings perceived on m.
+func SkeletonKey(m *mol.Molecule, r *rings.Rings, atoms []int, skipBond int) string {
+	return newSubgraph(m, r, atoms, skipBond).canonicalKey()
+}

@@ -1,0 +1,622 @@
+package describe
+
+import (
+	"errors"
+	"fmt"
+	"sort"
+	"strings"
+
+	"ringsieve/screening/canon"
+	"ringsieve/screening/mol"
+	"ringsieve/screening/rings"
+	"ringsieve/screening/smiles"
+	"ringsieve/screening/units"
+)
+
+// Structure is a parsed, perceived monomer with one analysis per ring C=C.
+type Structure struct {
+	Mol         *mol.Molecule
+	Rings       *rings.Rings
+	Main        []int // atoms of the screened component
+	MainSMILES  string
+	CounterIons []string // formulas of the other components
+	Groups      []string // functional-group inventory of the main component
+	Olefins     []*Olefin
+	Skipped     int     // ring olefins beyond MaxOlefinsAnalysed, not analysed
+	ringSystem  []int   // per SSSR ring: index of its ring system
+	systems     [][]int // SSSR ring indices per ring system
+	sysAtoms    [][]int // sorted atoms per ring system, computed on first use
+}
+
+// Olefin is one ring C=C (both atoms carbon, in a ring, not aromatic) and what governs its ROMP.
+type Olefin struct {
+	Bond, A, B  int
+	SystemRings []int // SSSR ring indices of the whole ring system
+	SystemAtoms []int
+	CoreRings   []int // rings holding the olefin plus those bridged to them
+	CoreAtoms   []int
+	SmallRing   []int // atoms of the smallest ring holding the olefin
+	Desc        Descriptors
+	Signature   string // written signature of the ring system (cache key)
+}
+
+// Describe reads a SMILES and derives everything ROMP screening needs from it. Errors are
+// *smiles.Error values with the character offset.
+func Describe(text string) (*Structure, error) {
+	m, err := smiles.Parse(text)
+	if err != nil {
+		return nil, err
+	}
+	s, err := DescribeMolecule(m, text)
+	var ve *ValenceError
+	if errors.As(err, &ve) {
+		return nil, smiles.Errorf(m.Atoms[ve.Atom].Pos, "%s", ve.Msg)
+	}
+	return s, err
+}
+
+// ValenceError reports an atom with more bonds than its valence allows (pentavalent carbon and
+// the like are typing errors, not monomers). Atom is the atom's index.
+type ValenceError struct {
+	Atom int
+	Msg  string
+}
+
+func (e *ValenceError) Error() string { return e.Msg }
+
+// Is makes every ValenceError match units.ErrInvalid.
+func (e *ValenceError) Is(target error) bool { return target == units.ErrInvalid }
+
+// DescribeMolecule analyses a molecule already read (from SMILES or a molfile); text is the
+// SMILES it came from, or "" when there is none. The molecule is not changed. Errors are
+// *ValenceError values.
+func DescribeMolecule(m *mol.Molecule, text string) (*Structure, error) {
+	if err := checkValence(m); err != nil {
+		return nil, err
+	}
+	p := rings.Perceive(m)
+	s := &Structure{Mol: m, Rings: p}
+	s.pickMain(text)
+	s.ringSystem, s.systems = rings.Systems(p.SSSR)
+	s.Groups = FunctionalGroups(m, p, s.Main)
+	inMain := make([]bool, len(m.Atoms))
+	for _, a := range s.Main {
+		inMain[a] = true
+	}
+	var ringOlefins []int
+	for bi, b := range m.Bonds {
+		if !inMain[b.A] || b.Order != mol.BondDouble || p.AromaticBond[bi] || p.BondRingSize[bi] == 0 {
+			continue
+		}
+		if m.Atoms[b.A].Z != 6 || m.Atoms[b.B].Z != 6 {
+			continue
+		}
+		ringOlefins = append(ringOlefins, bi)
+	}
+	// Many ring olefins (polyenes, oligomers): analyse the most promising few, by a strain proxy
+	// on ring size; the rest are counted only.
+	if len(ringOlefins) > MaxOlefinsAnalysed {
+		pref := func(bi int) int {
+			switch p.BondRingSize[bi] {
+			case 4, 3:
+				return 0
+			case 5, 8:
+				return 1
+			case 7, 9, 10:
+				return 2
+			}
+			return 3
+		}
+		sort.SliceStable(ringOlefins, func(i, j int) bool { return pref(ringOlefins[i]) < pref(ringOlefins[j]) })
+		s.Skipped = len(ringOlefins) - MaxOlefinsAnalysed
+		ringOlefins = ringOlefins[:MaxOlefinsAnalysed]
+	}
+	for _, bi := range ringOlefins {
+		s.Olefins = append(s.Olefins, s.analyse(bi))
+	}
+	return s, nil
+}
+
+// MaxOlefinsAnalysed bounds the ring olefins of one monomer that are analysed in full (design
+// choice: enough for any oligomeric monomer, bounded for polyenes).
+const MaxOlefinsAnalysed = 12
+
+// checkValence refuses carbon, oxygen and fluorine beyond their valence (pentavalent carbon and
+// the like are typing errors, not monomers).
+func checkValence(m *mol.Molecule) error {
+	for i, a := range m.Atoms {
+		limit := -1
+		switch a.Z {
+		case 6:
+			limit = 4 - mol.Abs(a.Charge)
+		case 8:
+			limit = 2 + a.Charge
+		case 9:
+			limit = 1 + a.Charge
+		}
+		if limit < 0 {
+			continue
+		}
+		if v := m.BondOrderSum(i) + a.HCount; v > limit {
+			sym := mol.ElementByZ(a.Z).Symbol
+			return &ValenceError{Atom: i, Msg: fmt.Sprintf("%s has %d bonds, more than its valence %d allows", sym, v, limit)}
+		}
+	}
+	return nil
+}
+
+// pickMain chooses the component with the most heavy atoms (carbon-bearing first) as the monomer
+// and lists the others as counter-ions.
+func (s *Structure) pickMain(text string) {
+	m := s.Mol
+	best, bestScore := -1, -1
+	for ci := 0; ci < m.NumComponents(); ci++ {
+		comp := m.Component(ci)
+		heavy, carbon := 0, 0
+		for _, a := range comp {
+			if m.Atoms[a].Z != 1 {
+				heavy++
+			}
+			if m.Atoms[a].Z == 6 {
+				carbon = 1
+			}
+		}
+		score := carbon*100000 + heavy
+		if score > bestScore {
+			best, bestScore = ci, score
+		}
+	}
+	s.Main = append([]int(nil), m.Component(best)...)
+	sort.Ints(s.Main)
+	if m.NumComponents() == 1 {
+		s.MainSMILES = text
+		return
+	}
+	parts := strings.Split(text, ".")
+	if text != "" && len(parts) == m.NumComponents() {
+		s.MainSMILES = parts[best]
+	} else {
+		s.MainSMILES = text
+	}
+	for ci := 0; ci < m.NumComponents(); ci++ {
+		if ci == best {
+			continue
+		}
+		s.CounterIons = append(s.CounterIons, m.FormulaOf(m.Component(ci)))
+	}
+}
+
+func (s *Structure) analyse(bi int) *Olefin {
+	m, p := s.Mol, s.Rings
+	g := graph{m, p}
+	b := m.Bonds[bi]
+	o := &Olefin{Bond: bi, A: b.A, B: b.B}
+	// ring system and core
+	var system []int
+	sysIdx := -1
+	for ri, r := range p.SSSR {
+		for _, rb := range r.Bonds {
+			if rb == bi {
+				sysIdx = s.ringSystem[ri]
+				system = s.systems[sysIdx]
+			}
+		}
+	}
+	if s.sysAtoms == nil {
+		s.sysAtoms = make([][]int, len(s.systems))
+	}
+	if s.sysAtoms[sysIdx] == nil {
+		s.sysAtoms[sysIdx] = rings.Atoms(p.SSSR, system)
+	}
+	o.SystemRings = system
+	o.SystemAtoms = s.sysAtoms[sysIdx]
+	o.CoreRings = rings.Core(p.SSSR, system, rings.WithBond(p.SSSR, system, bi))
+	if len(o.CoreRings) == len(system) {
+		o.CoreAtoms = o.SystemAtoms // the core is the whole system
+	} else {
+		o.CoreAtoms = rings.Atoms(p.SSSR, o.CoreRings)
+	}
+	smallest := -1
+	for _, ri := range o.CoreRings {
+		for _, rb := range p.SSSR[ri].Bonds {
+			if rb == bi && (smallest < 0 || len(p.SSSR[ri].Atoms) < len(p.SSSR[smallest].Atoms)) {
+				smallest = ri
+			}
+		}
+	}
+	o.SmallRing = append([]int(nil), p.SSSR[smallest].Atoms...)
+	n := len(m.Atoms)
+	flags := make([]bool, 5*n) // one allocation for the five atom sets below
+	inSystem, inCore, inSmall, allylic, homo := flags[:n], flags[n:2*n], flags[2*n:3*n], flags[3*n:4*n], flags[4*n:]
+	for _, a := range o.SystemAtoms {
+		inSystem[a] = true
+	}
+	for _, a := range o.CoreAtoms {
+		inCore[a] = true
+	}
+	for _, a := range o.SmallRing {
+		inSmall[a] = true
+	}
+	d := &o.Desc
+	d.FromStructure = true
+	d.RingSize = p.BondRingSize[bi]
+	d.RingSystem = rings.Kind(p.SSSR, system)
+	d.RingSystemRings = len(system)
+	d.FunctionalGroups = append([]string(nil), s.Groups...)
+	// substitution and conjugation
+	conj := map[string]bool{}
+	for _, end := range []int{o.A, o.B} {
+		other := o.B
+		if end == o.B {
+			other = o.A
+		}
+		for _, nbi := range m.Neighbors(end) {
+			n := m.Other(nbi, end)
+			if n == other || m.Atoms[n].Z == 1 {
+				continue
+			}
+			d.OlefinSubstitution++
+			if g.isEWG(n) {
+				d.EWGOnOlefin = true
+			}
+			if p.AromaticAtom[n] {
+				conj[ConjAromatic] = true
+				continue
+			}
+			if g.isCarbonyl(n) {
+				conj[ConjCarbonyl] = true
+			}
+			for _, nb2 := range m.Neighbors(n) {
+				bb := &m.Bonds[nb2]
+				x := m.Other(nb2, n)
+				if x == end {
+					continue
+				}
+				if bb.Order == mol.BondTriple && m.Atoms[x].Z == 7 {
+					conj[ConjNitrile] = true
+				}
+				if bb.Order == mol.BondDouble && !p.AromaticBond[nb2] && m.Atoms[x].Z == 6 {
+					if inSmall[n] && inSmall[x] {
+						conj[ConjRingOlefin] = true
+					} else {
+						conj[ConjOlefin] = true
+					}
+				}
+			}
+		}
+	}
+	for c := range conj {
+		d.ConjugatedWith = append(d.ConjugatedWith, c)
+	}
+	sort.Strings(d.ConjugatedWith)
+	d.Conjugated = len(d.ConjugatedWith) > 0
+	// EWG on the olefin's own (smallest) ring
+	for _, a := range o.SmallRing {
+		if a == o.A || a == o.B {
+			continue
+		}
+		if g.isEWG(a) {
+			d.EWGOnOlefinRing = true
+		}
+		for _, x := range m.HeavyNbrs(a) {
+			if !inSystem[x] && g.isEWG(x) {
+				d.EWGOnOlefinRing = true
+			}
+		}
+	}
+	if d.EWGOnOlefin {
+		d.EWGOnOlefinRing = true
+	}
+	// allylic and homoallylic substituents
+	var allylicList, homoList []int
+	for _, end := range []int{o.A, o.B} {
+		for _, x := range m.HeavyNbrs(end) {
+			if x != o.A && x != o.B && inSmall[x] && !allylic[x] {
+				allylic[x] = true
+				allylicList = append(allylicList, x)
+			}
+		}
+	}
+	for _, x := range allylicList {
+		for _, y := range m.HeavyNbrs(x) {
+			if inCore[y] && !allylic[y] && y != o.A && y != o.B && !homo[y] {
+				homo[y] = true
+				homoList = append(homoList, y)
+			}
+		}
+	}
+	for _, a := range allylicList {
+		exo := 0
+		for _, x := range m.HeavyNbrs(a) {
+			if inSystem[x] {
+				continue
+			}
+			exo++
+			d.AllylicSubstituents++
+			if m.HeavyDegree(x) >= 3 {
+				d.BulkyAllylic = true
+			}
+		}
+		quaternary := m.HeavyDegree(a) == 4
+		if exo >= 2 {
+			d.GemDisubstituted++
+			if quaternary {
+				d.BulkyAllylic = true
+			}
+		}
+		if quaternary {
+			for _, x := range m.HeavyNbrs(a) {
+				if !inSystem[x] && (g.isCarbonyl(x) || g.isEWG(x)) {
+					d.QuaternaryAllylicEWG = true
+				}
+			}
+		}
+	}
+	for _, a := range homoList {
+		exo := 0
+		for _, x := range m.HeavyNbrs(a) {
+			if !inSystem[x] {
+				exo++
+			}
+		}
+		d.HomoallylicSubstituents += exo
+		if exo >= 2 {
+			d.GemDisubstituted++
+		}
+	}
+	// geometry: trans is possible only in rings of eight or more
+	if d.RingSize >= 8 {
+		d.TransOlefin = s.ringTrans(o, inSmall) == 1
+	}
+	d.ExoEndo = s.exoEndo(o, inCore, inSystem)
+	d.TransRingFusion = s.transFusion(o, inSmall, inSystem)
+	o.Signature = canon.WrittenSignature(m, p, o.SystemAtoms, -1, "")
+	d.SkeletonKey = canon.KeyForSignature(o.Signature, m, p, o.SystemAtoms, -1)
+	if len(o.CoreAtoms) == len(o.SystemAtoms) {
+		d.CoreKey = d.SkeletonKey // the core is the whole system
+	} else {
+		d.CoreKey = canon.CachedSkeletonKey(m, p, o.CoreAtoms, -1)
+	}
+	return o
+}
+
+// dirSign returns +1 or -1 for the side of neighbour x at double-bond atom a from the '/' '\'
+// marks, or 0 when the bond a–x carries none.
+func dirSign(m *mol.Molecule, a, x int) int {
+	bi := m.BondBetween(a, x)
+	if bi < 0 || m.Bonds[bi].Dir == 0 {
+		return 0
+	}
+	b := &m.Bonds[bi]
+	s := 1
+	if b.Dir == '\\' {
+		s = -1
+	}
+	if b.DirFrom == a { // written a / x: x comes after a
+		return s
+	}
+	return -s
+}
+
+// ringTrans returns 1 for a trans ring olefin, 0 for cis or unspecified (marks absent).
+func (s *Structure) ringTrans(o *Olefin, inSmall []bool) int {
+	m := s.Mol
+	side := func(end, other int) (sign int, ring bool) {
+		for _, x := range m.HeavyNbrs(end) {
+			if x == other {
+				continue
+			}
+			if d := dirSign(m, end, x); d != 0 {
+				return d, inSmall[x]
+			}
+		}
+		return 0, false
+	}
+	sa, ra := side(o.A, o.B)
+	sb, rb := side(o.B, o.A)
+	if sa == 0 || sb == 0 {
+		return 0
+	}
+	trans := sa != sb
+	if ra != rb {
+		trans = !trans
+	}
+	if trans {
+		return 1
+	}
+	return 0
+}
+
+// orient returns +1 ('@') or -1 ('@@') for the tetrahedral centre a seen with neighbours in the
+// order want (up to four entries; -1 stands for the hydrogen), or 0 if a carries no usable tag.
+func orient(m *mol.Molecule, a int, want []int) int {
+	at := &m.Atoms[a]
+	have := at.ChiralNbrs()
+	if have == nil {
+		return 0
+	}
+	// complete want with the missing neighbour
+	if len(want) == 3 {
+		for _, x := range have {
+			if x != want[0] && x != want[1] && x != want[2] {
+				want = append(want, x)
+				break
+			}
+		}
+	}
+	if len(want) != 4 {
+		return 0
+	}
+	perm := make([]int, 4)
+	for i, x := range want {
+		perm[i] = -2
+		for j, y := range have {
+			if x == y {
+				perm[i] = j
+			}
+		}
+		if perm[i] < 0 {
+			return 0
+		}
+	}
+	// parity by counting inversions
+	inv := 0
+	for i := 0; i < 4; i++ {
+		for j := i + 1; j < 4; j++ {
+			if perm[i] > perm[j] {
+				inv++
+			}
+		}
+	}
+	o := 1
+	if at.Chiral == 2 {
+		o = -1
+	}
+	if inv%2 == 1 {
+		o = -o
+	}
+	return o
+}
+
+// cisOnRing tells whether substituent p on ring atom a and q on the adjacent ring atom b lie on
+// the same face of the ring path prev–a–b–next: +1 cis, -1 trans, 0 unknown.
+func cisOnRing(m *mol.Molecule, prev, a, b, next, p, q int) int {
+	oa := orient(m, a, []int{prev, b, p})
+	ob := orient(m, b, []int{a, next, q})
+	if oa == 0 || ob == 0 {
+		return 0
+	}
+	if oa == ob {
+		return 1
+	}
+	return -1
+}
+
+// exoEndo reports exo/endo placement of substituents on the saturated bridge next to a bridgehead
+// of a bridged bicyclic olefin ("exo", "endo", "exo,endo", or "" when not applicable or not
+// specified by the SMILES).
+func (s *Structure) exoEndo(o *Olefin, inCore, inSystem []bool) string {
+	m := s.Mol
+	if len(o.CoreRings) < 2 {
+		return ""
+	}
+	found := map[string]bool{}
+	for _, end := range []int{o.A, o.B} {
+		other := o.B
+		if end == o.B {
+			other = o.A
+		}
+		for _, bh := range m.HeavyNbrs(end) { // bridgehead candidates
+			if bh == other || !inCore[bh] {
+				continue
+			}
+			var bridgeNbrs []int
+			for _, x := range m.HeavyNbrs(bh) {
+				if x != end && inCore[x] {
+					bridgeNbrs = append(bridgeNbrs, x)
+				}
+			}
+			if len(bridgeNbrs) != 2 {
+				continue
+			}
+			for k, sAtom := range bridgeNbrs {
+				top := bridgeNbrs[1-k] // the other bridge's first atom
+				// the substituted atom must be on a bridge of two or more atoms
+				var next = -1
+				for _, x := range m.HeavyNbrs(sAtom) {
+					if x != bh && inCore[x] {
+						next = x
+					}
+				}
+				if next < 0 || s.Mol.BondBetween(next, other) >= 0 || next == other {
+					continue // one-atom bridge (syn/anti, not exo/endo) or the olefin itself
+				}
+				// top must be on the shorter bridge: it must not lead back to the olefin
+				for _, sub := range m.HeavyNbrs(sAtom) {
+					if inSystem[sub] {
+						continue
+					}
+					c := cisOnRing(m, end, bh, sAtom, next, top, sub)
+					// the other-ring relation is only meaningful when top belongs to the one- or
+					// two-atom bridge opposite the olefin
+					if c == 1 {
+						found["exo"] = true
+					} else if c == -1 {
+						found["endo"] = true
+					}
+				}
+				// fused spectator rings count as substituents too (imides, anhydrides)
+				for _, sub := range m.HeavyNbrs(sAtom) {
+					if !inSystem[sub] || inCore[sub] {
+						continue
+					}
+					c := cisOnRing(m, end, bh, sAtom, next, top, sub)
+					if c == 1 {
+						found["exo"] = true
+					} else if c == -1 {
+						found["endo"] = true
+					}
+				}
+			}
+		}
+	}
+	switch {
+	case found["exo"] && found["endo"]:
+		return "exo,endo"
+	case found["exo"]:
+		return "exo"
+	case found["endo"]:
+		return "endo"
+	}
+	return ""
+}
+
+// transFusion reports a trans ring fusion on the olefin's own ring (both fusion atoms carry
+// stereo marks and their out-of-ring bonds point to opposite faces).
+func (s *Structure) transFusion(o *Olefin, inSmall, inSystem []bool) bool {
+	m := s.Mol
+	ring := o.SmallRing
+	n := len(ring)
+	for i := 0; i < n; i++ {
+		a, b := ring[i], ring[(i+1)%n]
+		prev, next := ring[(i+n-1)%n], ring[(i+2)%n]
+		if a == o.A || a == o.B || b == o.A || b == o.B {
+			continue
+		}
+		var pa, qb = -1, -1
+		for _, x := range m.HeavyNbrs(a) {
+			if inSystem[x] && !inSmall[x] {
+				pa = x
+			}
+		}
+		for _, x := range m.HeavyNbrs(b) {
+			if inSystem[x] && !inSmall[x] {
+				qb = x
+			}
+		}
+		if pa < 0 || qb < 0 || m.Atoms[a].Chiral == 0 || m.Atoms[b].Chiral == 0 || !s.sameOtherRing(pa, qb, a, b) {
+			continue
+		}
+		if cisOnRing(m, prev, a, b, next, pa, qb) == -1 {
+			return true
+		}
+	}
+	return false
+}
+
+// sameOtherRing reports that x and y (out-of-ring neighbours of the fused pair a–b) lie in one
+// SSSR ring with a and b: the pair is a fusion bond.
+func (s *Structure) sameOtherRing(x, y, a, b int) bool {
+	for _, r := range s.Rings.SSSR {
+		n := 0
+		for _, at := range r.Atoms {
+			if at == x || at == y || at == a || at == b {
+				n++
+			}
+		}
+		if n == 4 {
+			return true
+		}
+	}
+	return false
+}

@@ -1,0 +1,268 @@
+// Package judge turns descriptors and thermodynamics into a verdict: the rules (one function
+// each, a stable code per reason), the catalyst-class × functional-group tolerance, ΔG_p and
+// equilibrium conversion at the conditions, the score, and the cautions.
+package judge
+
+import (
+	"fmt"
+	"math"
+	"strconv"
+	"strings"
+
+	"ringsieve/screening/describe"
+	"ringsieve/screening/thermo"
+	"ringsieve/screening/units"
+)
+
+// EngineVersion identifies the rules, table and formulas that produced a result; stored with
+// saved results so a notebook can tell which engine screened a candidate.
+const EngineVersion = "ringsieve-engine/1.0.0"
+
+// Verdicts.
+const (
+	VerdictPolymerizes = "polymerizes"
+	VerdictEquilibrium = "equilibrium_limited"
+	VerdictUnfavorable = "unfavorable"
+	VerdictBlocked     = "blocked"
+	VerdictNotMonomer  = "not_a_monomer"
+)
+
+// PolymerizesConversion is the equilibrium conversion at or above which a favoured monomer is
+// judged to polymerize (contract: ≥ 0.90).
+const PolymerizesConversion = 0.90
+
+// ConditionsOut echoes the conditions used.
+type ConditionsOut struct {
+	TemperatureC    float64 `json:"temperature_c"`
+	TemperatureK    float64 `json:"temperature_k"`
+	MonomerConcMolL float64 `json:"monomer_conc_mol_l"`
+	Bulk            bool    `json:"bulk"`
+	Catalyst        string  `json:"catalyst"`
+}
+
+// Result is one screening result (contract: Screen result).
+type Result struct {
+	Verdict     string               `json:"verdict"`
+	Score       float64              `json:"score"`
+	Reasons     []Reason             `json:"reasons"`
+	Thermo      *thermo.Thermo       `json:"thermo"`
+	Descriptors describe.Descriptors `json:"descriptors"`
+	Cautions    []string             `json:"cautions"`
+	// CatalystCompatibility ranks every catalyst class for the monomer's functional groups.
+	CatalystCompatibility []Compatibility `json:"catalyst_compatibility"`
+	Conditions            ConditionsOut   `json:"conditions"`
+	EngineVersion         string          `json:"engine_version"`
+}
+
+// Verdicts lists every verdict from best to worst: the one verdict order.
+var Verdicts = []string{VerdictPolymerizes, VerdictEquilibrium, VerdictUnfavorable, VerdictBlocked, VerdictNotMonomer}
+
+var verdictRank = func() map[string]int {
+	m := map[string]int{}
+	for i, v := range Verdicts {
+		m[v] = i
+	}
+	return m
+}()
+
+// VerdictRank orders verdicts from best (0) to worst; an unknown verdict ranks after all.
+func VerdictRank(v string) int {
+	if r, ok := verdictRank[v]; ok {
+		return r
+	}
+	return len(Verdicts)
+}
+
+// ParseVerdict validates a verdict name. Errors are *units.FieldError values for field.
+func ParseVerdict(field, v string) (string, error) {
+	if _, ok := verdictRank[v]; !ok {
+		return "", units.FieldErr(field, "unknown verdict %q (one of %s)", v, strings.Join(Verdicts, ", "))
+	}
+	return v, nil
+}
+
+// Judge runs the rules and, when there is a ring olefin (e != nil), the thermodynamics at the
+// conditions; it sets verdict, score and cautions.
+func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Result {
+	r := Result{
+		Descriptors:           *d,
+		EngineVersion:         EngineVersion,
+		Conditions:            OutOf(c),
+		Reasons:               make([]Reason, 0, 8),
+		CatalystCompatibility: CompatibilityFor(d.FunctionalGroups),
+	}
+	r.Conditions.MonomerConcMolL = round(float64(c.Conc), 4)
+	in := ruleInput{Desc: d, Cond: c}
+	for _, rl := range rules {
+		r.Reasons = append(r.Reasons, rl(in)...)
+	}
+	if d.RingSize == 0 {
+		r.Verdict = VerdictNotMonomer
+		r.Score = 0
+		r.Cautions = cautions(d, nil, c, r.Verdict)
+		return r
+	}
+	th := thermo.Evaluate(e.DHkJmol, e.DSJmolK, c.Temp, c.Conc)
+	th.DHUncertaintyKJmol = round(e.UH, 2)
+	th.DSUncertaintyJmolK = round(e.US, 2)
+	uG := math.Hypot(e.UH, float64(c.Temp)*e.US/1000)
+	th.DGUncertaintyKJmol = round(uG, 2)
+	th.Basis = e.Basis
+	th.Source = e.Source
+	th.ParentRingSystem, th.UnsubstitutedParent = e.Parent, e.Bare
+	if d.MolWeightGmol > 0 && e.DHkJmol < 0 {
+		q := -e.DHkJmol * 1000 / d.MolWeightGmol
+		q = round(q, 1)
+		th.HeatReleasedJG = &q
+	}
+	r.Thermo = &th
+	r.Reasons = append(r.Reasons, strainReasons(d, *e)...)
+	for _, n := range e.Notes {
+		r.Reasons = append(r.Reasons, Reason{Code: n.Code, Effect: EffectNote, Detail: n.Detail, Value: n.Value, Unit: n.Unit})
+	}
+	// thermodynamic reasons with the numbers
+	conv := th.EqConversion
+	switch {
+	case th.DGkJmol >= 0:
+		v := th.DGkJmol
+		det := fmt.Sprintf("ΔG_p = %+.1f kJ/mol at %.1f °C and %.3g mol/L: the monomer is favoured over polymer", th.DGkJmol, c.Temp.Celsius(), float64(c.Conc))
+		if th.CeilingTempK != nil {
+			det += fmt.Sprintf(" (ceiling temperature %.0f K at this concentration)", *th.CeilingTempK)
+		}
+		r.Reasons = append(r.Reasons, Reason{Code: "above_ceiling_temperature", Effect: EffectPenalizes, Value: &v, Unit: "kJ/mol", Detail: det})
+	case conv < PolymerizesConversion:
+		v := conv
+		r.Reasons = append(r.Reasons, Reason{Code: "equilibrium_monomer", Effect: EffectPenalizes, Value: &v, Unit: "fraction",
+			Detail: fmt.Sprintf("equilibrium conversion %.2f ([M]eq = %.3g mol/L): raise the concentration or lower the temperature", conv, th.EqMonomerMolL)})
+	default:
+		v := conv
+		r.Reasons = append(r.Reasons, Reason{Code: "favorable_equilibrium", Effect: EffectFavors, Value: &v, Unit: "fraction",
+			Detail: "equilibrium conversion " + strconv.FormatFloat(conv, 'f', 3, 64) + " at these conditions"})
+	}
+	if uG > 0 && math.Abs(th.DGkJmol) < uG {
+		v := uG
+		r.Reasons = append(r.Reasons, Reason{Code: "verdict_near_boundary", Effect: EffectNote, Value: &v, Unit: "kJ/mol",
+			Detail: fmt.Sprintf("|ΔG_p| = %.1f kJ/mol is within its uncertainty (±%.1f kJ/mol): the ceiling temperature lies within the uncertainty band of the working temperature; treat the verdict as uncertain", math.Abs(th.DGkJmol), uG)})
+	}
+	// verdict
+	blocked := false
+	penalty := 0.0
+	for _, rs := range r.Reasons {
+		if rs.Effect == EffectBlocks {
+			blocked = true
+		}
+		penalty += rs.Penalty
+	}
+	dg := th.DGkJmol
+	switch {
+	case blocked:
+		r.Verdict = VerdictBlocked
+		r.Score = 0.02 + 0.06*sigmoid(-dg/20)
+	case dg >= 0:
+		r.Verdict = VerdictUnfavorable
+		r.Score = 0.10 + 0.15*math.Exp(-dg/5)
+	case conv < PolymerizesConversion:
+		r.Verdict = VerdictEquilibrium
+		r.Score = 0.35 + 0.3*conv/PolymerizesConversion
+	default:
+		r.Verdict = VerdictPolymerizes
+		r.Score = 0.70 + 0.30*sigmoid(-dg/15)
+	}
+	// penalties lower the score within the verdict's band
+	floor := scoreFloor[r.Verdict]
+	r.Score = math.Max(floor, r.Score-0.3*math.Min(penalty, 1))
+	r.Score = round(r.Score, 4)
+	r.Cautions = cautions(d, &th, c, r.Verdict)
+	return r
+}
+
+// scoreFloor is the lowest score of each verdict's band (design choice: the bands do not
+// overlap, so sorting by score keeps the verdict order; penalties move a result within its band).
+var scoreFloor = map[string]float64{VerdictBlocked: 0.01, VerdictUnfavorable: 0.1, VerdictEquilibrium: 0.3, VerdictPolymerizes: 0.66}
+
+func sigmoid(x float64) float64 { return 1 / (1 + math.Exp(-x)) }
+
+func round(x float64, digits int) float64 { return describe.Round(x, digits) }
+
+// VolatileMolarMassG is the molar mass below which a monomer gets the volatility caution
+// (design choice: cyclopentene 68 and norbornene 94 g/mol are volatile and flammable, a
+// 150 g/mol line keeps the caution on the small parents only).
+const VolatileMolarMassG = 150
+
+// DefaultHydrocarbonCp is the liquid heat capacity in J/(g K) assumed for a neat monomer: the
+// anchor of liquid hydrocarbons (NIST cyclohexane 1.854, benzene 1.737; romp_facts d.2).
+const DefaultHydrocarbonCp = 1.8
+
+// Cautions. They are plain, neutral statements; every list ends by deferring to local codes and
+// qualified practice (romp_facts.md section d.3 lists the hazards drawn on here).
+const CautionDefer = "These are screening estimates, not a hazard assessment: local codes, your site's process-safety review, the supplier's safety data sheets and qualified practice decide."
+
+func cautions(d *describe.Descriptors, th *thermo.Thermo, c units.Conditions, verdict string) []string {
+	out := make([]string, 0, 6)
+	if th != nil && th.DHkJmol < 0 && (verdict == VerdictPolymerizes || verdict == VerdictEquilibrium) {
+		q := 0.0
+		if th.HeatReleasedJG != nil {
+			q = *th.HeatReleasedJG
+		}
+		switch {
+		case c.Bulk && q > 0:
+			rise := q * th.EqConversion / DefaultHydrocarbonCp
+			out = append(out, fmt.Sprintf("Bulk polymerization releases about %.0f J per gram of monomer; with no heat loss the mixture could rise by about %.0f K (heat capacity %.1f J/(g K) assumed). Fast catalysts release most of it within seconds to minutes and gelation stops stirring: treat it as a possible runaway, add monomer or catalyst in portions, and provide cooling.", q, rise, DefaultHydrocarbonCp))
+		case th.DHkJmol <= -40:
+			out = append(out, "Strongly exothermic ring opening (ΔH_p ≈ "+f0(th.DHkJmol)+" kJ/mol): at high concentration or in bulk the heat can outrun cooling. Add catalyst or monomer gradually and watch the temperature.")
+		}
+	}
+	if d.MolWeightGmol > 0 && d.MolWeightGmol < VolatileMolarMassG && d.HeavyAtoms > 0 {
+		out = append(out, "Low-molar-mass cyclic olefin: likely volatile and flammable (cyclopentene and norbornene have flash points below 0 °C); keep away from ignition sources, use closed or vented vessels rated for the pressure, and check the safety data sheet.")
+	}
+	if th != nil && c.Temp > 373.15 {
+		out = append(out, "Reaction above 100 °C: check the boiling points of monomer and solvent and the pressure rating of the vessel.")
+	}
+	switch c.Catalyst {
+	case units.CatMoWImido:
+		out = append(out, "Molybdenum and tungsten imido alkylidenes are air- and moisture-sensitive: handle in a glovebox or on a Schlenk line; quench with an aldehyde; treat residues as heavy-metal waste.")
+	case units.CatClassical:
+		out = append(out, "Classical systems use air- and moisture-sensitive metal halides and often pyrophoric alkylaluminium co-catalysts: inert-atmosphere handling and trained staff only; treat residues as heavy-metal waste.")
+	default:
+		out = append(out, "Ruthenium alkylidenes tolerate air as solids, but degas solutions for long or hot runs; quench with an excess of ethyl vinyl ether (quenching stops the chemistry, it does not remove heat already released; cooling and dilution come first); treat residues as heavy-metal waste.")
+	}
+	out = append(out, CautionDefer)
+	return out
+}
+
+// MainReasons lists the codes of the blocking, penalizing and favoring reasons, joined by "; "
+// (a group, when the reason names one, in parentheses).
+func MainReasons(r *Result) string {
+	var codes []string
+	for _, effect := range []string{EffectBlocks, EffectPenalizes, EffectFavors} {
+		for _, rs := range r.Reasons {
+			if rs.Effect == effect {
+				c := rs.Code
+				if rs.Group != "" {
+					c += "(" + rs.Group + ")"
+				}
+				codes = append(codes, c)
+			}
+		}
+	}
+	return strings.Join(codes, "; ")
+}
+
+// MoreReactive orders the results of one monomer's ring olefins: better verdict first, then
+// higher score, then lower ΔG_p. Both results must carry thermodynamics.
+func MoreReactive(a, b *Result) bool {
+	if ra, rb := VerdictRank(a.Verdict), VerdictRank(b.Verdict); ra != rb {
+		return ra < rb
+	}
+	if a.Score != b.Score {
+		return a.Score > b.Score
+	}
+	return a.Thermo.DGkJmol < b.Thermo.DGkJmol
+}
+
+// OutOf returns the conditions as shown (temperature in °C rounded to 4 decimals beside the
+// exact kelvin value).
+func OutOf(c units.Conditions) ConditionsOut {
+	return ConditionsOut{TemperatureC: round(c.Temp.Celsius(), 4), TemperatureK: float64(c.Temp),
+		MonomerConcMolL: float64(c.Conc), Bulk: c.Bulk, Catalyst: string(c.Catalyst)}
+}

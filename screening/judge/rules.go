@@ -1,0 +1,222 @@
+package judge
+
+import (
+	"fmt"
+	"strconv"
+	"strings"
+
+	"ringsieve/screening/describe"
+	"ringsieve/screening/internal/memo"
+	"ringsieve/screening/thermo"
+	"ringsieve/screening/units"
+)
+
+// Reason effects.
+const (
+	EffectBlocks    = "blocks"
+	EffectPenalizes = "penalizes"
+	EffectFavors    = "favors"
+	EffectNote      = "note"
+)
+
+// Reason is one machine-readable finding: a stable snake_case code, its effect on the verdict,
+// plain-language detail and, where there is one, the number behind it.
+type Reason struct {
+	Code   string   `json:"code"`
+	Effect string   `json:"effect"`
+	Detail string   `json:"detail"`
+	Value  *float64 `json:"value,omitempty"`
+	Unit   string   `json:"unit,omitempty"`
+	Group  string   `json:"group,omitempty"`
+	// Penalty is the score deduction of a penalizing reason (0 to 1); not serialized.
+	Penalty float64 `json:"-"`
+}
+
+// ruleInput is what every structural rule sees.
+type ruleInput struct {
+	Desc *describe.Descriptors
+	Cond units.Conditions
+}
+
+// A rule returns the reasons it finds (none when it does not apply). Each rule is one small
+// function with a stable code; add a rule by writing the function and listing it in rules.
+type rule func(in ruleInput) []Reason
+
+var rules = []rule{
+	ruleNoRingOlefin,
+	ruleSixMembered,
+	ruleConjugatedDiene,
+	ruleOlefinSubstitution,
+	ruleEWGOnOlefin,
+	ruleEWGOnRing,
+	ruleQuaternaryAllylicEWG,
+	ruleBulkyAllylic,
+	ruleCatalystGroups,
+	ruleExoEndo,
+	ruleCyclicEnolEther,
+	ruleTransCyclooctene,
+}
+
+func ruleNoRingOlefin(in ruleInput) []Reason {
+	if in.Desc.RingSize != 0 {
+		return nil
+	}
+	return []Reason{{Code: "no_ring_olefin", Effect: EffectBlocks,
+		Detail: "no metathesis-active ring C=C: ring-opening metathesis needs a non-aromatic C=C inside a ring"}}
+}
+
+func ruleSixMembered(in ruleInput) []Reason {
+	d := in.Desc
+	if d.RingSize != 6 || d.RingSystem != describe.SystemMonocyclic {
+		return nil
+	}
+	return []Reason{{Code: "six_membered_ring", Effect: EffectPenalizes, Penalty: 0.3,
+		Detail: "six-membered monocyclic ring: almost no strain to release (ΔH_p near zero or positive), so no high polymer forms (common practice)"}}
+}
+
+func ruleConjugatedDiene(in ruleInput) []Reason {
+	d := in.Desc
+	if !d.ConjugatedWithKind(describe.ConjRingOlefin) {
+		return nil
+	}
+	if d.RingSize <= 7 {
+		return []Reason{{Code: "conjugated_diene_in_ring", Effect: EffectBlocks,
+			Detail: "conjugated diene in a small ring: the ring-opened vinyl alkylidene is stabilized and the ring has little strain to release; no homopolymer (common practice)"}}
+	}
+	return []Reason{{Code: "conjugated_diene_in_ring", Effect: EffectPenalizes, Penalty: 0.1,
+		Detail: "conjugated diene in a medium ring: polymerizes slowly and only with the most active classes (e.g. cyclooctatetraene with Mo/W imido alkylidenes); from memory"}}
+}
+
+func ruleOlefinSubstitution(in ruleInput) []Reason {
+	switch in.Desc.OlefinSubstitution {
+	case 4:
+		return []Reason{{Code: "tetrasubstituted_olefin", Effect: EffectBlocks,
+			Detail: "tetrasubstituted ring olefin: too hindered to enter the metallacyclobutane (common practice)"}}
+	case 3:
+		return []Reason{{Code: "trisubstituted_olefin", Effect: EffectPenalizes, Penalty: 0.25,
+			Detail: "trisubstituted ring olefin: slow and regio-irregular propagation; only strained rings (cyclobutenes, trans- or cis-cyclooctenes, 1,5-cyclooctadienes) give polymer (common practice)"}}
+	}
+	return nil
+}
+
+func ruleEWGOnOlefin(in ruleInput) []Reason {
+	if !in.Desc.EWGOnOlefin {
+		return nil
+	}
+	return []Reason{{Code: "ewg_on_olefin", Effect: EffectBlocks,
+		Detail: "electron-withdrawing group directly on the ring olefin: the ring-opened alkylidene is electron-poor and does not add another monomer (e.g. cyclobutene-1-carboxylates give single addition only: Song, Parker, Sampson, J. Am. Chem. Soc. 2009, 131, 3444)"}}
+}
+
+func ruleEWGOnRing(in ruleInput) []Reason {
+	d := in.Desc
+	if !d.EWGOnOlefinRing || d.EWGOnOlefin || d.RingSystem != describe.SystemMonocyclic || d.RingSize > 7 {
+		return nil
+	}
+	return []Reason{{Code: "ewg_on_olefin_ring", Effect: EffectPenalizes, Penalty: 0.15,
+		Detail: "electron-withdrawing group on the olefin's own small ring: lowers olefin reactivity (common practice)"}}
+}
+
+func ruleQuaternaryAllylicEWG(in ruleInput) []Reason {
+	if !in.Desc.QuaternaryAllylicEWG {
+		return nil
+	}
+	if in.Cond.Catalyst.IsRuthenium() {
+		return []Reason{{Code: "quaternary_allylic_ewg", Effect: EffectBlocks,
+			Detail: "fully substituted allylic carbon carrying a carbonyl: the ring-opened ruthenium alkylidene is too crowded to add another monomer (single addition; Macromolecules 2020, 53, 5833)"}}
+	}
+	return []Reason{{Code: "quaternary_allylic_ewg", Effect: EffectPenalizes, Penalty: 0.25,
+		Detail: "fully substituted allylic carbon carrying a carbonyl: crowded propagating alkylidene"}}
+}
+
+func ruleBulkyAllylic(in ruleInput) []Reason {
+	d := in.Desc
+	if !d.BulkyAllylic || d.QuaternaryAllylicEWG {
+		return nil
+	}
+	return []Reason{{Code: "bulky_allylic_substituent", Effect: EffectPenalizes, Penalty: 0.1,
+		Detail: "bulky substituent next to the ring olefin: slower propagation (common practice)"}}
+}
+
+// groupDetail caches the text of a group × class finding (the texts are static).
+var groupDetail = memo.New[string](1000)
+
+func ruleCatalystGroups(in ruleInput) []Reason {
+	var out []Reason
+	for _, g := range in.Desc.FunctionalGroups {
+		code, remedy := Tolerance(in.Cond.Catalyst, g)
+		if code == TolTolerated {
+			continue
+		}
+		key := g + "|" + string(in.Cond.Catalyst)
+		detail, ok := groupDetail.Get(key)
+		if !ok {
+			detail = fmt.Sprintf("%s with %s: %s", strings.ReplaceAll(g, "_", " "), in.Cond.Catalyst, code)
+			if remedy != "" {
+				detail += "; " + remedy
+			}
+			groupDetail.Put(key, detail)
+		}
+		switch {
+		case blocksHomopolymer(code, g):
+			out = append(out, Reason{Code: "catalyst_incompatible_group", Effect: EffectBlocks, Group: g, Detail: detail})
+		case code == TolSlows || code == TolReacts:
+			out = append(out, Reason{Code: "catalyst_slowing_group", Effect: EffectPenalizes, Penalty: 0.05, Group: g, Detail: detail})
+		case code == TolConditional:
+			out = append(out, Reason{Code: "catalyst_conditional_group", Effect: EffectPenalizes, Penalty: 0.03, Group: g, Detail: detail})
+		}
+	}
+	return out
+}
+
+func ruleExoEndo(in ruleInput) []Reason {
+	switch in.Desc.ExoEndo {
+	case "exo":
+		return []Reason{{Code: "exo_substituents", Effect: EffectNote,
+			Detail: "exo substituents on the bridged bicycle: faster propagation than the endo isomer (rate note, not thermodynamics; e.g. exo- vs endo-dicyclopentadiene differ by more than tenfold, Rule & Moore, Macromolecules 2002, 35, 7878)"}}
+	case "endo", "exo,endo":
+		return []Reason{{Code: "endo_substituents", Effect: EffectNote,
+			Detail: "endo substituent(s) on the bridged bicycle: slower propagation than exo and broader dispersity with slow-initiating catalysts (rate note, not thermodynamics)"}}
+	}
+	return nil
+}
+
+func ruleCyclicEnolEther(in ruleInput) []Reason {
+	d := in.Desc
+	if !d.HasGroup(describe.FGCyclicEnolEther) || !in.Cond.Catalyst.IsRuthenium() {
+		return nil
+	}
+	return []Reason{{Code: "cyclic_enol_ether", Effect: EffectNote,
+		Detail: "cyclic enol ether: the ruthenium Fischer carbene formed still ring-opens this ring (Feist & Xia, J. Am. Chem. Soc. 2020, 142, 1186), unlike acyclic vinyl ethers which end chains"}}
+}
+
+func ruleTransCyclooctene(in ruleInput) []Reason {
+	d := in.Desc
+	if !d.TransOlefin {
+		return nil
+	}
+	return []Reason{{Code: "trans_ring_olefin", Effect: EffectFavors,
+		Detail: "trans olefin in a medium ring: large extra strain, very fast living ring opening"}}
+}
+
+// strainReasons turn the thermodynamics into favor/penalize reasons with the numbers.
+func strainReasons(d *describe.Descriptors, e thermo.Estimate) []Reason {
+	dh := e.DHkJmol
+	v := dh
+	switch {
+	case dh <= -40 && d.RingSystem == describe.SystemBridged:
+		return []Reason{{Code: "bridged_bicyclic_strain", Effect: EffectFavors, Value: &v, Unit: "kJ/mol",
+			Detail: "strained bridged bicyclic ring: ΔH_p ≈ " + f0(dh) + " kJ/mol drives polymerization"}}
+	case dh <= -40:
+		return []Reason{{Code: "high_ring_strain", Effect: EffectFavors, Value: &v, Unit: "kJ/mol",
+			Detail: "high ring strain: ΔH_p ≈ " + f0(dh) + " kJ/mol"}}
+	case dh <= -15:
+		return []Reason{{Code: "moderate_ring_strain", Effect: EffectNote, Value: &v, Unit: "kJ/mol",
+			Detail: "moderate ring strain: ΔH_p ≈ " + f0(dh) + " kJ/mol; the ceiling temperature and concentration matter"}}
+	default:
+		return []Reason{{Code: "low_ring_strain", Effect: EffectPenalizes, Penalty: 0.1, Value: &v, Unit: "kJ/mol",
+			Detail: "little ring strain: ΔH_p ≈ " + f0(dh) + " kJ/mol"}}
+	}
+}
+
+// f0 formats a number with no decimals (strconv: the reason texts are on the hot path).
+func f0(x float64) string { return strconv.FormatFloat(x, 'f', 0, 64) }

@@ -1,0 +1,186 @@
+// Package screening strings the science steps together: a SMILES, a molfile or a descriptor
+// record goes in, a verdict with reasons, thermodynamics and cautions comes out. The steps live
+// in the sub-packages (mol ← smiles, molfile ← rings ← canon ← describe ← thermo ← judge ←
+// plan); this package holds the pipeline and re-exports the domain types callers use, so that
+// the API and the commands speak one vocabulary. It imports nothing of HTTP, SQL or gin.
+package screening
+
+import (
+	"errors"
+	"fmt"
+	"sort"
+	"strings"
+
+	"ringsieve/screening/describe"
+	"ringsieve/screening/judge"
+	"ringsieve/screening/molfile"
+	"ringsieve/screening/smiles"
+	"ringsieve/screening/thermo"
+	"ringsieve/screening/units"
+)
+
+// Domain types, defined by the step that computes them.
+type (
+	Result        = judge.Result
+	Reason        = judge.Reason
+	Compatibility = judge.Compatibility
+	ConditionsOut = judge.ConditionsOut
+	Thermo        = thermo.Thermo
+	Descriptors   = describe.Descriptors
+	Structure     = describe.Structure
+	Conditions    = units.Conditions
+	CatalystClass = units.CatalystClass
+	TempK         = units.TempK
+	ConcMolL      = units.ConcMolL
+	FieldError    = units.FieldError
+	SMILESError   = smiles.Error
+	MolfileError  = molfile.Error
+)
+
+// Error sentinels: every malformed SMILES matches ErrSMILES; every out-of-range or inconsistent
+// value (and every malformed molfile) matches ErrInvalid.
+var (
+	ErrSMILES  = smiles.ErrSMILES
+	ErrInvalid = units.ErrInvalid
+)
+
+// EngineVersion identifies the rules, table and formulas that produced a result.
+const EngineVersion = judge.EngineVersion
+
+// Verdicts (contract), best first.
+const (
+	VerdictPolymerizes = judge.VerdictPolymerizes
+	VerdictEquilibrium = judge.VerdictEquilibrium
+	VerdictUnfavorable = judge.VerdictUnfavorable
+	VerdictBlocked     = judge.VerdictBlocked
+	VerdictNotMonomer  = judge.VerdictNotMonomer
+)
+
+// DefaultConditions are the contract's defaults: 25 °C, 1.0 mol/L, ru-nhc.
+func DefaultConditions() Conditions { return units.DefaultConditions() }
+
+// Source names one monomer to screen: exactly one of a SMILES, a V2000 molfile or a descriptor
+// record.
+type Source struct {
+	SMILES      string
+	Molfile     string
+	Descriptors *Descriptors
+}
+
+// Screen screens one source under conditions c.
+func Screen(src Source, c Conditions) (Result, error) {
+	switch {
+	case src.Molfile != "":
+		return ScreenMolfile(src.Molfile, c)
+	case src.Descriptors != nil && strings.TrimSpace(src.SMILES) == "":
+		return ScreenDescriptors(*src.Descriptors, c)
+	default:
+		return ScreenSMILES(src.SMILES, c)
+	}
+}
+
+// ScreenSMILES screens a structure. Errors: *SMILESError for malformed SMILES; *FieldError when
+// bulk conditions cannot be estimated.
+func ScreenSMILES(text string, c Conditions) (Result, error) {
+	s, err := describe.Describe(text)
+	if err != nil {
+		return Result{}, err
+	}
+	return ScreenStructure(s, c)
+}
+
+// ScreenMolfile screens a V2000 molfile. Errors are *MolfileError values (an atom beyond its
+// valence is reported on its atom line).
+func ScreenMolfile(text string, c Conditions) (Result, error) {
+	m, _, err := molfile.Parse(text)
+	if err != nil {
+		return Result{}, err
+	}
+	s, err := describe.DescribeMolecule(m, "")
+	var ve *describe.ValenceError
+	if errors.As(err, &ve) {
+		return Result{}, &molfile.Error{Line: 5 + ve.Atom, Msg: ve.Msg}
+	}
+	if err != nil {
+		return Result{}, err
+	}
+	return ScreenStructure(s, c)
+}
+
+// ScreenStructure screens a described structure: every ring olefin is judged and the most
+// reactive one is reported, the others listed in descriptors.other_ring_olefins.
+func ScreenStructure(s *Structure, c Conditions) (Result, error) {
+	base := s.MoleculeDescriptors()
+	var bulkNote *Reason
+	if c.Bulk {
+		conc, rel, ok := s.BulkConcentration()
+		if !ok {
+			return Result{}, units.FieldErr("conditions.bulk", "cannot estimate the neat density of this monomer; give monomer_conc_mol_l instead")
+		}
+		c.Conc = conc
+		v := float64(conc)
+		bulkNote = &Reason{Code: "bulk_concentration_estimate", Effect: judge.EffectNote, Value: &v, Unit: "mol/L",
+			Detail: fmt.Sprintf("neat monomer: [M]0 ≈ %.2f mol/L ± %.0f%% from the McGowan volume (liquid molar volume ≈ 1.25 × McGowan volume)", v, 100*rel)}
+	}
+	if len(s.Olefins) == 0 {
+		d := base
+		d.RingSize = 0
+		d.FunctionalGroups = s.Groups
+		r := judge.Judge(&d, nil, c)
+		r.Reasons[0].Detail += s.WhyNoOlefin()
+		return r, nil
+	}
+	type cand struct {
+		o *describe.Olefin
+		r Result
+		e thermo.Estimate
+	}
+	cands := make([]cand, 0, len(s.Olefins))
+	for _, o := range s.Olefins {
+		e := thermo.EstimateOlefin(s, o)
+		d := o.Desc
+		d.MergeMolecule(&base)
+		r := judge.Judge(&d, &e, c)
+		cands = append(cands, cand{o, r, e})
+	}
+	sort.SliceStable(cands, func(i, j int) bool { return judge.MoreReactive(&cands[i].r, &cands[j].r) })
+	best := cands[0].r
+	best.Descriptors.RingOlefins = len(cands)
+	for _, x := range cands[1:] {
+		best.Descriptors.OtherRingOlefins = append(best.Descriptors.OtherRingOlefins, describe.OlefinSummary{
+			RingSize: x.o.Desc.RingSize, RingSystem: x.o.Desc.RingSystem, OlefinSubstitution: x.o.Desc.OlefinSubstitution,
+			SkeletonKey: x.o.Desc.CoreKey, DHkJmol: describe.Round(x.e.DHkJmol, 2), Note: "verdict for this olefin alone: " + x.r.Verdict,
+		})
+	}
+	best.Descriptors.RingOlefins += s.Skipped
+	if n := len(cands) + s.Skipped; n > 1 {
+		det := fmt.Sprintf("%d ring olefins: screened on the most reactive; the others can react later (cross-linking, e.g. the cyclopentene ring of dicyclopentadiene)", n)
+		if s.Skipped > 0 {
+			det += fmt.Sprintf("; %d were not analysed (more than %d ring olefins)", s.Skipped, describe.MaxOlefinsAnalysed)
+		}
+		best.Reasons = append(best.Reasons, Reason{Code: "several_ring_olefins", Effect: judge.EffectNote, Detail: det})
+	}
+	if bulkNote != nil {
+		best.Reasons = append(best.Reasons, *bulkNote)
+	}
+	if len(s.CounterIons) > 0 {
+		best.Reasons = append(best.Reasons, Reason{Code: "counter_ion", Effect: judge.EffectNote,
+			Detail: "salt: screened the largest organic component; other components: " + strings.Join(s.CounterIons, "; ")})
+	}
+	return best, nil
+}
+
+// ScreenDescriptors screens a caller's descriptor record.
+func ScreenDescriptors(d Descriptors, c Conditions) (Result, error) {
+	if err := d.Validate(); err != nil {
+		return Result{}, err
+	}
+	if c.Bulk {
+		return Result{}, units.FieldErr("conditions.bulk", "bulk needs a structure (smiles) to estimate the neat density; give monomer_conc_mol_l for a descriptor record")
+	}
+	if d.RingSize == 0 {
+		return judge.Judge(&d, nil, c), nil
+	}
+	e := thermo.EstimateRecord(&d)
+	return judge.Judge(&d, &e, c), nil
+}

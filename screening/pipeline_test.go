@@ -1,0 +1,176 @@
+package screening_test
+
+import (
+	"reflect"
+	"sort"
+	"strings"
+	"testing"
+
+	. "ringsieve/screening"
+	"ringsieve/screening/describe"
+)
+
+func TestDescriptorsFromStructure(t *testing.T) {
+	cases := []struct {
+		name, smiles string
+		ringSize     int
+		system       string
+		subst        int
+		exoEndo      string
+		conj         []string
+		ewgOlefin    bool
+		groups       []string
+	}{
+		{"norbornene", "C1=CC2CCC1C2", 5, describe.SystemBridged, 2, "", nil, false, nil},
+		{"cis-cyclooctene", `C1=C\CCCCCC/1`, 8, describe.SystemMonocyclic, 2, "", nil, false, nil},
+		{"cyclopentene", "C1=CCCC1", 5, describe.SystemMonocyclic, 2, "", nil, false, nil},
+		{"1-methylcyclopentene", "CC1=CCCC1", 5, describe.SystemMonocyclic, 3, "", nil, false, nil},
+		// R083/R084 names: Ivin, Lam, Rooney, Macromol. Chem. Phys. 1994
+		{"exo-5-(methoxymethyl)norbornene", "COC[C@@H]1C[C@H]2C=C[C@@H]1C2", 5, describe.SystemBridged, 2, "exo", nil, false, []string{describe.FGEther}},
+		{"endo-5-(methoxymethyl)norbornene", "COC[C@@H]1C[C@@H]2C=C[C@H]1C2", 5, describe.SystemBridged, 2, "endo", nil, false, []string{describe.FGEther}},
+		// R078 exo,exo diacetate (Bazan et al., Macromolecules 1991); R089 endo,endo diester
+		{"exo,exo-diacetate", "CC(=O)O[C@@H]1[C@H](OC(C)=O)[C@H]2C=C[C@@H]1C2", 5, describe.SystemBridged, 2, "exo", nil, false, []string{describe.FGEster}},
+		{"endo,endo-diester", "COC(=O)[C@@H]1[C@H](C(=O)OC)[C@@H]2C=C[C@H]1C2", 5, describe.SystemBridged, 2, "endo", nil, false, []string{describe.FGEster}},
+		// R059 as written in romp_outcomes.csv has one carbonyl exo and one endo (RDKit 3D
+		// embedding agrees), so it is not the all-exo imide its name says
+		{"R059 as written", "CN1C(=O)[C@@H]2[C@@H](C1=O)[C@H]1C=C[C@@H]2O1", 5, describe.SystemBridged, 2, "exo,endo", nil, false, []string{describe.FGEther, describe.FGImide}},
+		{"endo-dicyclopentadiene", "C1=C[C@@H]2[C@H](C1)[C@@H]1C=C[C@H]2C1", 5, describe.SystemBridged, 2, "endo", nil, false, nil},
+		{"2-cyclopentenone", "O=C1C=CCC1", 5, describe.SystemMonocyclic, 2, "", []string{describe.ConjCarbonyl}, true, []string{describe.FGKetone}},
+		{"1,3-cyclohexadiene", "C1=CCCC=C1", 6, describe.SystemMonocyclic, 2, "", []string{describe.ConjRingOlefin}, false, nil},
+		{"1-phenylcyclobutene", "c1ccccc1C1=CCC1", 4, describe.SystemMonocyclic, 3, "", []string{describe.ConjAromatic}, false, nil},
+		{"cyclobutene ester (R008)", "COC(=O)C1=CCC1", 4, describe.SystemMonocyclic, 3, "", []string{describe.ConjCarbonyl}, true, []string{describe.FGEster}},
+		{"bicyclo[4.2.0]octene (fused)", "C1=CC2CCCCC12", 4, describe.SystemFused, 2, "", nil, false, nil},
+		{"spiro cyclopentene ketal", "C1=CC2(CC1)OCCO2", 5, describe.SystemSpiro, 2, "", nil, false, []string{describe.FGEther}},
+		{"norbornene amine (R094)", "NCC1CC2C=CC1C2", 5, describe.SystemBridged, 2, "", nil, false, []string{describe.FGPrimaryAmine}},
+		{"TMP imide (R093)", "CC1(C)CC(N2C(=O)[C@@H]3[C@H](C2=O)[C@@H]2C=C[C@H]3C2)CC(C)(C)N1", 5, describe.SystemBridged, 2, "endo", nil, false, []string{describe.FGHinderedAmine, describe.FGImide}},
+		{"thioacetate (R099)", "CC(=O)SCC1CC2C=CC1C2", 5, describe.SystemBridged, 2, "", nil, false, []string{describe.FGThioester}},
+		{"2,3-dihydrofuran", "C1=COCC1", 5, describe.SystemMonocyclic, 2, "", nil, false, []string{describe.FGCyclicEnolEther, describe.FGEther}},
+		{"ODAN (R063)", "CCOC(=O)N1C2C=CC(O2)N1C(=O)OCC", 5, describe.SystemBridged, 2, "", nil, false, []string{describe.FGCarbamate, describe.FGEther}},
+		{"ammonium salt", "[NH3+]CC1CC2C=CC1C2.[Cl-]", 5, describe.SystemBridged, 2, "", nil, false, []string{describe.FGAmmonium}},
+		{"vinyl norbornene (R079)", "C=CC1CC2C=CC1C2", 5, describe.SystemBridged, 2, "", nil, false, []string{describe.FGTerminalOlefin}},
+	}
+	for _, c := range cases {
+		s, err := describe.Describe(c.smiles)
+		if err != nil {
+			t.Errorf("%s: %v", c.name, err)
+			continue
+		}
+		r, err := ScreenStructure(s, DefaultConditions())
+		if err != nil {
+			t.Errorf("%s: %v", c.name, err)
+			continue
+		}
+		d := r.Descriptors
+		if d.RingSize != c.ringSize || d.RingSystem != c.system || d.OlefinSubstitution != c.subst || d.ExoEndo != c.exoEndo || d.EWGOnOlefin != c.ewgOlefin {
+			t.Errorf("%s: ring %d %s, substitution %d, exo/endo %q, ewg on olefin %v; want %d %s, %d, %q, %v",
+				c.name, d.RingSize, d.RingSystem, d.OlefinSubstitution, d.ExoEndo, d.EWGOnOlefin, c.ringSize, c.system, c.subst, c.exoEndo, c.ewgOlefin)
+		}
+		if !sameSet(d.ConjugatedWith, c.conj) {
+			t.Errorf("%s: conjugated with %v, want %v", c.name, d.ConjugatedWith, c.conj)
+		}
+		if !sameSet(d.FunctionalGroups, c.groups) {
+			t.Errorf("%s: groups %v, want %v", c.name, d.FunctionalGroups, c.groups)
+		}
+	}
+}
+
+func sameSet(a, b []string) bool {
+	if len(a) == 0 && len(b) == 0 {
+		return true
+	}
+	x := append([]string(nil), a...)
+	y := append([]string(nil), b...)
+	sort.Strings(x)
+	sort.Strings(y)
+	return reflect.DeepEqual(x, y)
+}
+
+func TestSeveralRingOlefins(t *testing.T) {
+	for _, c := range []struct {
+		smiles   string
+		ringSize int
+		others   int
+	}{
+		{"C1=CC2C(C1)C1C=CC2C1", 5, 1},
+		{"C1=CCCC=CCC1", 8, 1},
+		{"C1=CC2C=CC1C2", 5, 1},
+	} {
+		r, err := ScreenSMILES(c.smiles, DefaultConditions())
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r.Descriptors.RingSize != c.ringSize || len(r.Descriptors.OtherRingOlefins) != c.others {
+			t.Errorf("%s: ring %d with %d others, want %d with %d", c.smiles, r.Descriptors.RingSize, len(r.Descriptors.OtherRingOlefins), c.ringSize, c.others)
+		}
+	}
+	r, _ := ScreenSMILES("C1=CC2C(C1)C1C=CC2C1", DefaultConditions())
+	if r.Descriptors.RingSystem != describe.SystemBridged {
+		t.Errorf("dicyclopentadiene screened on its %s olefin, want the bridged (norbornene) one", r.Descriptors.RingSystem)
+	}
+}
+
+func TestSaltsAndCounterIons(t *testing.T) {
+	r, err := ScreenSMILES("[NH3+]CC1CC2C=CC1C2.[Cl-]", DefaultConditions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	if r.Descriptors.Formula != "C8H14N+" || len(r.Descriptors.CounterIons) != 1 || r.Descriptors.CounterIons[0] != "Cl-" {
+		t.Errorf("formula %s, counter-ions %v", r.Descriptors.Formula, r.Descriptors.CounterIons)
+	}
+	found := false
+	for _, rs := range r.Reasons {
+		if rs.Code == "counter_ion" {
+			found = true
+		}
+	}
+	if !found {
+		t.Error("no counter_ion reason")
+	}
+}
+
+func TestNotAMonomer(t *testing.T) {
+	for _, smi := range []string{"c1ccccc1", "C1CCCCC1", "C=CCCCCC=C", "CC#CC", "C1=CC=CC=C1"} {
+		r, err := ScreenSMILES(smi, DefaultConditions())
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r.Verdict != VerdictNotMonomer || r.Thermo != nil || r.Score != 0 {
+			t.Errorf("%s: verdict %s, thermo %v, score %v", smi, r.Verdict, r.Thermo, r.Score)
+		}
+		if !strings.Contains(r.Reasons[0].Detail, ":") {
+			t.Errorf("%s: reason does not say why: %s", smi, r.Reasons[0].Detail)
+		}
+	}
+}
+
+func TestMolfileMatchesSMILES(t *testing.T) {
+	// norbornene as a V2000 molfile (2D coordinates irrelevant)
+	mol := `norbornene
+  ringsieve
+
+  7  8  0  0  0  0  0  0  0  0999 V2000
+    0.0000    0.0000    0.0000 C   0  0  0  0  0  0  0  0  0  0  0  0
+    1.0000    0.0000    0.0000 C   0  0  0  0  0  0  0  0  0  0  0  0
+    1.5000    1.0000    0.0000 C   0  0  0  0  0  0  0  0  0  0  0  0
+    1.0000    2.0000    0.0000 C   0  0  0  0  0  0  0  0  0  0  0  0
+    0.0000    2.0000    0.0000 C   0  0  0  0  0  0  0  0  0  0  0  0
+   -0.5000    1.0000    0.0000 C   0  0  0  0  0  0  0  0  0  0  0  0
+    0.5000    1.0000    1.0000 C   0  0  0  0  0  0  0  0  0  0  0  0
+  1  2  2  0
+  2  3  1  0
+  3  4  1  0
+  4  5  1  0
+  5  6  1  0
+  6  1  1  0
+  3  7  1  0
+  6  7  1  0
+M  END`
+	a, err := ScreenMolfile(mol, DefaultConditions())
+	if err != nil {
+		t.Fatal(err)
+	}
+	b, _ := ScreenSMILES("C1=CC2CCC1C2", DefaultConditions())
+	if a.Descriptors.Formula != "C7H10" || a.Verdict != b.Verdict || a.Descriptors.SkeletonKey != b.Descriptors.SkeletonKey {
+		t.Errorf("molfile: %s %s %s; SMILES: %s %s", a.Descriptors.Formula, a.Verdict, a.Descriptors.SkeletonKey, b.Verdict, b.Descriptors.SkeletonKey)
+	}
+}

@@ -1,0 +1,561 @@
+// Package rings perceives the rings of a molecule graph: the bonds on cycles, the smallest ring
+// through each bond and atom, a smallest set of smallest rings, ring systems and their kind, and
+// Hückel aromaticity. Results are returned; the molecule is never changed.
+package rings
+
+import (
+	"sort"
+	"strconv"
+	"strings"
+
+	"ringsieve/screening/mol"
+)
+
+// Ring is one ring of the smallest set of smallest rings, as atom indices in ring order and the
+// bond indices joining them.
+type Ring struct {
+	Atoms []int
+	Bonds []int
+}
+
+// Rings holds what perception derives from a molecule; it refers to the molecule by index and
+// never changes it.
+type Rings struct {
+	// BondRingSize is, per bond, the size of the smallest ring containing it (0: acyclic).
+	BondRingSize []int
+	// AtomRingSize is, per atom, the size of the smallest ring containing it (0: acyclic).
+	AtomRingSize []int
+	// SSSR is a smallest set of smallest rings; its length is the cyclomatic number.
+	SSSR []Ring
+	// Aromatic atoms and bonds after Hückel perception.
+	AromaticAtom []bool
+	AromaticBond []bool
+}
+
+// Perceive computes rings and aromaticity of m. It never fails on an indexed molecule and
+// never changes it.
+func Perceive(m *mol.Molecule) *Rings {
+	p := &Rings{}
+	sizes := make([]int, len(m.Bonds)+len(m.Atoms)) // one allocation for both size lists
+	p.BondRingSize, p.AtomRingSize = sizes[:len(m.Bonds):len(m.Bonds)], sizes[len(m.Bonds):]
+	var candidates []Ring
+	inRing := ringBonds(m)
+	scratch := make([]int, 3*len(m.Atoms))
+	var seenMasks []uint64 // bond masks of the rings found, when the molecule has at most 64 bonds
+	small := len(m.Bonds) <= 64
+	for bi := range m.Bonds {
+		if !inRing[bi] {
+			continue
+		}
+		path := shortestPathAvoiding(m, m.Bonds[bi].A, m.Bonds[bi].B, bi, scratch)
+		if path == nil {
+			continue
+		}
+		p.BondRingSize[bi] = len(path)
+		if small {
+			// skip a ring already found through another of its bonds before allocating it
+			var mask uint64
+			for i := range path {
+				mask |= 1 << uint(m.BondBetween(path[i], path[(i+1)%len(path)]))
+			}
+			dup := false
+			for _, s := range seenMasks {
+				if s == mask {
+					dup = true
+					break
+				}
+			}
+			if dup {
+				continue
+			}
+			seenMasks = append(seenMasks, mask)
+		}
+		candidates = append(candidates, ringFromPath(m, path))
+	}
+	for bi, sz := range p.BondRingSize {
+		if sz == 0 {
+			continue
+		}
+		for _, a := range []int{m.Bonds[bi].A, m.Bonds[bi].B} {
+			if p.AtomRingSize[a] == 0 || sz < p.AtomRingSize[a] {
+				p.AtomRingSize[a] = sz
+			}
+		}
+	}
+	p.SSSR = selectSSSR(m, candidates)
+	p.perceiveAromaticity(m)
+	return p
+}
+
+// ringBonds marks the bonds that lie on a cycle: every bond that is not a bridge of the graph
+// (Tarjan's low-link, iterative depth-first search).
+func ringBonds(m *mol.Molecule) []bool {
+	n := len(m.Atoms)
+	inRing := make([]bool, len(m.Bonds))
+	for i := range inRing {
+		inRing[i] = true
+	}
+	work := make([]int, 2*n)
+	disc, low := work[:n], work[n:]
+	for i := range disc {
+		disc[i] = -1
+	}
+	type frame struct{ v, parentBond, next int }
+	t := 0
+	for s := 0; s < n; s++ {
+		if disc[s] >= 0 {
+			continue
+		}
+		stack := []frame{{s, -1, 0}}
+		disc[s], low[s] = t, t
+		t++
+		for len(stack) > 0 {
+			f := &stack[len(stack)-1]
+			if f.next < len(m.Neighbors(f.v)) {
+				bi := m.Neighbors(f.v)[f.next]
+				f.next++
+				if bi == f.parentBond {
+					continue
+				}
+				w := m.Other(bi, f.v)
+				if disc[w] < 0 {
+					disc[w], low[w] = t, t
+					t++
+					stack = append(stack, frame{w, bi, 0})
+				} else if disc[w] < low[f.v] {
+					low[f.v] = disc[w]
+				}
+				continue
+			}
+			// finished v: propagate low to the parent and classify the tree bond
+			v, pb := f.v, f.parentBond
+			stack = stack[:len(stack)-1]
+			if pb >= 0 {
+				u := m.Other(pb, v)
+				if low[v] < low[u] {
+					low[u] = low[v]
+				}
+				if low[v] > disc[u] {
+					inRing[pb] = false // a bridge
+				}
+			}
+		}
+	}
+	return inRing
+}
+
+// shortestPathAvoiding returns the atoms on a shortest path from a to b that does not use bond
+// skip (a first, b last), or nil. scratch must hold 3 × atoms ints; the path returned lives in
+// it and is overwritten by the next call.
+func shortestPathAvoiding(m *mol.Molecule, a, b, skip int, scratch []int) []int {
+	prev := scratch[:len(m.Atoms)]
+	for i := range prev {
+		prev[i] = -2
+	}
+	prev[a] = -1
+	q := scratch[len(m.Atoms):len(m.Atoms)]
+	q = append(q, a)
+	for k := 0; k < len(q); k++ {
+		x := q[k]
+		if x == b {
+			break
+		}
+		for _, bi := range m.Neighbors(x) {
+			if bi == skip {
+				continue
+			}
+			o := m.Other(bi, x)
+			if prev[o] == -2 {
+				prev[o] = x
+				q = append(q, o)
+			}
+		}
+	}
+	if prev[b] == -2 {
+		return nil
+	}
+	n := len(m.Atoms)
+	path := scratch[2*n : 2*n]
+	for x := b; x != -1; x = prev[x] {
+		path = append(path, x)
+	}
+	// reverse to run a -> b
+	for i, j := 0, len(path)-1; i < j; i, j = i+1, j-1 {
+		path[i], path[j] = path[j], path[i]
+	}
+	return path
+}
+
+func ringFromPath(m *mol.Molecule, path []int) Ring {
+	r := Ring{Atoms: append([]int(nil), path...)}
+	for i := range path {
+		j := (i + 1) % len(path)
+		r.Bonds = append(r.Bonds, m.BondBetween(path[i], path[j]))
+	}
+	return r
+}
+
+// hortonBudget bounds the extra ring search of selectSSSR (path steps).
+const hortonBudget = 2_000_000
+
+// selectSSSR picks linearly independent rings (over GF(2) on bond sets), smallest first, until the
+// cyclomatic number is reached; if the per-bond candidates do not span the cycle space, candidates
+// through every atom are added (a Horton-type set).
+func selectSSSR(m *mol.Molecule, cands []Ring) []Ring {
+	need := m.Cyclomatic()
+	if need <= 0 {
+		return nil
+	}
+	pick := func(cands []Ring) []Ring {
+		sort.SliceStable(cands, func(i, j int) bool { return len(cands[i].Bonds) < len(cands[j].Bonds) })
+		words := (len(m.Bonds) + 63) / 64
+		var basis [][]uint64 // reduced rows with pivot
+		var pivots []int
+		var out []Ring
+		seen := map[string]bool{}
+		var seenMask []uint64 // one-word bond masks when the molecule has at most 64 bonds
+		for _, c := range cands {
+			v := make([]uint64, words)
+			for _, bi := range c.Bonds {
+				v[bi/64] |= 1 << (bi % 64)
+			}
+			if words == 1 {
+				dup := false
+				for _, s := range seenMask {
+					if s == v[0] {
+						dup = true
+						break
+					}
+				}
+				if dup {
+					continue
+				}
+				seenMask = append(seenMask, v[0])
+			} else {
+				key := ringKey(c)
+				if seen[key] {
+					continue
+				}
+				seen[key] = true
+			}
+			for k, row := range basis {
+				pv := pivots[k]
+				if v[pv/64]&(1<<(pv%64)) != 0 {
+					for w := range v {
+						v[w] ^= row[w]
+					}
+				}
+			}
+			pv := -1
+			for w := range v {
+				if v[w] != 0 {
+					for bit := 0; bit < 64; bit++ {
+						if v[w]&(1<<bit) != 0 {
+							pv = w*64 + bit
+							break
+						}
+					}
+					break
+				}
+			}
+			if pv < 0 {
+				continue
+			}
+			// keep rows reduced at the new pivot
+			for k, row := range basis {
+				if row[pv/64]&(1<<(pv%64)) != 0 {
+					for w := range row {
+						basis[k][w] ^= v[w]
+					}
+				}
+			}
+			basis = append(basis, v)
+			pivots = append(pivots, pv)
+			out = append(out, c)
+			if len(out) == need {
+				break
+			}
+		}
+		return out
+	}
+	out := pick(cands)
+	if len(out) == need {
+		return out
+	}
+	// Horton-type candidates: for each atom v and bond (x,y), P(v,x) + (x,y) + P(y,v). The work
+	// is bounded (hortonBudget path steps) so that no input can make perception slow; a cycle
+	// space that needs more is left with the rings found so far.
+	more := append([]Ring(nil), cands...)
+	work := 0
+	for v := range m.Atoms {
+		if work > hortonBudget || len(more) > 20000 {
+			break
+		}
+		prev := bfsTree(m, v)
+		work += len(m.Atoms)
+		for bi, b := range m.Bonds {
+			if prev[b.A] == -2 || prev[b.B] == -2 || prev[b.A] == b.B || prev[b.B] == b.A {
+				continue
+			}
+			px := treePath(prev, b.A)
+			py := treePath(prev, b.B)
+			work += len(px) + len(py)
+			if work > hortonBudget {
+				break
+			}
+			if len(px) > 1 && len(py) > 1 && px[1] == py[1] {
+				continue // the two paths share their first step: not a simple cycle through v
+			}
+			set := map[int]bool{}
+			ok := true
+			for _, a := range px {
+				set[a] = true
+			}
+			for _, a := range py[1:] {
+				if set[a] {
+					ok = false
+					break
+				}
+			}
+			if !ok || m.BondBetween(b.A, b.B) != bi {
+				continue
+			}
+			path := append([]int(nil), px...)
+			for i := len(py) - 1; i >= 1; i-- {
+				path = append(path, py[i])
+			}
+			if len(path) < 3 {
+				continue
+			}
+			more = append(more, ringFromPath(m, path))
+		}
+	}
+	return pick(more)
+}
+
+func bfsTree(m *mol.Molecule, s int) []int {
+	prev := make([]int, len(m.Atoms))
+	for i := range prev {
+		prev[i] = -2
+	}
+	prev[s] = -1
+	q := []int{s}
+	for k := 0; k < len(q); k++ {
+		x := q[k]
+		for _, bi := range m.Neighbors(x) {
+			o := m.Other(bi, x)
+			if prev[o] == -2 {
+				prev[o] = x
+				q = append(q, o)
+			}
+		}
+	}
+	return prev
+}
+
+// treePath returns the path from the tree root to x, or nil if x is unreachable.
+func treePath(prev []int, x int) []int {
+	if prev[x] == -2 {
+		return nil
+	}
+	var p []int
+	for ; x != -1; x = prev[x] {
+		p = append(p, x)
+	}
+	for i, j := 0, len(p)-1; i < j; i, j = i+1, j-1 {
+		p[i], p[j] = p[j], p[i]
+	}
+	return p
+}
+
+func ringKey(r Ring) string {
+	b := append([]int(nil), r.Bonds...)
+	sort.Ints(b)
+	var sb strings.Builder
+	for _, x := range b {
+		sb.WriteString(strconv.Itoa(x))
+		sb.WriteByte(',')
+	}
+	return sb.String()
+}
+
+// piElectrons returns the number of π electrons an atom gives to a ring, or -1 when the atom
+// cannot be part of an aromatic ring. The counting is the usual Hückel one: an atom in a ring
+// double bond gives 1; a ring carbon with an exocyclic double bond to a more electronegative atom
+// gives 0; a lone-pair donor (pyrrole-type N, furan O, thiophene S, carbanion) gives 2; a
+// carbocation or boron with an empty p orbital gives 0.
+func piElectrons(m *mol.Molecule, a int, ring []bool) int {
+	at := &m.Atoms[a]
+	deg := m.Degree(a) + at.HCount
+	inRingDouble, exoDouble := false, -1
+	for _, bi := range m.Neighbors(a) {
+		b := &m.Bonds[bi]
+		if b.Order == mol.BondTriple {
+			return -1
+		}
+		if b.Order == mol.BondDouble {
+			o := m.Other(bi, a)
+			if ring[o] {
+				inRingDouble = true
+			} else {
+				exoDouble = o
+			}
+		}
+	}
+	switch at.Z {
+	case 6:
+		if inRingDouble {
+			return 1
+		}
+		if exoDouble >= 0 {
+			if z := m.Atoms[exoDouble].Z; z == 7 || z == 8 || z == 16 {
+				return 0
+			}
+			return -1
+		}
+		if at.Charge == -1 && deg <= 3 {
+			return 2
+		}
+		if at.Charge == 1 && deg <= 3 {
+			return 0
+		}
+		return -1
+	case 7, 15:
+		if inRingDouble {
+			return 1
+		}
+		if at.Charge == 0 && deg == 3 {
+			return 2
+		}
+		if at.Charge == -1 && deg == 2 {
+			return 2
+		}
+		return -1
+	case 8, 16, 34, 52:
+		if inRingDouble {
+			return 1
+		}
+		if at.Charge == 0 && deg == 2 {
+			return 2
+		}
+		return -1
+	case 5:
+		if inRingDouble {
+			return 1
+		}
+		if at.Charge == 0 && deg == 3 {
+			return 0
+		}
+		return -1
+	}
+	return -1
+}
+
+// perceiveAromaticity marks atoms and bonds aromatic for each SSSR ring, and each pair of
+// bond-sharing SSSR rings, whose π-electron count is 4n+2 with every atom contributing.
+func (p *Rings) perceiveAromaticity(m *mol.Molecule) {
+	flags := make([]bool, len(m.Atoms)+len(m.Bonds))
+	p.AromaticAtom, p.AromaticBond = flags[:len(m.Atoms):len(m.Atoms)], flags[len(m.Atoms):]
+	mark := func(atoms []int, bonds []int) {
+		for _, a := range atoms {
+			p.AromaticAtom[a] = true
+		}
+		for _, b := range bonds {
+			p.AromaticBond[b] = true
+		}
+	}
+	set := make([]bool, len(m.Atoms))
+	huckel := func(atoms []int) bool {
+		for _, a := range atoms {
+			set[a] = true
+		}
+		n := 0
+		ok := true
+		for _, a := range atoms {
+			e := piElectrons(m, a, set)
+			if e < 0 {
+				ok = false
+				break
+			}
+			n += e
+		}
+		for _, a := range atoms {
+			set[a] = false
+		}
+		return ok && n%4 == 2
+	}
+	// an atom with no double bond and no lone pair to give cannot be in an aromatic ring: rings
+	// holding one are skipped before counting
+	sp2 := make([]bool, len(m.Atoms))
+	for i := range m.Atoms {
+		at := &m.Atoms[i]
+		for _, bi := range m.Neighbors(i) {
+			if m.Bonds[bi].Order == mol.BondDouble {
+				sp2[i] = true
+			}
+		}
+		switch {
+		case sp2[i]:
+		case at.Z == 7 || at.Z == 8 || at.Z == 15 || at.Z == 16 || at.Z == 34 || at.Z == 52 || at.Z == 5:
+			sp2[i] = true
+		case at.Z == 6 && at.Charge != 0:
+			sp2[i] = true
+		}
+	}
+	candidate := func(r Ring) bool {
+		for _, a := range r.Atoms {
+			if !sp2[a] {
+				return false
+			}
+		}
+		return true
+	}
+	for _, r := range p.SSSR {
+		if len(r.Atoms) > 24 || !candidate(r) {
+			continue
+		}
+		if huckel(r.Atoms) {
+			mark(r.Atoms, r.Bonds)
+		}
+	}
+	// fused pairs (e.g. azulene): the envelope of two rings that share one bond
+	for i := 0; i < len(p.SSSR); i++ {
+		if !candidate(p.SSSR[i]) {
+			continue
+		}
+		for j := i + 1; j < len(p.SSSR); j++ {
+			ri, rj := p.SSSR[i], p.SSSR[j]
+			if !candidate(rj) {
+				continue
+			}
+			shared := 0
+			for _, b := range ri.Bonds {
+				for _, c := range rj.Bonds {
+					if b == c {
+						shared++
+					}
+				}
+			}
+			if shared != 1 {
+				continue
+			}
+			atoms := unionInts(ri.Atoms, rj.Atoms)
+			if huckel(atoms) {
+				mark(atoms, ri.Bonds)
+				mark(nil, rj.Bonds)
+			}
+		}
+	}
+}
+
+func unionInts(a, b []int) []int {
+	set := map[int]bool{}
+	var out []int
+	for _, x := range append(append([]int(nil), a...), b...) {
+		if !set[x] {
+			set[x] = true
+			out = append(out, x)
+		}
+	}
+	return out
+}

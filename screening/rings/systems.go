@@ -1,0 +1,158 @@
+package rings
+
+import "sort"
+
+// Ring-system kinds.
+const (
+	KindMonocyclic = "monocyclic"
+	KindBridged    = "bridged"
+	KindFused      = "fused"
+	KindSpiro      = "spiro"
+)
+
+// Systems groups the rings into ring systems (rings sharing at least one atom): per ring the
+// index of its system, and per system its ring indices in ring order.
+func Systems(rings []Ring) (ringSystem []int, systems [][]int) {
+	parent := make([]int, len(rings))
+	for i := range parent {
+		parent[i] = i
+	}
+	find := func(x int) int {
+		for parent[x] != x {
+			parent[x] = parent[parent[x]]
+			x = parent[x]
+		}
+		return x
+	}
+	for i := range rings {
+		for j := i + 1; j < len(rings); j++ {
+			if SharedAtoms(rings[i], rings[j]) > 0 {
+				parent[find(i)] = find(j)
+			}
+		}
+	}
+	idx := map[int]int{}
+	ringSystem = make([]int, len(rings))
+	for i := range rings {
+		r := find(i)
+		k, ok := idx[r]
+		if !ok {
+			k = len(systems)
+			idx[r] = k
+			systems = append(systems, nil)
+		}
+		ringSystem[i] = k
+		systems[k] = append(systems[k], i)
+	}
+	return ringSystem, systems
+}
+
+// SharedAtoms counts the atoms two rings share.
+func SharedAtoms(a, b Ring) int {
+	n := 0
+	for _, x := range a.Atoms {
+		for _, y := range b.Atoms {
+			if x == y {
+				n++
+			}
+		}
+	}
+	return n
+}
+
+// Atoms returns the sorted atoms of the rings listed by index.
+func Atoms(rings []Ring, idx []int) []int {
+	var out []int
+	for _, i := range idx {
+		for _, a := range rings[i].Atoms {
+			dup := false
+			for _, b := range out {
+				if a == b {
+					dup = true
+					break
+				}
+			}
+			if !dup {
+				out = append(out, a)
+			}
+		}
+	}
+	sort.Ints(out)
+	return out
+}
+
+// Kind classifies a set of rings: bridged if two share three or more atoms, else fused if two
+// share a bond, else spiro if two share an atom, else monocyclic.
+func Kind(rings []Ring, idx []int) string {
+	kind := KindMonocyclic
+	rank := map[string]int{KindMonocyclic: 0, KindSpiro: 1, KindFused: 2, KindBridged: 3}
+	for i := 0; i < len(idx); i++ {
+		for j := i + 1; j < len(idx); j++ {
+			k := ""
+			switch n := SharedAtoms(rings[idx[i]], rings[idx[j]]); {
+			case n >= 3:
+				k = KindBridged
+			case n == 2:
+				k = KindFused
+			case n == 1:
+				k = KindSpiro
+			}
+			if k != "" && rank[k] > rank[kind] {
+				kind = k
+			}
+		}
+	}
+	return kind
+}
+
+// Core returns the seed rings plus, repeatedly, every ring of the system sharing three or more
+// atoms with them (the bridged core); rings fused by one bond or spiro-joined stay outside. The
+// result is sorted.
+func Core(rings []Ring, system []int, seed []int) []int {
+	in := map[int]bool{}
+	core := append([]int(nil), seed...)
+	for _, r := range seed {
+		in[r] = true
+	}
+	for changed := true; changed; {
+		changed = false
+		atoms := map[int]bool{}
+		for _, r := range core {
+			for _, a := range rings[r].Atoms {
+				atoms[a] = true
+			}
+		}
+		for _, r := range system {
+			if in[r] {
+				continue
+			}
+			n := 0
+			for _, a := range rings[r].Atoms {
+				if atoms[a] {
+					n++
+				}
+			}
+			if n >= 3 {
+				in[r] = true
+				core = append(core, r)
+				changed = true
+			}
+		}
+	}
+	sort.Ints(core)
+	return core
+}
+
+// WithBond returns the rings of the system that hold bond bi, in system order.
+func WithBond(rings []Ring, system []int, bi int) []int {
+	var out []int
+	for _, r := range system {
+		for _, b := range rings[r].Bonds {
+			if b == bi {
+				out = append(out, r)
+				break
+			}
+		}
+	}
+	return out
+}

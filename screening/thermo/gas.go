@@ -1,0 +1,336 @@
+package thermo
+
+import (
+	"math"
+	"sort"
+	"strconv"
+	"strings"
+
+	"ringsieve/screening/canon"
+	"ringsieve/screening/internal/memo"
+	"ringsieve/screening/mol"
+	"ringsieve/screening/rings"
+	"ringsieve/screening/smiles"
+)
+
+// gasMemo caches gas-phase estimates by the written signature of the ring system and the bond
+// opened (50,000 entries: a design choice, a few megabytes).
+var gasMemo = memo.New[GasEstimate](50000)
+
+// ResetCache empties the ring-estimate cache (benchmarks of a cold start).
+func ResetCache() { gasMemo.Reset() }
+
+// systemKey is the canonical key of a ring system given as atoms of m (bonds among them, less
+// skip), computed on an extracted copy so that aromaticity is judged on the system alone;
+// trans adds the marker for a trans ring olefin.
+func systemKey(m *mol.Molecule, atoms []int, skip int, trans bool) string {
+	sub, sr, _ := extract(m, atoms, skip)
+	k := canon.SkeletonKey(sub, sr, seq(len(sub.Atoms)), -1)
+	if trans {
+		k += "|E"
+	}
+	return k
+}
+
+// extract copies the atoms (and the bonds among them, less skip) into a new molecule with no
+// hydrogens and perceives it. It returns the copy, its rings and the map from new to old
+// indices.
+func extract(m *mol.Molecule, atoms []int, skip int) (*mol.Molecule, *rings.Rings, []int) {
+	sub := &mol.Molecule{}
+	idx := map[int]int{}
+	var back []int
+	for _, a := range atoms {
+		idx[a] = len(sub.Atoms)
+		at := m.Atoms[a]
+		at.HCount, at.Bracket, at.Chiral, at.NChiral = 0, true, 0, 0
+		if at.Z == 7 || at.Z == 15 || at.Z == 5 {
+			// keep pyrrole-type nitrogens three-connected for aromaticity
+			if m.Degree(a)+m.Atoms[a].HCount == 3 {
+				at.HCount = 3 - heavyNbrsIn(m, a, idx)
+				if at.HCount < 0 {
+					at.HCount = 0
+				}
+			}
+		}
+		sub.Atoms = append(sub.Atoms, at)
+		back = append(back, a)
+	}
+	for bi, b := range m.Bonds {
+		if bi == skip {
+			continue
+		}
+		x, okx := idx[b.A]
+		y, oky := idx[b.B]
+		if okx && oky {
+			nb := b
+			nb.A, nb.B, nb.Dir = x, y, 0
+			sub.Bonds = append(sub.Bonds, nb)
+		}
+	}
+	sub.Index()
+	return sub, rings.Perceive(sub), back
+}
+
+// heavyNbrsIn counts the non-hydrogen neighbours of a that are in idx.
+func heavyNbrsIn(m *mol.Molecule, a int, idx map[int]int) int {
+	n := 0
+	for _, x := range m.HeavyNbrs(a) {
+		if _, ok := idx[x]; ok {
+			n++
+		}
+	}
+	return n
+}
+
+// strainTerm is one ring-correction term of an estimate.
+type strainTerm struct {
+	Key    string
+	Name   string
+	H, S   float64
+	UH, US float64
+	Hit    bool // found in the table (else a fallback)
+	Row    *RingRow
+}
+
+// ringSystemsTerms returns the strain terms of every ring system in the extracted molecule sub:
+// a whole-system row when the table has one, else the sum of its cores (rings sharing three or
+// more atoms), each a row or a fallback.
+func (t *ringTable) ringSystemsTerms(sub *mol.Molecule, p *rings.Rings, trans bool) []strainTerm {
+	_, systems := rings.Systems(p.SSSR)
+	var terms []strainTerm
+	for _, sys := range systems {
+		atoms := rings.Atoms(p.SSSR, sys)
+		key := systemKey(sub, atoms, -1, trans && len(sys) == 1)
+		if row, ok := t.byKey[key]; ok {
+			terms = append(terms, strainTerm{Key: key, Name: row.Name, H: row.RSCH, S: row.RSCS, UH: row.UH, US: row.US, Hit: true, Row: row})
+			continue
+		}
+		// cores
+		done := map[int]bool{}
+		for _, r := range sys {
+			if done[r] {
+				continue
+			}
+			core := rings.Core(p.SSSR, sys, []int{r})
+			for _, c := range core {
+				done[c] = true
+			}
+			catoms := rings.Atoms(p.SSSR, core)
+			ckey := systemKey(sub, catoms, -1, false)
+			if row, ok := t.byKey[ckey]; ok {
+				terms = append(terms, strainTerm{Key: ckey, Name: row.Name, H: row.RSCH, S: row.RSCS, UH: row.UH, US: row.US, Hit: true, Row: row})
+				continue
+			}
+			terms = append(terms, t.fallback(sub, p, core, ckey))
+		}
+	}
+	return terms
+}
+
+// fallback estimates a core the table lacks. First choice: the all-carbon analogue of the whole
+// core (heteroatoms replaced by carbon, bond orders kept) when the table has it, e.g. a
+// diaza-oxa-norbornene read as norbornene, with 8 kJ/mol and 15 J/(mol K) added to the
+// uncertainty for the substitution. Else each ring on its own: the all-carbon ring with the same
+// bond pattern, else the cycloalkene (or cycloalkane) of the same size with 5 kJ/mol more
+// uncertainty; aromatic rings count zero; bridged cores add 25 kJ/mol of uncertainty for the
+// unknown bridging strain. Marked not-hit either way.
+func (t *ringTable) fallback(sub *mol.Molecule, p *rings.Rings, core []int, key string) strainTerm {
+	term := strainTerm{Key: key, Name: "estimate for " + key}
+	catoms := rings.Atoms(p.SSSR, core)
+	if row, ok := t.byKey[carbonAnalogueKey(sub, catoms)]; ok && len(core) > 1 {
+		term.Name = "all-carbon analogue " + row.Name
+		term.H, term.S = row.RSCH, row.RSCS
+		term.UH, term.US = math.Hypot(row.UH, 8), math.Hypot(row.US, 15)
+		return term
+	}
+	for _, ri := range core {
+		r := p.SSSR[ri]
+		arom := true
+		doubles := 0
+		for _, b := range r.Bonds {
+			if !p.AromaticBond[b] {
+				arom = false
+			}
+			if sub.Bonds[b].Order == mol.BondDouble && !p.AromaticBond[b] {
+				doubles++
+			}
+		}
+		if arom {
+			continue
+		}
+		n := len(r.Atoms)
+		ring := &mol.Molecule{}
+		for i := 0; i < n; i++ {
+			ring.Atoms = append(ring.Atoms, mol.Atom{Z: 6, Bracket: true})
+		}
+		for i := 0; i < n; i++ {
+			ord := sub.Bonds[r.Bonds[i]].Order
+			if p.AromaticBond[r.Bonds[i]] {
+				ord = 1
+			}
+			ring.Bonds = append(ring.Bonds, mol.Bond{A: i, B: (i + 1) % n, Order: ord})
+		}
+		row, ok := t.byKey[carbonAnalogueKey(ring, seq(n))]
+		widen := 0.0
+		if !ok {
+			// same size, one ring double bond (or none)
+			parent := "C1" + strings.Repeat("C", n-1) + "1"
+			if doubles > 0 {
+				parent = "C1=C" + strings.Repeat("C", n-2) + "1"
+			}
+			if pm, err := smiles.Parse(parent); err == nil {
+				row, ok = t.byKey[carbonAnalogueKey(pm, seq(len(pm.Atoms)))]
+			}
+			widen = 5
+		}
+		if ok {
+			term.H += row.RSCH
+			term.S += row.RSCS
+			term.UH = math.Hypot(term.UH, row.UH+5+widen)
+			term.US = math.Hypot(term.US, row.US+5+widen)
+			continue
+		}
+		// no row of that size: large rings are nearly strain-free
+		if n >= 12 {
+			term.S += 30
+			term.UH = math.Hypot(term.UH, 8)
+			term.US = math.Hypot(term.US, 15)
+		} else {
+			term.H += 25
+			term.S += 90
+			term.UH = math.Hypot(term.UH, 20)
+			term.US = math.Hypot(term.US, 25)
+		}
+	}
+	if len(core) > 1 {
+		term.UH = math.Hypot(term.UH, 25)
+		term.US = math.Hypot(term.US, 25)
+	}
+	return term
+}
+
+func seq(n int) []int {
+	out := make([]int, n)
+	for i := range out {
+		out[i] = i
+	}
+	return out
+}
+
+// carbonAnalogueKey is the skeleton key of atoms with every atom made a non-aromatic carbon and
+// aromatic bonds read as single (the bond orders of the Kekulé form are kept).
+func carbonAnalogueKey(m *mol.Molecule, atoms []int) string {
+	c := &mol.Molecule{}
+	idx := map[int]int{}
+	for i, a := range atoms {
+		idx[a] = i
+		c.Atoms = append(c.Atoms, mol.Atom{Z: 6, Bracket: true})
+	}
+	for _, b := range m.Bonds {
+		x, okx := idx[b.A]
+		y, oky := idx[b.B]
+		if okx && oky {
+			c.Bonds = append(c.Bonds, mol.Bond{A: x, B: y, Order: b.Order})
+		}
+	}
+	c.Index()
+	return canon.SkeletonKey(c, rings.Perceive(c), seq(len(c.Atoms)), -1)
+}
+
+// cancelTerms removes terms present on both sides (spectator rings that ring opening leaves
+// unchanged).
+func cancelTerms(mono, surv []strainTerm) ([]strainTerm, []strainTerm) {
+	used := make([]bool, len(surv))
+	var m2 []strainTerm
+	for _, a := range mono {
+		matched := false
+		for j, b := range surv {
+			if !used[j] && a.Key == b.Key {
+				used[j] = true
+				matched = true
+				break
+			}
+		}
+		if !matched {
+			m2 = append(m2, a)
+		}
+	}
+	var s2 []strainTerm
+	for j, b := range surv {
+		if !used[j] {
+			s2 = append(s2, b)
+		}
+	}
+	return m2, s2
+}
+
+// GasEstimate is the gas-phase ring-correction estimate for opening one ring olefin.
+type GasEstimate struct {
+	DH, DS   float64 // kJ/mol, J/(mol K), gas phase, before offsets
+	UH, US   float64
+	AllHits  bool
+	Terms    []string // names of the monomer-side terms
+	Survive  []string // names of surviving terms
+	Row      *RingRow // whole-system row when the table has the system
+	Spectate int      // spectator terms cancelled
+	Path     string   // "monomer terms → surviving terms", for the result's source
+}
+
+// gasEstimate computes the ring-correction part for opening bond bi of the ring system atoms
+// (r: the rings perceived on m).
+func (t *ringTable) gasEstimate(m *mol.Molecule, r *rings.Rings, systemAtoms []int, bi int, trans bool) GasEstimate {
+	return t.gasEstimateSig(m, systemAtoms, bi, trans, canon.WrittenSignature(m, r, systemAtoms, -1, ""))
+}
+
+// gasEstimateSig is gasEstimate with the system's written signature already computed.
+func (t *ringTable) gasEstimateSig(m *mol.Molecule, systemAtoms []int, bi int, trans bool, base string) GasEstimate {
+	// systemAtoms is sorted: the olefin is named by its atoms' local positions
+	la, lb := sort.SearchInts(systemAtoms, m.Bonds[bi].A), sort.SearchInts(systemAtoms, m.Bonds[bi].B)
+	sig := base + "|open " + strconv.Itoa(la) + "-" + strconv.Itoa(lb) + "|" + strconv.FormatBool(trans)
+	if g, ok := gasMemo.Get(sig); ok {
+		return g
+	}
+	g := t.gasEstimateUncached(m, systemAtoms, bi, trans)
+	gasMemo.Put(sig, g)
+	return g
+}
+
+func (t *ringTable) gasEstimateUncached(m *mol.Molecule, systemAtoms []int, bi int, trans bool) GasEstimate {
+	subM, rM, _ := extract(m, systemAtoms, -1)
+	subS, rS, _ := extract(m, systemAtoms, bi)
+	mono := t.ringSystemsTerms(subM, rM, trans)
+	surv := t.ringSystemsTerms(subS, rS, false)
+	var g GasEstimate
+	if len(mono) == 1 && mono[0].Hit {
+		g.Row = mono[0].Row
+	}
+	before := len(mono)
+	mono, surv = cancelTerms(mono, surv)
+	g.Spectate = before - len(mono)
+	g.AllHits = true
+	var uh2, us2 float64
+	for _, x := range mono {
+		g.DH -= x.H
+		g.DS -= x.S
+		uh2 += x.UH * x.UH
+		us2 += x.US * x.US
+		g.AllHits = g.AllHits && x.Hit
+		g.Terms = append(g.Terms, x.Name)
+	}
+	for _, x := range surv {
+		g.DH += x.H
+		g.DS += x.S
+		uh2 += x.UH * x.UH
+		us2 += x.US * x.US
+		g.AllHits = g.AllHits && x.Hit
+		g.Survive = append(g.Survive, x.Name)
+	}
+	g.UH, g.US = math.Sqrt(uh2), math.Sqrt(us2)
+	g.Path = strings.Join(g.Terms, " + ")
+	if len(g.Survive) > 0 {
+		g.Path += " → " + strings.Join(g.Survive, " + ")
+	} else {
+		g.Path += " → open chain"
+	}
+	return g
+}
