@@ -136,9 +136,24 @@ func screenCmd() *cobra.Command {
 			rs := screenAll(cmd, in.Items, cond, bar)
 			if compare {
 				rb := screenAll(cmd, in.Items, condB, nil)
-				return writeCompared(out, format, in.Items, rs, rb, cond, condB)
+				err = writeCompared(out, format, in.Items, rs, rb, cond, condB)
+			} else {
+				err = writeRanked(out, format, in.Items, rs, in.ExtraColumns, filter)
 			}
-			return writeRanked(out, format, in.Items, rs, in.ExtraColumns, filter)
+			if err != nil {
+				return err
+			}
+			failed := len(in.Errors)
+			for _, r := range rs {
+				if r.Err != nil {
+					failed++
+				}
+			}
+			fmt.Fprintf(cmd.ErrOrStderr(), "screened %d, failed %d\n", len(rs)-failed+len(in.Errors), failed)
+			if failed > 0 {
+				return rowsFailed
+			}
+			return nil
 		},
 	}
 	cf.register(cmd)

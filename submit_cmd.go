@@ -2,24 +2,29 @@ package main
 
 import (
 	"bytes"
+	"context"
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"io"
 	"mime/multipart"
+	"net"
 	"net/http"
+	"net/url"
 	"os"
 	"path/filepath"
 	"strconv"
 	"strings"
+	"syscall"
 	"time"
 
 	"github.com/schollz/progressbar/v3"
 	"github.com/spf13/cobra"
 )
 
-func submitCmd() *cobra.Command {
+func submitCmd(getenv func(string) string) *cobra.Command {
 	var cf conditionFlags
 	var server, apiKey, output, format, inFormat, idField, idemKey string
 	var poll time.Duration
@@ -34,6 +39,13 @@ func submitCmd() *cobra.Command {
 			if format != "csv" && format != "jsonl" && format != "json" {
 				return fmt.Errorf("--format must be csv, jsonl or json")
 			}
+			if apiKey == "" {
+				apiKey = getenv("RINGSIEVE_API_KEY")
+			}
+			cl, err := newClient(server, apiKey)
+			if err != nil {
+				return err
+			}
 			f, err := openInput(cmd, args[0])
 			if err != nil {
 				return err
@@ -42,9 +54,6 @@ func submitCmd() *cobra.Command {
 			f.Close()
 			if err != nil {
 				return err
-			}
-			if apiKey == "" {
-				apiKey = os.Getenv("RINGSIEVE_API_KEY")
 			}
 			fields := map[string]string{
 				"temperature_c": strconv.FormatFloat(cf.tempC, 'g', -1, 64),
@@ -66,14 +75,7 @@ func submitCmd() *cobra.Command {
 				h := sha256.Sum256(append(append([]byte{}, content...), []byte(fmt.Sprint(fields))...))
 				idemKey = "submit-" + hex.EncodeToString(h[:12])
 			}
-			base := strings.TrimRight(server, "/")
-			client := &http.Client{Timeout: 5 * time.Minute}
-			req, _ := http.NewRequestWithContext(cmd.Context(), http.MethodPost, base+"/v1/jobs", bytes.NewReader(body))
-			req.Header.Set("Content-Type", ctype)
-			req.Header.Set("Idempotency-Key", idemKey)
-			if apiKey != "" {
-				req.Header.Set("X-API-Key", apiKey)
-			}
+			ctx := cmd.Context()
 			var created struct {
 				ID          string `json:"id"`
 				Total       int    `json:"total"`
@@ -82,7 +84,7 @@ func submitCmd() *cobra.Command {
 					Message string `json:"message"`
 				} `json:"input_errors"`
 			}
-			if err := doJSON(client, req, http.StatusAccepted, &created); err != nil {
+			if err := cl.json(ctx, http.MethodPost, "/v1/jobs", bytes.NewReader(body), ctype, idemKey, &created); err != nil {
 				return err
 			}
 			errw := cmd.ErrOrStderr()
@@ -94,18 +96,15 @@ func submitCmd() *cobra.Command {
 				bar = progressbar.NewOptions(created.Total, progressbar.OptionSetWriter(errw), progressbar.OptionSetDescription("job "+created.ID),
 					progressbar.OptionShowCount(), progressbar.OptionClearOnFinish())
 			}
+			var st struct {
+				Status string `json:"status"`
+				Done   int    `json:"done"`
+				Failed int    `json:"failed"`
+				Total  int    `json:"total"`
+				Error  string `json:"error"`
+			}
 			for {
-				var st struct {
-					Status string `json:"status"`
-					Done   int    `json:"done"`
-					Total  int    `json:"total"`
-					Error  string `json:"error"`
-				}
-				req, _ := http.NewRequestWithContext(cmd.Context(), http.MethodGet, base+"/v1/jobs/"+created.ID, nil)
-				if apiKey != "" {
-					req.Header.Set("X-API-Key", apiKey)
-				}
-				if err := doJSON(client, req, http.StatusOK, &st); err != nil {
+				if err := cl.json(ctx, http.MethodGet, "/v1/jobs/"+created.ID, nil, "", "", &st); err != nil {
 					return err
 				}
 				if bar != nil {
@@ -118,27 +117,19 @@ func submitCmd() *cobra.Command {
 					return fmt.Errorf("job %s %s %s", created.ID, st.Status, st.Error)
 				}
 				select {
-				case <-cmd.Context().Done():
-					return fmt.Errorf("interrupted; the job %s goes on: fetch %s/v1/jobs/%s/results later", created.ID, base, created.ID)
+				case <-ctx.Done():
+					return fmt.Errorf("interrupted; the job %s goes on: fetch %s/v1/jobs/%s/results later", created.ID, cl.base, created.ID)
 				case <-time.After(poll):
 				}
 			}
 			if bar != nil {
 				bar.Finish()
 			}
-			req, _ = http.NewRequestWithContext(cmd.Context(), http.MethodGet, base+"/v1/jobs/"+created.ID+"/results?format="+format+"&limit=5000", nil)
-			if apiKey != "" {
-				req.Header.Set("X-API-Key", apiKey)
-			}
-			resp, err := client.Do(req)
+			resp, err := cl.do(ctx, http.MethodGet, "/v1/jobs/"+created.ID+"/results?format="+format+"&limit=5000", nil, "", "")
 			if err != nil {
 				return err
 			}
 			defer resp.Body.Close()
-			if resp.StatusCode != http.StatusOK {
-				b, _ := io.ReadAll(resp.Body)
-				return fmt.Errorf("results: %s: %s", resp.Status, b)
-			}
 			var out io.Writer = cmd.OutOrStdout()
 			if output != "" && output != "-" {
 				of, err := os.Create(output)
@@ -148,11 +139,18 @@ func submitCmd() *cobra.Command {
 				defer of.Close()
 				out = of
 			}
-			_, err = io.Copy(out, resp.Body)
-			if err == nil && output != "" && output != "-" {
+			if _, err := io.Copy(out, resp.Body); err != nil {
+				return fmt.Errorf("download of the results of job %s broke off: %w", created.ID, err)
+			}
+			if output != "" && output != "-" {
 				fmt.Fprintf(errw, "job %s: %d items ranked into %s\n", created.ID, created.Total, output)
 			}
-			return err
+			failed := st.Failed + len(created.InputErrors)
+			fmt.Fprintf(errw, "screened %d, failed %d\n", st.Done-st.Failed, failed)
+			if failed > 0 {
+				return rowsFailed
+			}
+			return nil
 		},
 	}
 	cf.register(cmd)
@@ -192,25 +190,80 @@ func multipartBody(name string, content []byte, fields map[string]string) ([]byt
 	return buf.Bytes(), w.FormDataContentType(), nil
 }
 
-func doJSON(client *http.Client, req *http.Request, want int, v any) error {
-	resp, err := client.Do(req)
+// client talks to a running ringsieve service.
+type client struct {
+	base   string
+	apiKey string
+	http   *http.Client
+}
+
+func newClient(server, apiKey string) (*client, error) {
+	u, err := url.Parse(server)
+	if err != nil || (u.Scheme != "http" && u.Scheme != "https") || u.Host == "" {
+		return nil, fmt.Errorf("--server %q is not a service address: give a URL such as http://127.0.0.1:8080", server)
+	}
+	return &client{base: strings.TrimRight(server, "/"), apiKey: apiKey, http: &http.Client{Timeout: 5 * time.Minute}}, nil
+}
+
+// do sends a request and returns the response when its status is 2xx; any other status is an
+// error with the problem's title and detail, and a network failure is said in words.
+func (c *client) do(ctx context.Context, method, path string, body io.Reader, ctype, idemKey string) (*http.Response, error) {
+	req, err := http.NewRequestWithContext(ctx, method, c.base+path, body)
+	if err != nil {
+		return nil, err
+	}
+	if ctype != "" {
+		req.Header.Set("Content-Type", ctype)
+	}
+	if idemKey != "" {
+		req.Header.Set("Idempotency-Key", idemKey)
+	}
+	if c.apiKey != "" {
+		req.Header.Set("X-API-Key", c.apiKey)
+	}
+	resp, err := c.http.Do(req)
+	if err != nil {
+		return nil, c.unreachable(err)
+	}
+	if resp.StatusCode/100 == 2 {
+		return resp, nil
+	}
+	defer resp.Body.Close()
+	b, _ := io.ReadAll(io.LimitReader(resp.Body, 64<<10)) // the body only enriches the message
+	var p struct {
+		Title  string `json:"title"`
+		Detail string `json:"detail"`
+	}
+	if json.Unmarshal(b, &p) == nil && p.Detail != "" {
+		return nil, fmt.Errorf("the service refused %s %s: %s: %s", method, req.URL.Path, p.Title, p.Detail)
+	}
+	return nil, fmt.Errorf("the service answered %s %s with %s", method, req.URL.Path, resp.Status)
+}
+
+// json is do with the answer decoded into v.
+func (c *client) json(ctx context.Context, method, path string, body io.Reader, ctype, idemKey string, v any) error {
+	resp, err := c.do(ctx, method, path, body, ctype, idemKey)
 	if err != nil {
 		return err
 	}
 	defer resp.Body.Close()
-	b, err := io.ReadAll(resp.Body)
-	if err != nil {
-		return err
+	if err := json.NewDecoder(resp.Body).Decode(v); err != nil {
+		return fmt.Errorf("the service's answer to %s %s could not be read: %w", method, path, err)
 	}
-	if resp.StatusCode != want && !(want == http.StatusAccepted && resp.StatusCode == http.StatusOK) {
-		var p struct {
-			Title  string `json:"title"`
-			Detail string `json:"detail"`
-		}
-		if json.Unmarshal(b, &p) == nil && p.Detail != "" {
-			return fmt.Errorf("%s %s: %s: %s", req.Method, req.URL.Path, p.Title, p.Detail)
-		}
-		return fmt.Errorf("%s %s: %s", req.Method, req.URL.Path, resp.Status)
+	return nil
+}
+
+// unreachable says in words why the service could not be reached.
+func (c *client) unreachable(err error) error {
+	var ne net.Error
+	var dns *net.DNSError
+	switch {
+	case errors.Is(err, syscall.ECONNREFUSED):
+		return fmt.Errorf("no ringsieve service answers at %s (connection refused): start one with `ringsieve serve` or give --server", c.base)
+	case errors.As(err, &dns):
+		return fmt.Errorf("the host of %s is unknown (%s): check --server", c.base, dns.Name)
+	case errors.As(err, &ne) && ne.Timeout():
+		return fmt.Errorf("the ringsieve service at %s did not answer in time", c.base)
 	}
-	return json.Unmarshal(b, v)
+	return fmt.Errorf("could not reach the ringsieve service at %s: %w", c.base, err)
 }

@@ -429,7 +429,7 @@ func TestCompareAndFilters(t *testing.T) {
 	for _, row := range out.Rows {
 		// cyclopentene: T_c 327.05 K at 2 mol/L for the Tuba et al. 2013 pair (romp_thermo T021),
 		// so favoured at 25 °C and not at 60 °C
-		if row.ID == "cp" && (row.A.Verdict != "equilibrium_limited" || row.B.Verdict != "unfavorable" || !row.VerdictChange) {
+		if row.ID == "cp" && (row.A.Verdict != "equilibrium_limited" || row.B.Verdict != "unfavorable" || !row.VerdictChanges) {
 			t.Errorf("cyclopentene 25 vs 60 °C: %+v", row)
 		}
 	}

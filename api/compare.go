@@ -32,10 +32,10 @@ type CompareSide struct {
 
 // CompareRow is one item under both condition sets.
 type CompareRow struct {
-	ID            string      `json:"id"`
-	A             CompareSide `json:"a"`
-	B             CompareSide `json:"b"`
-	VerdictChange bool        `json:"verdict_changes"`
+	ID             string      `json:"id"`
+	A              CompareSide `json:"a"`
+	B              CompareSide `json:"b"`
+	VerdictChanges bool        `json:"verdict_changes"`
 }
 
 // CompareResponse lists the items in the order of set A's ranking.
@@ -99,7 +99,7 @@ func (s *Server) compare(c *gin.Context) {
 	for _, r := range a {
 		rb := bySeq[r.seq]
 		row := CompareRow{ID: r.ID, A: side(r), B: side(rb)}
-		row.VerdictChange = row.A.Verdict != row.B.Verdict
+		row.VerdictChanges = row.A.Verdict != row.B.Verdict
 		resp.Rows = append(resp.Rows, row)
 	}
 	c.JSON(http.StatusOK, resp)

@@ -49,7 +49,11 @@ func (in *MonomerIn) validate() (data.Monomer, error) {
 		if err := d.Validate(); err != nil {
 			return data.Monomer{}, err
 		}
-		desc, _ = json.Marshal(in.Descriptors)
+		b, err := json.Marshal(in.Descriptors)
+		if err != nil {
+			return data.Monomer{}, err
+		}
+		desc = b
 	}
 	if len(in.Tags) > maxTags {
 		return data.Monomer{}, &screening.FieldError{Field: "tags", Msg: fmt.Sprintf("at most %d tags", maxTags)}

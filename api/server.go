@@ -20,8 +20,8 @@ type Config struct {
 	MaxFileBytes int64 // request body limit for job submissions (uploads and JSON)
 	BatchLimit   int   // most items in one synchronous batch
 	JobLimit     int   // most items in one job
-	Workers      int  // goroutines screening job chunks (0: one per core)
-	ServeOnly    bool // no job work in this process (other processes work the jobs)
+	Workers      int   // goroutines screening job chunks (0: one per core)
+	ServeOnly    bool  // no job work in this process (other processes work the jobs)
 	CORSOrigins  []string
 	RequireKeys  bool // API keys required for writes
 	KeysForReads bool // and for reads

@@ -180,11 +180,10 @@ func readCSVInput(r *bufio.Reader, in *Input, idField string, max int) error {
 		line, _ := cr.FieldPos(0)
 		row++
 		if row == 1 {
-			for j, h := range rec {
+			for _, h := range rec {
 				if strings.EqualFold(strings.TrimSpace(h), "smiles") {
 					header = true
 				}
-				_ = j
 			}
 			if header {
 				idCol = -1

@@ -122,21 +122,21 @@ type Point struct {
 
 // RingChain is the Jacobson–Stockmayer part of a plan (model values).
 type RingChain struct {
-	Applies               bool     `json:"applies"`
-	SkeletalBondsPerUnit  int      `json:"skeletal_bonds_per_unit,omitempty"`
-	CharacteristicRatio   float64  `json:"characteristic_ratio,omitempty"`
-	MeanSqBondA2          float64  `json:"mean_square_bond_length_a2,omitempty"`
-	JSConstantBMolL       float64  `json:"js_constant_b_mol_l,omitempty"`
-	SmallestCyclicX       int      `json:"smallest_cyclic_x,omitempty"`
-	CriticalConcUnits     *float64 `json:"critical_conc_units_mol_l"`
-	CriticalConcMolL      *float64 `json:"critical_conc_mol_l"`
-	CyclicWeightFraction  *float64 `json:"cyclic_weight_fraction"`
-	K2MolL                float64  `json:"k2_mol_l,omitempty"`
-	K3MolL                float64  `json:"k3_mol_l,omitempty"`
-	Basis                 string   `json:"basis"`
-	BelowCriticalConc     bool     `json:"below_critical_conc,omitempty"`
-	NearCriticalConc      bool     `json:"near_critical_conc,omitempty"`
-	RepeatUnitsPerMonomer int      `json:"repeat_units_per_monomer,omitempty"`
+	Applies                bool     `json:"applies"`
+	SkeletalBondsPerUnit   int      `json:"skeletal_bonds_per_unit,omitempty"`
+	CharacteristicRatio    float64  `json:"characteristic_ratio,omitempty"`
+	MeanSquareBondLengthA2 float64  `json:"mean_square_bond_length_a2,omitempty"`
+	JSConstantBMolL        float64  `json:"js_constant_b_mol_l,omitempty"`
+	SmallestCyclicX        int      `json:"smallest_cyclic_x,omitempty"`
+	CriticalConcUnitsMolL  *float64 `json:"critical_conc_units_mol_l"`
+	CriticalConcMolL       *float64 `json:"critical_conc_mol_l"`
+	CyclicWeightFraction   *float64 `json:"cyclic_weight_fraction"`
+	K2MolL                 float64  `json:"k2_mol_l,omitempty"`
+	K3MolL                 float64  `json:"k3_mol_l,omitempty"`
+	Basis                  string   `json:"basis"`
+	BelowCriticalConc      bool     `json:"below_critical_conc,omitempty"`
+	NearCriticalConc       bool     `json:"near_critical_conc,omitempty"`
+	RepeatUnitsPerMonomer  int      `json:"repeat_units_per_monomer,omitempty"`
 }
 
 // Hazard is the thermal part of a plan.
@@ -341,14 +341,14 @@ func ringChain(r judge.Result, c units.Conditions) RingChain {
 	}
 	rc.Applies = true
 	rc.SkeletalBondsPerUnit, rc.CharacteristicRatio, rc.RepeatUnitsPerMonomer = nuB, cc, k
-	rc.MeanSqBondA2 = MeanSquareBondLength(nuB)
-	rc.JSConstantBMolL = JSConstantMolL(float64(nuB), rc.MeanSqBondA2, cc)
+	rc.MeanSquareBondLengthA2 = MeanSquareBondLength(nuB)
+	rc.JSConstantBMolL = JSConstantMolL(float64(nuB), rc.MeanSquareBondLengthA2, cc)
 	rc.SmallestCyclicX = k + 1
 	rc.K2MolL = rc.JSConstantBMolL * math.Pow(2, -2.5)
 	rc.K3MolL = rc.JSConstantBMolL * math.Pow(3, -2.5)
 	crit := JSCriticalConc(rc.JSConstantBMolL, rc.SmallestCyclicX)
 	critMonomer := crit / float64(k)
-	rc.CriticalConcUnits, rc.CriticalConcMolL = &crit, &critMonomer
+	rc.CriticalConcUnitsMolL, rc.CriticalConcMolL = &crit, &critMonomer
 	units := float64(c.Conc) * float64(k)
 	if units <= crit {
 		rc.BelowCriticalConc = true
@@ -361,6 +361,13 @@ func ringChain(r judge.Result, c units.Conditions) RingChain {
 	}
 	return rc
 }
+
+// Hazard grades by adiabatic rise (design choices: 100 K takes most solvents past their boiling
+// point and is a runaway concern; 30 K is a noticeable exotherm that calls for gradual addition).
+const (
+	gradeHighK     = 100
+	gradeModerateK = 30
+)
 
 func hazard(r judge.Result, in Input, c units.Conditions, sol solventData, mm float64) Hazard {
 	th := r.Thermo
@@ -387,9 +394,9 @@ func hazard(r judge.Result, in Input, c units.Conditions, sol solventData, mm fl
 		h.MonomerBoilingPointC = &bp
 	}
 	switch {
-	case h.AdiabaticRiseK >= 100:
+	case h.AdiabaticRiseK >= gradeHighK:
 		h.Grade = "high"
-	case h.AdiabaticRiseK >= 30:
+	case h.AdiabaticRiseK >= gradeModerateK:
 		h.Grade = "moderate"
 	default:
 		h.Grade = "low"

@@ -121,7 +121,7 @@ func TestJacobsonStockmayer(t *testing.T) {
 	// COD in C4H6 units
 	r, _ = screening.ScreenSMILES(`C1=C\CC/C=C\CC/1`, screening.DefaultConditions())
 	p, _ = Make(r, Input{TargetDP: 100}, screening.DefaultConditions())
-	near(t, "e.6b c_crit through the planner (units)", *p.RingChain.CriticalConcUnits, 1.2525, 1e-3)
+	near(t, "e.6b c_crit through the planner (units)", *p.RingChain.CriticalConcUnitsMolL, 1.2525, 1e-3)
 	// strained norbornene: cyclics negligible, null
 	r, _ = screening.ScreenSMILES("C1=CC2CCC1C2", screening.DefaultConditions())
 	p, _ = Make(r, Input{TargetDP: 100}, screening.DefaultConditions())

@@ -24,7 +24,7 @@ func ResetCache() { gasMemo.Reset() }
 // skip), computed on an extracted copy so that aromaticity is judged on the system alone;
 // trans adds the marker for a trans ring olefin.
 func systemKey(m *mol.Molecule, atoms []int, skip int, trans bool) string {
-	sub, sr, _ := extract(m, atoms, skip)
+	sub, sr := extract(m, atoms, skip)
 	k := canon.SkeletonKey(sub, sr, seq(len(sub.Atoms)), -1)
 	if trans {
 		k += "|E"
@@ -33,12 +33,10 @@ func systemKey(m *mol.Molecule, atoms []int, skip int, trans bool) string {
 }
 
 // extract copies the atoms (and the bonds among them, less skip) into a new molecule with no
-// hydrogens and perceives it. It returns the copy, its rings and the map from new to old
-// indices.
-func extract(m *mol.Molecule, atoms []int, skip int) (*mol.Molecule, *rings.Rings, []int) {
+// hydrogens and perceives it. It returns the copy and its rings.
+func extract(m *mol.Molecule, atoms []int, skip int) (*mol.Molecule, *rings.Rings) {
 	sub := &mol.Molecule{}
 	idx := map[int]int{}
-	var back []int
 	for _, a := range atoms {
 		idx[a] = len(sub.Atoms)
 		at := m.Atoms[a]
@@ -53,7 +51,6 @@ func extract(m *mol.Molecule, atoms []int, skip int) (*mol.Molecule, *rings.Ring
 			}
 		}
 		sub.Atoms = append(sub.Atoms, at)
-		back = append(back, a)
 	}
 	for bi, b := range m.Bonds {
 		if bi == skip {
@@ -68,7 +65,7 @@ func extract(m *mol.Molecule, atoms []int, skip int) (*mol.Molecule, *rings.Ring
 		}
 	}
 	sub.Index()
-	return sub, rings.Perceive(sub), back
+	return sub, rings.Perceive(sub)
 }
 
 // heavyNbrsIn counts the non-hydrogen neighbours of a that are in idx.
@@ -296,8 +293,8 @@ func (t *ringTable) gasEstimateSig(m *mol.Molecule, systemAtoms []int, bi int, t
 }
 
 func (t *ringTable) gasEstimateUncached(m *mol.Molecule, systemAtoms []int, bi int, trans bool) GasEstimate {
-	subM, rM, _ := extract(m, systemAtoms, -1)
-	subS, rS, _ := extract(m, systemAtoms, bi)
+	subM, rM := extract(m, systemAtoms, -1)
+	subS, rS := extract(m, systemAtoms, bi)
 	mono := t.ringSystemsTerms(subM, rM, trans)
 	surv := t.ringSystemsTerms(subS, rS, false)
 	var g GasEstimate

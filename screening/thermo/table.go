@@ -163,11 +163,14 @@ func loadTable() (*ringTable, error) {
 		if row.AnchorDS, err = optFloat(rec[9]); err != nil {
 			return nil, fmt.Errorf("ring_table.csv row %d: %w", i, err)
 		}
-		if v, _ := optFloat(rec[10]); v != nil {
-			row.AnchorUH = *v
-		}
-		if v, _ := optFloat(rec[11]); v != nil {
-			row.AnchorUS = *v
+		for j, dst := range []*float64{&row.AnchorUH, &row.AnchorUS} {
+			v, err := optFloat(rec[10+j])
+			if err != nil {
+				return nil, fmt.Errorf("ring_table.csv row %d (%s): %w", i, row.Name, err)
+			}
+			if v != nil {
+				*dst = *v
+			}
 		}
 		m, err := smiles.Parse(row.SMILES)
 		if err != nil {
