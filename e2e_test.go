@@ -154,6 +154,15 @@ func TestEndToEndEveryEndpoint(t *testing.T) {
 	check("plan", st, 200, b)
 	st, b, _ = call(t, "GET", s.base+"/v1/tables/ring-systems", "", nil)
 	check("ring table", st, 200, b)
+	st, b, _ = call(t, "POST", s.base+"/v1/conformers", J, strings.NewReader(`{"smiles":"C1=CC2CCC1C2","max":2}`))
+	check("conformers", st, 200, b)
+	if !strings.Contains(string(b), `"energy_kcal_mol":34.104`) || !strings.Contains(string(b), "V2000") {
+		t.Fatalf("conformers: %s", b)
+	}
+	st, b, _ = call(t, "POST", s.base+"/v1/conformers", J, strings.NewReader(`{"smiles":"C[Se]C1CC2C=CC1C2"}`))
+	if st != 422 || !strings.Contains(string(b), "not-covered-by-force-field") {
+		t.Fatalf("selenium: %d %s", st, b)
+	}
 	st, b, h := call(t, "POST", s.base+"/v1/monomers", J, strings.NewReader(`{"name":"MEM-01","smiles":"C1=CC2CCC1C2","tags":["membrane"]}`))
 	check("create monomer", st, 201, b)
 	var m struct {

@@ -17,6 +17,7 @@ var layers = map[string]int{
 	"ringsieve/screening/smiles":           2,
 	"ringsieve/screening/molfile":          2,
 	"ringsieve/screening/rings":            3,
+	"ringsieve/screening/forcefield":       3,
 	"ringsieve/screening/canon":            4,
 	"ringsieve/screening/describe":         5,
 	"ringsieve/screening/thermo":           6,

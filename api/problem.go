@@ -28,13 +28,15 @@ type Problem struct {
 
 // Errors of the HTTP layer itself.
 var (
-	errMalformed    = errors.New("malformed request body")
-	errTooLarge     = errors.New("request body too large")
-	errUnsupported  = errors.New("unsupported media type")
-	errNotFoundPath = errors.New("no such endpoint")
-	errPrecondition = errors.New("precondition failed")
-	errUnauthorized = errors.New("missing or invalid API key")
-	errRateLimited  = errors.New("rate limit exceeded")
+	errMalformed      = errors.New("malformed request body")
+	errTooLarge       = errors.New("request body too large")
+	errUnsupported    = errors.New("unsupported media type")
+	errNotFoundPath   = errors.New("no such endpoint")
+	errPrecondition   = errors.New("precondition failed")
+	errUnauthorized   = errors.New("missing or invalid API key")
+	errRateLimited    = errors.New("rate limit exceeded")
+	errBusy           = errors.New("every force-field slot is busy; try again shortly")
+	errComputeTimeout = errors.New("the computation did not finish within the server's time limit")
 )
 
 // requestError wraps a sentinel with a message safe to show the client.
@@ -64,6 +66,11 @@ var errorMap = []struct {
 	{errTooLarge, http.StatusRequestEntityTooLarge, "body-too-large", "Request body too large"},
 	{errUnsupported, http.StatusUnsupportedMediaType, "unsupported-media-type", "Unsupported media type"},
 	{screening.ErrSMILES, http.StatusUnprocessableEntity, "invalid-smiles", "Invalid SMILES"},
+	{screening.ErrNotCovered, http.StatusUnprocessableEntity, "not-covered-by-force-field", "Structure outside the force field"},
+	{screening.ErrBudget, http.StatusUnprocessableEntity, "over-work-budget", "Over the work budget"},
+	{screening.ErrEmbedding, http.StatusUnprocessableEntity, "no-3d-structure", "No 3-D structure found"},
+	{errBusy, http.StatusServiceUnavailable, "busy", "Busy"},
+	{errComputeTimeout, http.StatusServiceUnavailable, "compute-timeout", "Computation timed out"},
 	{screening.ErrInvalid, http.StatusUnprocessableEntity, "invalid-value", "Invalid value"},
 	{data.ErrNotFound, http.StatusNotFound, "not-found", "Not found"},
 	{errNotFoundPath, http.StatusNotFound, "not-found", "Not found"},

@@ -27,11 +27,16 @@ type Config struct {
 	KeysForReads bool // and for reads
 	RatePerKey   float64
 	RateBurst    int
+	// ComputeTimeout bounds one force-field request (conformer search); ComputeSlots how many
+	// run at once (0: one per core).
+	ComputeTimeout time.Duration
+	ComputeSlots   int
 }
 
 // DefaultConfig returns the defaults.
 func DefaultConfig() Config {
-	return Config{MaxBodyBytes: 8 << 20, MaxFileBytes: 64 << 20, BatchLimit: 5000, JobLimit: 200000, RatePerKey: 200, RateBurst: 400}
+	return Config{MaxBodyBytes: 8 << 20, MaxFileBytes: 64 << 20, BatchLimit: 5000, JobLimit: 200000, RatePerKey: 200, RateBurst: 400,
+		ComputeTimeout: 60 * time.Second}
 }
 
 // Server holds what handlers need.
@@ -43,6 +48,8 @@ type Server struct {
 	runner  *batch.Runner
 	// idemLocks serializes requests that carry the same Idempotency-Key (per key, not per server).
 	idemLocks keyedMutex
+	// compute bounds the force-field computations running at once.
+	compute computeSlots
 	// limiters holds one token bucket per API key id (*rate.Limiter).
 	limiters sync.Map
 	wg       sync.WaitGroup
@@ -69,7 +76,13 @@ func New(cfg Config, store *data.Store, log *slog.Logger) *Server {
 	if cfg.RateBurst <= 0 {
 		cfg.RateBurst = def.RateBurst
 	}
-	s := &Server{cfg: cfg, store: store, log: log, metrics: newMetrics()}
+	if cfg.ComputeTimeout <= 0 {
+		cfg.ComputeTimeout = def.ComputeTimeout
+	}
+	if cfg.ComputeSlots <= 0 {
+		cfg.ComputeSlots = runtime.NumCPU()
+	}
+	s := &Server{cfg: cfg, store: store, log: log, metrics: newMetrics(), compute: make(computeSlots, cfg.ComputeSlots)}
 	if cfg.Workers <= 0 {
 		cfg.Workers = runtime.NumCPU()
 	}
@@ -153,6 +166,7 @@ func (s *Server) Handler() http.Handler {
 	v1.POST("/screen/compare", json, s.idempotent, s.compare)
 	v1.POST("/sweep", json, s.idempotent, s.sweep)
 	v1.POST("/plan", json, s.idempotent, s.plan)
+	v1.POST("/conformers", json, s.idempotent, s.conformers)
 	v1.GET("/tables/ring-systems", s.ringTable)
 	v1.POST("/monomers", json, s.idempotent, s.createMonomer)
 	v1.GET("/monomers", s.listMonomers)

@@ -238,50 +238,18 @@ func readCSVInput(r *bufio.Reader, in *Input, idField string, max int) error {
 }
 
 func readSDF(r *bufio.Reader, in *Input, idField string, max int) error {
-	sc := bufio.NewScanner(r)
-	sc.Buffer(make([]byte, 64<<10), MaxInputLine)
-	line := 0
-	var rec []string
-	start := 1
-	flush := func() error {
-		defer func() { rec = rec[:0] }()
-		if len(rec) == 0 || (len(rec) == 1 && strings.TrimSpace(rec[0]) == "") {
-			return nil
-		}
-		end := -1
-		for i, l := range rec {
-			if strings.HasPrefix(l, "M  END") {
-				end = i
-				break
-			}
-		}
+	return molfile.ReadSD(r, func(rec molfile.SDRecord) error {
 		num := in.Count + len(in.Errors) + 1
-		if end < 0 {
-			in.Errors = append(in.Errors, InputError{Line: start, ID: strconv.Itoa(num), Msg: "record has no M  END line"})
+		text, ok := rec.Molfile()
+		if !ok {
+			in.Errors = append(in.Errors, InputError{Line: rec.Start, ID: strconv.Itoa(num), Msg: "record has no M  END line"})
 			return nil
 		}
-		text := strings.Join(rec[:end+1], "\n")
-		fields := map[string]string{}
-		for i := end + 1; i < len(rec); i++ {
-			l := rec[i]
-			if strings.HasPrefix(l, ">") {
-				a, b := strings.Index(l, "<"), strings.LastIndex(l, ">")
-				if a >= 0 && b > a {
-					key := l[a+1 : b]
-					var vals []string
-					for i+1 < len(rec) && strings.TrimSpace(rec[i+1]) != "" {
-						i++
-						vals = append(vals, rec[i])
-					}
-					fields[key] = strings.Join(vals, "\n")
-				}
-			}
-		}
-		id := strings.TrimSpace(rec[0])
+		id := strings.TrimSpace(rec.Lines[0])
 		if idField != "" {
-			v, ok := fields[idField]
+			v, ok := rec.Fields()[idField]
 			if !ok {
-				in.Errors = append(in.Errors, InputError{Line: start, ID: id, Msg: fmt.Sprintf("record has no data field <%s>", idField)})
+				in.Errors = append(in.Errors, InputError{Line: rec.Start, ID: id, Msg: fmt.Sprintf("record has no data field <%s>", idField)})
 				return nil
 			}
 			id = strings.TrimSpace(v)
@@ -292,30 +260,14 @@ func readSDF(r *bufio.Reader, in *Input, idField string, max int) error {
 		if _, _, err := molfile.Parse(text); err != nil {
 			var me *molfile.Error
 			if errors.As(err, &me) {
-				in.Errors = append(in.Errors, InputError{Line: start + me.Line - 1, ID: id, Msg: me.Msg})
+				in.Errors = append(in.Errors, InputError{Line: rec.Start + me.Line - 1, ID: id, Msg: me.Msg})
 				return nil
 			}
-			in.Errors = append(in.Errors, InputError{Line: start, ID: id, Msg: err.Error()})
+			in.Errors = append(in.Errors, InputError{Line: rec.Start, ID: id, Msg: err.Error()})
 			return nil
 		}
-		return in.add(InputItem{ID: id, Molfile: text, Line: start}, max)
-	}
-	for sc.Scan() {
-		line++
-		l := strings.TrimRight(sc.Text(), "\r")
-		if strings.HasPrefix(l, "$$$$") {
-			if err := flush(); err != nil {
-				return err
-			}
-			start = line + 1
-			continue
-		}
-		rec = append(rec, l)
-	}
-	if err := sc.Err(); err != nil {
-		return fmt.Errorf("line %d: %w", line+1, err)
-	}
-	return flush()
+		return in.add(InputItem{ID: id, Molfile: text, Line: rec.Start}, max)
+	})
 }
 
 // ScreenItem screens one input item (SMILES or molfile).

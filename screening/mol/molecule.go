@@ -237,6 +237,15 @@ func (m *Molecule) TotalH(a int) int {
 	return h
 }
 
+// ImplicitHCount returns the hydrogens counted on atoms rather than written as atoms.
+func (m *Molecule) ImplicitHCount() int {
+	n := 0
+	for i := range m.Atoms {
+		n += m.Atoms[i].HCount
+	}
+	return n
+}
+
 // NumComponents returns the number of connected components.
 func (m *Molecule) NumComponents() int { return len(m.compStart) - 1 }
 
