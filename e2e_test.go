@@ -263,6 +263,7 @@ func TestLargeJobSurvivesKill(t *testing.T) {
 	w := multipart.NewWriter(&buf)
 	fw, _ := w.CreateFormFile("file", "list.smi")
 	fw.Write(file)
+	w.WriteField("thermo_method", "table") // the fast tier for a large list
 	w.Close()
 	st, b, _ := call(t, "POST", s.base+"/v1/jobs", w.FormDataContentType(), &buf, "Idempotency-Key", "big-1")
 	if st != 202 {
@@ -308,6 +309,7 @@ func TestLargeJobSurvivesKill(t *testing.T) {
 	w2 := multipart.NewWriter(&buf2)
 	fw2, _ := w2.CreateFormFile("file", "list.smi")
 	fw2.Write(file)
+	w2.WriteField("thermo_method", "table")
 	w2.Close()
 	_, b, _ = call(t, "POST", s2.base+"/v1/jobs", w2.FormDataContentType(), &buf2, "Idempotency-Key", "big-1")
 	if !strings.Contains(string(b), jc.ID) {
@@ -316,7 +318,7 @@ func TestLargeJobSurvivesKill(t *testing.T) {
 
 	// the file holds rows that cannot be screened: the offline screen writes every row and exits 2
 	// (contract v1.1: non-zero when any row failed)
-	want, err := exec.Command(binPath, "screen", "--format", "csv", path).Output()
+	want, err := exec.Command(binPath, "screen", "--thermo-method", "table", "--format", "csv", path).Output()
 	var ee *exec.ExitError
 	if !errors.As(err, &ee) || ee.ExitCode() != 2 {
 		t.Fatalf("offline screen of a file with bad rows: %v, want exit status 2", err)

@@ -24,6 +24,7 @@ type conditionFlags struct {
 	concMolL float64
 	catalyst string
 	bulk     bool
+	thermo   string
 }
 
 func (f *conditionFlags) register(cmd *cobra.Command) {
@@ -32,6 +33,7 @@ func (f *conditionFlags) register(cmd *cobra.Command) {
 	fl.Float64Var(&f.concMolL, "conc-mol-l", 1.0, "initial monomer concentration, mol/L")
 	fl.StringVar(&f.catalyst, "catalyst", "ru-nhc", "catalyst class: ru-phosphine, ru-nhc, ru-pyridine, mo-w-imido, classical")
 	fl.BoolVar(&f.bulk, "bulk", false, "neat monomer: concentration estimated from the structure (overrides --conc-mol-l)")
+	fl.StringVar(&f.thermo, "thermo-method", "auto", "ΔH_p estimate: auto (force-field difference where the structure differs from its parent ring), table (fast), forcefield")
 }
 
 func (f *conditionFlags) conditions() (screening.Conditions, error) {
@@ -52,6 +54,11 @@ func (f *conditionFlags) conditions() (screening.Conditions, error) {
 		return c, fmt.Errorf("--catalyst: %w", err)
 	}
 	c.Catalyst = cat
+	tm, err := units.ParseThermoMethod(f.thermo)
+	if err != nil {
+		return c, fmt.Errorf("--thermo-method: %w", err)
+	}
+	c.ThermoMethod = tm
 	return c, nil
 }
 
@@ -174,7 +181,7 @@ func screenCmd() *cobra.Command {
 func screenAll(cmd *cobra.Command, items []batch.InputItem, cond screening.Conditions, bar *progressbar.ProgressBar) []batch.Row {
 	rows := make([]batch.Row, len(items))
 	batch.Map(cmd.Context(), len(items), 0, func(i int) {
-		r, err := batch.ScreenItem(items[i], cond)
+		r, err := batch.ScreenItemContext(cmd.Context(), items[i], cond)
 		rows[i] = batch.NewRow(i, r, err)
 		if bar != nil {
 			bar.Add(1)
@@ -248,17 +255,32 @@ func writeRanked(out io.Writer, format string, items []batch.InputItem, rs []bat
 			dh, tc, x := "", "", ""
 			if t := r.Result.Thermo; t != nil {
 				dh = fmt.Sprintf("%.1f ± %.1f", t.DHkJmol, t.DHUncertaintyKJmol)
-				if t.CeilingTempK != nil {
-					tc = fmt.Sprintf("%.0f", *t.CeilingTempK)
-				} else {
-					tc = "none"
-				}
+				tc = ceilingText(t)
 				x = fmt.Sprintf("%.3f", t.EqConversion)
 			}
 			fmt.Fprintf(tw, "%d\t%s\t%s\t%.3f\t%s\t%s\t%s\t%s\n", i+1, id, r.Result.Verdict, r.Result.Score, dh, tc, x, judge.MainReasons(r.Result))
 		}
-		return tw.Flush()
+		if err := tw.Flush(); err != nil {
+			return err
+		}
+		_, err := fmt.Fprintln(out, "* extrapolated: far outside any measured ceiling temperature (200–500 K)")
+		return err
 	}
+}
+
+// ceilingText shows a ceiling temperature for the table, extrapolated ones as bounds.
+func ceilingText(t *screening.Thermo) string {
+	switch {
+	case t.CeilingTempK == nil && t.CriticalConcMolL != nil:
+		return fmt.Sprintf("none (floor %.2g M)", *t.CriticalConcMolL)
+	case t.CeilingTempK == nil:
+		return "none"
+	case t.CeilingTempExtrapolated && *t.CeilingTempK > screening.ExtrapolatedAboveK:
+		return "> 500*"
+	case t.CeilingTempExtrapolated:
+		return "< 200*"
+	}
+	return fmt.Sprintf("%.0f", *t.CeilingTempK)
 }
 
 // writeCompared prints one list under two condition sets side by side, in the order of set A.

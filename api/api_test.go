@@ -485,3 +485,32 @@ func TestIdempotentPOSTs(t *testing.T) {
 		t.Errorf("bad SMILES with a key: %d", r.status)
 	}
 }
+
+// TestThermoMethodCondition: conditions.thermo_method selects the tier, is echoed in the
+// effective conditions, and an unknown name is a 422 naming the field (contract v1.1).
+func TestThermoMethodCondition(t *testing.T) {
+	ts, _ := newTestServer(t, Config{})
+	smi := `O=C(OC)[C@@H]1C[C@@H]2C=C[C@H]1C2`
+	for _, m := range []string{"table", "forcefield"} {
+		r := do(t, ts, "POST", "/v1/screen", `{"smiles":"`+smi+`","conditions":{"thermo_method":"`+m+`"}}`)
+		var out struct {
+			Conditions struct {
+				ThermoMethod string `json:"thermo_method"`
+			} `json:"conditions"`
+			Thermo struct {
+				Estimate struct {
+					Method string   `json:"method"`
+					FF     *float64 `json:"forcefield_correction_kj_mol"`
+				} `json:"estimate"`
+			} `json:"thermo"`
+		}
+		r.json(t, &out)
+		if r.status != 200 || out.Conditions.ThermoMethod != m || out.Thermo.Estimate.Method != m || (m == "forcefield") != (out.Thermo.Estimate.FF != nil) {
+			t.Errorf("%s: %d %s", m, r.status, r.body)
+		}
+	}
+	r := do(t, ts, "POST", "/v1/screen", `{"smiles":"C1=CCCC1","conditions":{"thermo_method":"quantum"}}`)
+	if r.status != 422 || !strings.Contains(string(r.body), `"conditions.thermo_method"`) {
+		t.Errorf("unknown method: %d %s", r.status, r.body)
+	}
+}

@@ -71,7 +71,7 @@ func jobStatus(j batch.Job) JobStatus {
 // createJob godoc
 //
 //	@Summary		Submit an asynchronous screening job
-//	@Description	Takes the batch JSON body, or multipart/form-data with a file field "file" (SMILES lines, CSV with id,smiles plus any columns, or SDF V2000) and conditions as form fields (temperature_c, monomer_conc_mol_l, bulk, catalyst), plus optional format (smiles, csv, sdf) and id_field (SDF data field or CSV column holding the id). Unreadable rows are reported by line in input_errors. An Idempotency-Key header makes a repeated identical POST return the same job.
+//	@Description	Takes the batch JSON body, or multipart/form-data with a file field "file" (SMILES lines, CSV with id,smiles plus any columns, or SDF V2000) and conditions as form fields (temperature_c, monomer_conc_mol_l, bulk, catalyst, thermo_method), plus optional format (smiles, csv, sdf) and id_field (SDF data field or CSV column holding the id). Unreadable rows are reported by line in input_errors. An Idempotency-Key header makes a repeated identical POST return the same job.
 //	@Tags			jobs
 //	@Accept			json
 //	@Accept			mpfd
@@ -241,6 +241,7 @@ func uploadConditions(vals map[string]string) (screening.Conditions, error) {
 		ci.Bulk = v
 	}
 	ci.Catalyst = vals["catalyst"]
+	ci.ThermoMethod = vals["thermo_method"]
 	return ci.toConditions()
 }
 

@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"net/http"
 	"strings"
+	"time"
 
 	"github.com/gin-gonic/gin"
 
@@ -25,6 +26,10 @@ type ConditionsIn struct {
 	// Bulk screens the neat monomer: the concentration is estimated from the structure.
 	Bulk     bool   `json:"bulk,omitempty"`
 	Catalyst string `json:"catalyst,omitempty" enums:"ru-phosphine,ru-nhc,ru-pyridine,mo-w-imido,classical" example:"ru-nhc"`
+	// ThermoMethod: auto (default) adds the force-field strain difference from the parent ring
+	// system where the structure differs from it; table is the fast ring-table tier; forcefield
+	// always adds the difference.
+	ThermoMethod string `json:"thermo_method,omitempty" enums:"auto,table,forcefield" example:"auto"`
 }
 
 // toConditions validates the conditions (errors are *screening.FieldError with the field).
@@ -68,6 +73,11 @@ func (ci *ConditionsIn) toConditions() (screening.Conditions, error) {
 		}
 		c.Catalyst = cat
 	}
+	tm, err := units.ParseThermoMethod(ci.ThermoMethod)
+	if err != nil {
+		return c, units.Refield(err, "conditions.thermo_method")
+	}
+	c.ThermoMethod = tm
 	return c, nil
 }
 
@@ -140,7 +150,10 @@ func (s *Server) screenSource(ctx context.Context, src MonomerSource, c screenin
 	if err != nil {
 		return screening.Result{}, err
 	}
-	r, err := screening.Screen(in, c)
+	if _, bounded := ctx.Deadline(); !bounded {
+		ctx = screening.WithForceFieldDeadline(ctx, time.Now().Add(s.cfg.SyncForceField))
+	}
+	r, err := screening.ScreenContext(ctx, in, c)
 	s.count(r, err)
 	return r, err
 }
@@ -267,6 +280,8 @@ func (s *Server) batch(c *gin.Context) {
 // failures become problems in place. It stops early when the client goes away.
 func (s *Server) screenItems(ctx context.Context, items []BatchItem, cond screening.Conditions) []BatchResult {
 	rows := make([]batch.Row, len(items))
+	// one force-field allowance for the whole batch: the rest of it uses the ring table
+	ctx = screening.WithForceFieldDeadline(ctx, time.Now().Add(s.cfg.SyncForceField))
 	batch.Map(ctx, len(items), 0, func(i int) {
 		r, err := s.screenSource(ctx, items[i].MonomerSource, cond)
 		rows[i] = batch.NewRow(i, r, err)

@@ -31,12 +31,16 @@ type Config struct {
 	// run at once (0: one per core).
 	ComputeTimeout time.Duration
 	ComputeSlots   int
+	// SyncForceField bounds the force-field work of the thermodynamics in one synchronous
+	// request (screen, batch, compare, plan); past it, auto estimates use the ring table with a
+	// note. Jobs are not bounded this way.
+	SyncForceField time.Duration
 }
 
 // DefaultConfig returns the defaults.
 func DefaultConfig() Config {
 	return Config{MaxBodyBytes: 8 << 20, MaxFileBytes: 64 << 20, BatchLimit: 5000, JobLimit: 200000, RatePerKey: 200, RateBurst: 400,
-		ComputeTimeout: 60 * time.Second}
+		ComputeTimeout: 60 * time.Second, SyncForceField: 3 * time.Second}
 }
 
 // Server holds what handlers need.
@@ -75,6 +79,9 @@ func New(cfg Config, store *data.Store, log *slog.Logger) *Server {
 	}
 	if cfg.RateBurst <= 0 {
 		cfg.RateBurst = def.RateBurst
+	}
+	if cfg.SyncForceField <= 0 {
+		cfg.SyncForceField = def.SyncForceField
 	}
 	if cfg.ComputeTimeout <= 0 {
 		cfg.ComputeTimeout = def.ComputeTimeout

@@ -3,6 +3,7 @@ package screening_test
 import (
 	"bufio"
 	"os"
+	"ringsieve/screening/units"
 	"strings"
 	"testing"
 
@@ -56,6 +57,7 @@ func BenchmarkParseSMILES(b *testing.B) {
 func BenchmarkScreenSMILESCold(b *testing.B) {
 	c := loadCorpus(b)
 	cond := DefaultConditions()
+	cond.ThermoMethod = units.ThermoTable // the fast tier (BenchmarkScreenForceField for the other)
 	thermo.Table()
 	canon.ResetCache()
 	thermo.ResetCache()
@@ -87,12 +89,30 @@ func BenchmarkPerceive(b *testing.B) {
 func BenchmarkScreenSMILES(b *testing.B) {
 	c := loadCorpus(b)
 	cond := DefaultConditions()
+	cond.ThermoMethod = units.ThermoTable
 	for _, s := range c {
 		ScreenSMILES(s, cond)
 	}
 	b.ReportAllocs()
 	b.ResetTimer()
 	for i := 0; i < b.N; i++ {
+		if _, err := ScreenSMILES(c[i%len(c)], cond); err != nil {
+			b.Fatal(err)
+		}
+	}
+}
+
+// BenchmarkScreenForceField screens the first 20 corpus structures with thermo_method
+// forcefield and cold caches: the cost of the force-field tier per new structure.
+func BenchmarkScreenForceField(b *testing.B) {
+	c := loadCorpus(b)[:20]
+	cond := DefaultConditions()
+	cond.ThermoMethod = units.ThermoForceField
+	b.ResetTimer()
+	for i := 0; i < b.N; i++ {
+		if i%len(c) == 0 {
+			thermo.ResetFFCache()
+		}
 		if _, err := ScreenSMILES(c[i%len(c)], cond); err != nil {
 			b.Fatal(err)
 		}

@@ -6,10 +6,12 @@
 package screening
 
 import (
+	"context"
 	"errors"
 	"fmt"
 	"sort"
 	"strings"
+	"time"
 
 	"ringsieve/screening/describe"
 	"ringsieve/screening/judge"
@@ -44,6 +46,12 @@ var (
 	ErrInvalid = units.ErrInvalid
 )
 
+// Ceiling temperatures outside these bounds (K) are marked extrapolated.
+const (
+	ExtrapolatedBelowK = thermo.ExtrapolatedBelowK
+	ExtrapolatedAboveK = thermo.ExtrapolatedAboveK
+)
+
 // EngineVersion identifies the rules, table and formulas that produced a result.
 const EngineVersion = judge.EngineVersion
 
@@ -56,6 +64,12 @@ const (
 	VerdictNotMonomer  = judge.VerdictNotMonomer
 )
 
+// WithForceFieldDeadline bounds the force-field work done under ctx: past the deadline, auto
+// estimates fall back to the ring table with a note.
+func WithForceFieldDeadline(ctx context.Context, t time.Time) context.Context {
+	return thermo.WithForceFieldDeadline(ctx, t)
+}
+
 // DefaultConditions are the contract's defaults: 25 °C, 1.0 mol/L, ru-nhc.
 func DefaultConditions() Conditions { return units.DefaultConditions() }
 
@@ -67,31 +81,47 @@ type Source struct {
 	Descriptors *Descriptors
 }
 
-// Screen screens one source under conditions c.
+// Screen screens one source under conditions c (no deadline; see ScreenContext).
 func Screen(src Source, c Conditions) (Result, error) {
+	return ScreenContext(context.Background(), src, c)
+}
+
+// ScreenContext screens one source under conditions c; ctx bounds the force-field work of the
+// thermodynamics (see thermo.WithForceFieldDeadline).
+func ScreenContext(ctx context.Context, src Source, c Conditions) (Result, error) {
 	switch {
 	case src.Molfile != "":
-		return ScreenMolfile(src.Molfile, c)
+		return ScreenMolfileContext(ctx, src.Molfile, c)
 	case src.Descriptors != nil && strings.TrimSpace(src.SMILES) == "":
 		return ScreenDescriptors(*src.Descriptors, c)
 	default:
-		return ScreenSMILES(src.SMILES, c)
+		return ScreenSMILESContext(ctx, src.SMILES, c)
 	}
 }
 
 // ScreenSMILES screens a structure. Errors: *SMILESError for malformed SMILES; *FieldError when
 // bulk conditions cannot be estimated.
 func ScreenSMILES(text string, c Conditions) (Result, error) {
+	return ScreenSMILESContext(context.Background(), text, c)
+}
+
+// ScreenSMILESContext is ScreenSMILES under ctx.
+func ScreenSMILESContext(ctx context.Context, text string, c Conditions) (Result, error) {
 	s, err := describe.Describe(text)
 	if err != nil {
 		return Result{}, err
 	}
-	return ScreenStructure(s, c)
+	return ScreenStructureContext(ctx, s, c)
 }
 
 // ScreenMolfile screens a V2000 molfile. Errors are *MolfileError values (an atom beyond its
 // valence is reported on its atom line).
 func ScreenMolfile(text string, c Conditions) (Result, error) {
+	return ScreenMolfileContext(context.Background(), text, c)
+}
+
+// ScreenMolfileContext is ScreenMolfile under ctx.
+func ScreenMolfileContext(ctx context.Context, text string, c Conditions) (Result, error) {
 	m, _, err := molfile.Parse(text)
 	if err != nil {
 		return Result{}, err
@@ -104,12 +134,17 @@ func ScreenMolfile(text string, c Conditions) (Result, error) {
 	if err != nil {
 		return Result{}, err
 	}
-	return ScreenStructure(s, c)
+	return ScreenStructureContext(ctx, s, c)
 }
 
 // ScreenStructure screens a described structure: every ring olefin is judged and the most
 // reactive one is reported, the others listed in descriptors.other_ring_olefins.
 func ScreenStructure(s *Structure, c Conditions) (Result, error) {
+	return ScreenStructureContext(context.Background(), s, c)
+}
+
+// ScreenStructureContext is ScreenStructure under ctx.
+func ScreenStructureContext(ctx context.Context, s *Structure, c Conditions) (Result, error) {
 	base := s.MoleculeDescriptors()
 	var bulkNote *Reason
 	if c.Bulk {
@@ -136,8 +171,16 @@ func ScreenStructure(s *Structure, c Conditions) (Result, error) {
 		e thermo.Estimate
 	}
 	cands := make([]cand, 0, len(s.Olefins))
+	meas, measNote := thermo.MeasuredFor(s)
+	var measOlefin *describe.Olefin
+	if meas != nil {
+		measOlefin = thermo.MeasuredOlefin(s)
+	}
 	for _, o := range s.Olefins {
-		e := thermo.EstimateOlefin(s, o)
+		e := thermo.EstimateFor(ctx, s, o, c.ThermoMethod)
+		if o == measOlefin {
+			e.Measured, e.MeasuredNote = meas, measNote
+		}
 		d := o.Desc
 		d.MergeMolecule(&base)
 		r := judge.Judge(&d, &e, c)

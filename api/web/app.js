@@ -185,7 +185,7 @@
         tr.appendChild(el("td", { class: "verdict v-" + r.verdict, "data-verdict": r.verdict }, VERDICT_TEXT[r.verdict]));
         tr.appendChild(el("td", { class: "num" }, fmt(r.score, 3)));
         tr.appendChild(el("td", { class: "num" }, t ? fmt(t.dh_kj_mol, 1) + " ± " + fmt(t.dh_uncertainty_kj_mol, 1) : "—"));
-        tr.appendChild(el("td", { class: "num", "data-tc": t && t.ceiling_temp_k !== null ? String(t.ceiling_temp_k) : "" }, t ? (t.ceiling_temp_k === null ? "none" : fmt(t.ceiling_temp_k, 0)) : "—"));
+        tr.appendChild(el("td", { class: "num", "data-tc": t && t.ceiling_temp_k !== null ? String(t.ceiling_temp_k) : "" }, t ? tcText(t, 0) : "—"));
         tr.appendChild(el("td", { class: "num" }, t ? fmt(t.eq_conversion, 3) : "—"));
         tr.appendChild(el("td", null, mainReasons(r).join("; ")));
       } else {
@@ -281,6 +281,13 @@
     return svg;
   }
 
+  // tcText shows a ceiling temperature, or says that it is a formal, extrapolated number
+  function tcText(t, digits) {
+    if (t.ceiling_temp_k === null) return t.critical_conc_mol_l ? "none (floor: " + Number(t.critical_conc_mol_l).toPrecision(3) + " mol/L)" : "none";
+    if (t.ceiling_temp_extrapolated) return (t.ceiling_temp_k > 500 ? "> 500 K" : "< 200 K") + " (extrapolated)";
+    return fmt(t.ceiling_temp_k, digits) + (digits ? " K" : "");
+  }
+
   function showDetail(row) {
     var sec = $("detail"), body = $("detail-body");
     body.textContent = "";
@@ -301,12 +308,31 @@
       [["ΔH_p", fmt(t.dh_kj_mol, 1) + " ± " + fmt(t.dh_uncertainty_kj_mol, 1) + " kJ/mol"],
        ["ΔS_p° (1 mol/L)", fmt(t.ds_j_mol_k, 1) + " ± " + fmt(t.ds_uncertainty_j_mol_k, 1) + " J/(mol K)"],
        ["ΔG_p at " + fmt(t.temperature_k, 2) + " K, " + t.monomer_conc_mol_l + " mol/L", fmt(t.dg_kj_mol, 2) + " ± " + fmt(t.dg_uncertainty_kj_mol, 1) + " kJ/mol"],
-       ["Ceiling temperature", t.ceiling_temp_k === null ? "none" : fmt(t.ceiling_temp_k, 1) + " K"],
+       ["Ceiling temperature", tcText(t, 1)],
        ["[M]eq", Number(t.eq_monomer_mol_l).toPrecision(3) + " mol/L"], ["Equilibrium conversion", fmt(t.eq_conversion, 4)],
        ["Basis", t.basis + (t.source ? " — " + t.source : "")]].forEach(function (kv) {
         var tr = el("tr"); tr.appendChild(el("th", { scope: "row" }, kv[0])); tr.appendChild(el("td", null, kv[1])); tt.appendChild(tr);
       });
       body.appendChild(tt);
+      if (t.estimate) {
+        var em = el("table", { class: "thermo", id: "estimate-vs-measured" });
+        var hr = el("tr");
+        ["", "ΔH_p / kJ/mol", "ΔS_p° / J/(mol K)", "how"].forEach(function (h) { hr.appendChild(el("th", { scope: "col" }, h)); });
+        em.appendChild(hr);
+        var e = t.estimate;
+        var how = e.method + " — parent " + (e.parent_ring_system || "?") +
+          (e.forcefield_correction_kj_mol !== null && e.forcefield_correction_kj_mol !== undefined ? ", force-field difference " + fmt(e.forcefield_correction_kj_mol, 1) + " kJ/mol" : "") +
+          (e.calibration ? "; " + e.calibration : "");
+        [["Estimate (without any measurement of this structure)", fmt(e.dh_kj_mol, 1) + " ± " + fmt(e.dh_uncertainty_kj_mol, 1), fmt(e.ds_j_mol_k, 1) + " ± " + fmt(e.ds_uncertainty_j_mol_k, 1), how]]
+          .concat(t.measured ? [["Measured (used for the verdict)", fmt(t.measured.dh_kj_mol, 1), t.measured.ds_j_mol_k === null ? "—" : fmt(t.measured.ds_j_mol_k, 1), t.measured.source]] : [])
+          .forEach(function (cells) {
+            var tr = el("tr"); tr.appendChild(el("th", { scope: "row" }, cells[0]));
+            cells.slice(1).forEach(function (c) { tr.appendChild(el("td", null, c)); });
+            em.appendChild(tr);
+          });
+        body.appendChild(el("h3", null, "Estimate and measurement"));
+        body.appendChild(em);
+      }
       var plots = el("div", { class: "plots", id: "plots" });
       body.appendChild(el("h3", null, "Thermodynamics against temperature"));
       body.appendChild(plots);

@@ -6,6 +6,7 @@ package batch
 import (
 	"bufio"
 	"bytes"
+	"context"
 	"encoding/csv"
 	"errors"
 	"fmt"
@@ -272,5 +273,10 @@ func readSDF(r *bufio.Reader, in *Input, idField string, max int) error {
 
 // ScreenItem screens one input item (SMILES or molfile).
 func ScreenItem(it InputItem, c screening.Conditions) (screening.Result, error) {
-	return screening.Screen(screening.Source{SMILES: it.SMILES, Molfile: it.Molfile}, c)
+	return ScreenItemContext(context.Background(), it, c)
+}
+
+// ScreenItemContext is ScreenItem under ctx.
+func ScreenItemContext(ctx context.Context, it InputItem, c screening.Conditions) (screening.Result, error) {
+	return screening.ScreenContext(ctx, screening.Source{SMILES: it.SMILES, Molfile: it.Molfile}, c)
 }

@@ -200,6 +200,11 @@ func ConditionsOf(c screening.ConditionsOut) (screening.Conditions, error) {
 		return cond, units.Refield(err, "conditions.catalyst")
 	}
 	cond.Catalyst = cat
+	tm, err := units.ParseThermoMethod(c.ThermoMethod)
+	if err != nil {
+		return cond, units.Refield(err, "conditions.thermo_method")
+	}
+	cond.ThermoMethod = tm
 	return cond, nil
 }
 
@@ -208,7 +213,8 @@ func EffectiveConditions(c screening.Conditions) screening.ConditionsOut { retur
 
 // DecodeConditions reads stored job conditions: the effective form (temperature_k set), or the
 // form of earlier versions, which kept the request's fields (temperature_c or temperature_k,
-// monomer_conc_mol_l, bulk, catalyst; any of them absent means the default).
+// monomer_conc_mol_l, bulk, catalyst; any of them absent means the default; jobs stored before
+// thermo_method existed run with auto).
 func DecodeConditions(b []byte) (screening.ConditionsOut, error) {
 	var raw struct {
 		TemperatureC    *float64 `json:"temperature_c"`
@@ -216,6 +222,7 @@ func DecodeConditions(b []byte) (screening.ConditionsOut, error) {
 		MonomerConcMolL *float64 `json:"monomer_conc_mol_l"`
 		Bulk            bool     `json:"bulk"`
 		Catalyst        string   `json:"catalyst"`
+		ThermoMethod    string   `json:"thermo_method"`
 	}
 	if err := json.Unmarshal(b, &raw); err != nil {
 		return screening.ConditionsOut{}, fmt.Errorf("stored conditions: %w", err)
@@ -233,6 +240,9 @@ func DecodeConditions(b []byte) (screening.ConditionsOut, error) {
 	c.Bulk = raw.Bulk
 	if raw.Catalyst != "" {
 		c.Catalyst = units.CatalystClass(raw.Catalyst)
+	}
+	if raw.ThermoMethod != "" {
+		c.ThermoMethod = units.ThermoMethod(raw.ThermoMethod)
 	}
 	return EffectiveConditions(c), nil
 }

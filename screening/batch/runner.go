@@ -213,7 +213,7 @@ func (r *Runner) screenOne(ctx context.Context, it Item, cond screening.Conditio
 		}
 		src = s
 	}
-	res, err := screening.Screen(src, cond)
+	res, err := screening.ScreenContext(ctx, src, cond)
 	if err != nil {
 		return failed(it.Seq, NewItemError(err))
 	}

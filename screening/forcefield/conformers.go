@@ -79,6 +79,8 @@ type SearchOptions struct {
 	Stereo *Stereo
 	// Start, when not nil, is a starting geometry (3 per atom of the molecule with hydrogens).
 	Start []float64
+	// Dielectric is the electrostatic term's constant D (0 or 1: the published gas phase).
+	Dielectric float64
 }
 
 // Conformer is one minimum of the force field.
@@ -120,6 +122,7 @@ func Search(ctx context.Context, m *mol.Molecule, opt SearchOptions) (*SearchRes
 	if err != nil {
 		return nil, err
 	}
+	s.SetDielectric(opt.Dielectric)
 	st := StereoFromGraph(s.Mol)
 	if opt.Stereo != nil {
 		st = *opt.Stereo

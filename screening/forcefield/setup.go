@@ -19,6 +19,9 @@ type System struct {
 	// Aromatic marks the atoms MMFF counts aromatic.
 	Aromatic []bool
 
+	// dielectric is the constant D of the electrostatic term (1: the gas phase, as published).
+	dielectric float64
+
 	bonds  []bondTerm
 	angles []angleTerm
 	oops   []oopTerm
@@ -70,6 +73,21 @@ const (
 	MaxFFAtoms = 400
 )
 
+// SetDielectric sets the constant dielectric D of the electrostatic term, E_Q = 332.0716 q_i q_j
+// / (D (R + 0.05)) (Halgren, J. Comput. Chem. 1996, 17, 490: D = 1 for the gas phase as
+// published; a larger D damps intramolecular electrostatics, a common approximation for a
+// solvent). Values below 1 are taken as 1.
+func (s *System) SetDielectric(d float64) {
+	if d < 1 || math.IsNaN(d) {
+		d = 1
+	}
+	f := s.dielectric / d
+	for k := range s.pairs {
+		s.pairs[k].qq *= f
+	}
+	s.dielectric = d
+}
+
 // ParamError reports an interaction MMFF94 has no parameter for, even by its empirical rules.
 type ParamError struct{ Msg string }
 
@@ -116,7 +134,7 @@ func Setup(m *mol.Molecule, v Variant) (*System, error) {
 			return nil, &TypeError{Atom: a, Msg: fmt.Sprintf("type %d has no properties", t)}
 		}
 	}
-	s := &System{Mol: m, Variant: v, Types: types, Aromatic: arom}
+	s := &System{Mol: m, Variant: v, Types: types, Aromatic: arom, dielectric: 1}
 	b := &builder{s: s, p: p, rs: rs, m: m}
 	b.bondTypes()
 	if err := b.buildBonds(); err != nil {

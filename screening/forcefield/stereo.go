@@ -99,6 +99,10 @@ func markedNbr(m *mol.Molecule, a, other int) (int, int) {
 	return -1, 0
 }
 
+// RingNeighbours returns, for bond bi in a ring, the atoms of its smallest ring next to its first
+// atom (A) and next to its second (B); ok is false when the bond is in no ring.
+func RingNeighbours(m *mol.Molecule, bi int) (nextA, nextB int, ok bool) { return ringPath(m, bi) }
+
 // ringPath returns, for bond bi in a ring, the atoms of its smallest ring next to A and next
 // to B; ok is false when the bond is in no ring.
 func ringPath(m *mol.Molecule, bi int) (nextA, nextB int, ok bool) {

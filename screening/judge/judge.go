@@ -16,7 +16,7 @@ import (
 
 // EngineVersion identifies the rules, table and formulas that produced a result; stored with
 // saved results so a notebook can tell which engine screened a candidate.
-const EngineVersion = "ringsieve-engine/1.0.0"
+const EngineVersion = "ringsieve-engine/2.0.0"
 
 // Verdicts.
 const (
@@ -38,6 +38,7 @@ type ConditionsOut struct {
 	MonomerConcMolL float64 `json:"monomer_conc_mol_l"`
 	Bulk            bool    `json:"bulk"`
 	Catalyst        string  `json:"catalyst"`
+	ThermoMethod    string  `json:"thermo_method"`
 }
 
 // Result is one screening result (contract: Screen result).
@@ -81,6 +82,11 @@ func ParseVerdict(field, v string) (string, error) {
 	return v, nil
 }
 
+// measuredDSUncertainty is the uncertainty carried with a measured ΔS_p°, J/(mol K) (the spread of
+// van 't Hoff entropies between laboratories for cyclopentene, romp_thermo.csv T002 vs T004, is
+// 15; half of it, a design choice).
+const measuredDSUncertainty = 7.5
+
 // Judge runs the rules and, when there is a ring olefin (e != nil), the thermodynamics at the
 // conditions; it sets verdict, score and cautions.
 func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Result {
@@ -102,18 +108,57 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 		r.Cautions = cautions(d, nil, c, r.Verdict)
 		return r
 	}
-	th := thermo.Evaluate(e.DHkJmol, e.DSJmolK, c.Temp, c.Conc)
-	th.DHUncertaintyKJmol = round(e.UH, 2)
-	th.DSUncertaintyJmolK = round(e.US, 2)
-	uG := math.Hypot(e.UH, float64(c.Temp)*e.US/1000)
+	// the numbers the verdict uses: the measurement where there is one, else the estimate
+	dh, ds, uh, us := e.DHkJmol, e.DSJmolK, e.UH, e.US
+	basis, source := e.Basis, e.Source
+	if m := e.Measured; m != nil {
+		dh, uh = m.DH, m.UDH
+		if m.DS != nil {
+			ds, us = *m.DS, measuredDSUncertainty
+		}
+		basis, source = thermo.BasisMeasured, m.Source
+	}
+	th := thermo.Evaluate(dh, ds, c.Temp, c.Conc)
+	th.DHUncertaintyKJmol = round(uh, 2)
+	th.DSUncertaintyJmolK = round(us, 2)
+	uG := math.Hypot(uh, float64(c.Temp)*us/1000)
 	th.DGUncertaintyKJmol = round(uG, 2)
-	th.Basis = e.Basis
-	th.Source = e.Source
+	th.Basis = basis
+	th.Source = source
 	th.ParentRingSystem, th.UnsubstitutedParent = e.Parent, e.Bare
-	if d.MolWeightGmol > 0 && e.DHkJmol < 0 {
-		q := -e.DHkJmol * 1000 / d.MolWeightGmol
+	if d.MolWeightGmol > 0 && dh < 0 {
+		q := -dh * 1000 / d.MolWeightGmol
 		q = round(q, 1)
 		th.HeatReleasedJG = &q
+	}
+	if d.FromStructure {
+		th.Estimate = &thermo.EstimateOut{DHkJmol: round(e.DHkJmol, 2), DSJmolK: round(e.DSJmolK, 2),
+			DHUncertaintyKJmol: round(e.UH, 2), DSUncertaintyJmolK: round(e.US, 2), Method: e.Method,
+			ParentRingSystem: e.ParentSystem, Class: e.Class, Calibration: e.Calibration}
+		if th.Estimate.Method == "" {
+			th.Estimate.Method = thermo.MethodTable
+		}
+		if th.Estimate.ParentRingSystem == "" {
+			th.Estimate.ParentRingSystem = e.Parent
+		}
+		if e.FFCorrection != nil {
+			v := round(*e.FFCorrection, 2)
+			th.Estimate.FFCorrectionKJmol = &v
+		}
+	}
+	if m := e.Measured; m != nil {
+		th.Measured = &thermo.MeasuredOut{DHkJmol: m.DH, DSJmolK: m.DS, Source: m.Source, Evidence: m.Evidence, Note: m.Note}
+		v := e.DHkJmol - m.DH
+		r.Reasons = append(r.Reasons, Reason{Code: "measured_value_used", Effect: EffectNote, Value: &v, Unit: "kJ/mol",
+			Detail: fmt.Sprintf("a published measurement of this structure is used (ΔH_p %.1f kJ/mol, %s); the model's own estimate, made without it, is %.1f kJ/mol", m.DH, m.Source, e.DHkJmol)})
+		if e.MeasuredNote != "" {
+			r.Reasons = append(r.Reasons, Reason{Code: "measured_stereoisomer", Effect: EffectNote, Detail: e.MeasuredNote})
+		}
+	}
+	if th.CeilingTempExtrapolated {
+		v := *th.CeilingTempK
+		r.Reasons = append(r.Reasons, Reason{Code: "ceiling_temp_extrapolated", Effect: EffectNote, Value: &v, Unit: "K",
+			Detail: fmt.Sprintf("T_c = %.0f K lies far outside any measured ceiling temperature (200–500 K): a formal number, read it as \"no ceiling in practice\" or \"never above\"", v)})
 	}
 	r.Thermo = &th
 	r.Reasons = append(r.Reasons, strainReasons(d, *e)...)
@@ -121,8 +166,23 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 		r.Reasons = append(r.Reasons, Reason{Code: n.Code, Effect: EffectNote, Detail: n.Detail, Value: n.Value, Unit: n.Unit})
 	}
 	// thermodynamic reasons with the numbers
+	ringChain := e.Basis == thermo.BasisRingChain && e.Measured == nil
+	if ringChain {
+		crit := thermo.MacrocycleCriticalConc(dh, e.RingChainB, c.Temp)
+		th.CriticalConcMolL = &crit
+		th.EqConversion = math.Max(0, 1-crit/float64(c.Conc))
+		th.CeilingTempK, th.CeilingTempExtrapolated = nil, false
+	}
 	conv := th.EqConversion
 	switch {
+	case ringChain && conv <= 0:
+		v := *th.CriticalConcMolL
+		r.Reasons = append(r.Reasons, Reason{Code: "below_critical_concentration", Effect: EffectPenalizes, Value: &v, Unit: "mol/L",
+			Detail: fmt.Sprintf("%.3g mol/L is below the ring–chain critical concentration %.3g mol/L (Jacobson–Stockmayer model estimate): a concentration floor, not a temperature ceiling — cyclic oligomers, no high polymer; raise the concentration", float64(c.Conc), v)})
+	case ringChain:
+		v := *th.CriticalConcMolL
+		r.Reasons = append(r.Reasons, Reason{Code: "above_critical_concentration", Effect: EffectFavors, Value: &v, Unit: "mol/L",
+			Detail: fmt.Sprintf("entropy-driven ring–chain equilibrium: %.3g mol/L is above the critical concentration %.3g mol/L, so %.0f%% of the monomer units can go into chains (model estimate)", float64(c.Conc), v, 100*conv)})
 	case th.DGkJmol >= 0:
 		v := th.DGkJmol
 		det := fmt.Sprintf("ΔG_p = %+.1f kJ/mol at %.1f °C and %.3g mol/L: the monomer is favoured over polymer", th.DGkJmol, c.Temp.Celsius(), float64(c.Conc))
@@ -139,7 +199,7 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 		r.Reasons = append(r.Reasons, Reason{Code: "favorable_equilibrium", Effect: EffectFavors, Value: &v, Unit: "fraction",
 			Detail: "equilibrium conversion " + strconv.FormatFloat(conv, 'f', 3, 64) + " at these conditions"})
 	}
-	if uG > 0 && math.Abs(th.DGkJmol) < uG {
+	if uG > 0 && math.Abs(th.DGkJmol) < uG && !ringChain {
 		v := uG
 		r.Reasons = append(r.Reasons, Reason{Code: "verdict_near_boundary", Effect: EffectNote, Value: &v, Unit: "kJ/mol",
 			Detail: fmt.Sprintf("|ΔG_p| = %.1f kJ/mol is within its uncertainty (±%.1f kJ/mol): the ceiling temperature lies within the uncertainty band of the working temperature; treat the verdict as uncertain", math.Abs(th.DGkJmol), uG)})
@@ -154,6 +214,13 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 		penalty += rs.Penalty
 	}
 	dg := th.DGkJmol
+	if ringChain {
+		// the verdict follows the share of monomer that can go into chains, not ΔG_p's sign
+		dg = -1
+		if conv <= 0 {
+			dg = 1
+		}
+	}
 	switch {
 	case blocked:
 		r.Verdict = VerdictBlocked
@@ -174,6 +241,13 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 	r.Score = round(r.Score, 4)
 	r.Cautions = cautions(d, &th, c, r.Verdict)
 	return r
+}
+
+func thermoMethodOrAuto(m units.ThermoMethod) units.ThermoMethod {
+	if m == "" {
+		return units.ThermoAuto
+	}
+	return m
 }
 
 // scoreFloor is the lowest score of each verdict's band (design choice: the bands do not
@@ -264,5 +338,5 @@ func MoreReactive(a, b *Result) bool {
 // exact kelvin value).
 func OutOf(c units.Conditions) ConditionsOut {
 	return ConditionsOut{TemperatureC: round(c.Temp.Celsius(), 4), TemperatureK: float64(c.Temp),
-		MonomerConcMolL: float64(c.Conc), Bulk: c.Bulk, Catalyst: string(c.Catalyst)}
+		MonomerConcMolL: float64(c.Conc), Bulk: c.Bulk, Catalyst: string(c.Catalyst), ThermoMethod: string(thermoMethodOrAuto(c.ThermoMethod))}
 }

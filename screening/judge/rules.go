@@ -201,8 +201,14 @@ func ruleTransCyclooctene(in ruleInput) []Reason {
 // strainReasons turn the thermodynamics into favor/penalize reasons with the numbers.
 func strainReasons(d *describe.Descriptors, e thermo.Estimate) []Reason {
 	dh := e.DHkJmol
+	if e.Measured != nil {
+		dh = e.Measured.DH
+	}
 	v := dh
 	switch {
+	case e.Basis == thermo.BasisRingChain:
+		return []Reason{{Code: "strain_free_macrocycle", Effect: EffectNote, Value: &v, Unit: "kJ/mol",
+			Detail: "strain-free macrocycle (ΔH_p ≈ " + f0(dh) + " kJ/mol): entropy, not strain, drives its ring opening"}}
 	case dh <= -40 && d.RingSystem == describe.SystemBridged:
 		return []Reason{{Code: "bridged_bicyclic_strain", Effect: EffectFavors, Value: &v, Unit: "kJ/mol",
 			Detail: "strained bridged bicyclic ring: ΔH_p ≈ " + f0(dh) + " kJ/mol drives polymerization"}}

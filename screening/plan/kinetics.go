@@ -2,8 +2,7 @@ package plan
 
 import (
 	"math"
-
-	"ringsieve/screening/units"
+	"ringsieve/screening/thermo"
 )
 
 // Living-polymerization statistics.
@@ -81,6 +80,30 @@ func GoldAt(r, x, p float64) GoldResult {
 	return GoldResult{Dispersity: m2 * m0 / (m1 * m1), DPn: m1 / m0, UnreactedInitiator: math.Exp(-s), S: s, MonomerPerInitiator: x}
 }
 
+// SlowInitiationRatio returns the monomer-to-initiator ratio X at which the chains actually
+// started reach the number-average degree of polymerization dp at conversion p, for
+// r = k_p/k_i (Gold model, above): DP_n(X) rises with X, so X is found by bisection between
+// dp/p/1000 and dp/p (every initiator started).
+func SlowInitiationRatio(r, dp, p float64) float64 {
+	hi := dp / p
+	if r <= 0 {
+		return hi
+	}
+	lo := hi / 1000
+	for i := 0; i < 100; i++ {
+		mid := math.Sqrt(lo * hi)
+		if GoldAt(r, mid, p).DPn < dp {
+			lo = mid
+		} else {
+			hi = mid
+		}
+		if hi/lo < 1+1e-9 {
+			break
+		}
+	}
+	return math.Sqrt(lo * hi)
+}
+
 // TimeToConversion returns the time (s) to reach conversion p:
 //   - instantaneous initiation (ki <= 0 or ki >= kp treated exactly by the same integral):
 //     the integral below reduces to t = −ln(1 − p)/(k_p [I]0) when every initiator starts at once;
@@ -131,38 +154,10 @@ func simpsonRec(f func(float64) float64, a, b, fa, fb, fc, whole, eps float64, d
 	return simpsonRec(f, a, c, fa, fc, fd, left, eps/2, depth-1) + simpsonRec(f, c, b, fc, fb, fe, right, eps/2, depth-1)
 }
 
-// Jacobson–Stockmayer ring–chain equilibrium (Jacobson & Stockmayer, J. Chem. Phys. 1950, 18,
-// 1600, DOI 10.1063/1.1747547), Gaussian chain statistics: the molar cyclization constant of the
-// x-meric ring is K_x = B·x^(−5/2) with
-//
-//	B = (3/(2π·C·ν_b·⟨l²⟩))^(3/2) / (2·N_A)     (σ_x = 2x, repeat unit readable both ways),
-//
-// and the critical concentration (monomer units held in rings) is c_crit = B·Σ_{x ≥ x_min} x^(−3/2).
-// These are model values, not measurements (romp_facts.md section c).
-
-// zeta32 is ζ(3/2) = Σ_{x≥1} x^(−3/2).
-const zeta32 = 2.612375348685488
-
-// JSConstantMolL returns B in mol/L for skeletal bonds per repeat unit nuB, mean-square bond
-// length l2 (Å²) and characteristic ratio c.
-func JSConstantMolL(nuB, l2A2, c float64) float64 {
-	l2 := l2A2 * 1e-20                                                      // m²
-	b := math.Pow(3/(2*math.Pi*c*nuB*l2), 1.5) / (2 * units.AvogadroPerMol) // mol/m³
-	return b / 1000
-}
-
-// JSCriticalConc returns c_crit = B·Σ_{x ≥ xMin} x^(−3/2) in mol/L of repeat units.
-func JSCriticalConc(b float64, xMin int) float64 {
-	sum := zeta32
-	for x := 1; x < xMin; x++ {
-		sum -= math.Pow(float64(x), -1.5)
-	}
-	return b * sum
-}
-
-// MeanSquareBondLength returns ⟨l²⟩ in Å² of a polyalkenamer repeat unit with nuB skeletal
-// bonds: one C=C (1.34 Å), two =CH–CH2 (1.50 Å) and the rest CH2–CH2 (1.53 Å) (standard bond
-// lengths, from memory; romp_facts.md section c).
-func MeanSquareBondLength(nuB int) float64 {
-	return (1.34*1.34 + 2*1.50*1.50 + float64(nuB-3)*1.53*1.53) / float64(nuB)
-}
+// The Jacobson–Stockmayer functions live in the thermo step (thermo/ringchain.go), which also
+// uses them for strain-free macrocycles; these names keep the planning code readable.
+var (
+	JSConstantMolL       = thermo.JSConstantMolL
+	JSCriticalConc       = thermo.JSCriticalConc
+	MeanSquareBondLength = thermo.MeanSquareBondLength
+)

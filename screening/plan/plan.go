@@ -6,6 +6,7 @@ package plan
 import (
 	"fmt"
 	"math"
+	"ringsieve/screening/thermo"
 	"strings"
 
 	"ringsieve/screening/describe"
@@ -108,10 +109,16 @@ type Living struct {
 	KiOverKpBasis              string   `json:"ki_over_kp_basis"`
 	UnreactedInitiatorFraction *float64 `json:"unreacted_initiator_fraction"`
 	DPSlowInitiation           *float64 `json:"dp_slow_initiation"`
-	TargetConversion           float64  `json:"target_conversion"`
-	TimeToTargetS              *float64 `json:"time_to_target_s"`
-	ConversionTime             []Point  `json:"conversion_time,omitempty"`
-	Basis                      string   `json:"basis"`
+	// ChainConversion is the share of monomer in chains at equilibrium: the equilibrium
+	// conversion less the monomer units held in cyclic oligomers (Jacobson–Stockmayer).
+	ChainConversion float64 `json:"chain_conversion"`
+	// MnAllStartedGmol is M_n if every initiator started (living stoichiometry); with slow
+	// initiation the ratio [M]0/[I]0 is chosen so that the chains actually started reach dp.
+	MnAllStartedGmol float64  `json:"mn_all_started_g_mol"`
+	TargetConversion float64  `json:"target_conversion"`
+	TimeToTargetS    *float64 `json:"time_to_target_s"`
+	ConversionTime   []Point  `json:"conversion_time,omitempty"`
+	Basis            string   `json:"basis"`
 }
 
 // Point is one (time, conversion) sample.
@@ -221,11 +228,19 @@ func Make(r judge.Result, in Input, c units.Conditions) (Plan, error) {
 	}
 	th := r.Thermo
 	xeq := th.EqConversion
+	p.RingChain = ringChain(r, c)
+	p.CriticalConcMolL = p.RingChain.CriticalConcMolL
+	// monomer units held in cyclic oligomers do not go into chains
+	xChain := xeq
+	if rc := p.RingChain; rc.Applies && rc.CriticalConcUnitsMolL != nil {
+		unitsConc := float64(c.Conc) * float64(rc.RepeatUnitsPerMonomer)
+		xChain = math.Max(0, xeq-*rc.CriticalConcUnitsMolL/unitsConc)
+	}
 	// living polymerization
 	def := classDefaults[c.Catalyst]
-	if c.Catalyst != units.CatClassical && xeq > 0 {
-		l := &Living{EqConversion: xeq, MonomerMolarMassGmol: mm, MonomerMassG: in.MonomerMassG, TargetConversion: in.TargetConversion,
-			Basis: "DP_n = X_eq·[M]0/[I]0 with every initiator started (living stoichiometry); M_n = DP_n·M + end groups"}
+	if c.Catalyst != units.CatClassical && xChain > 0 {
+		l := &Living{EqConversion: xeq, ChainConversion: xChain, MonomerMolarMassGmol: mm, MonomerMassG: in.MonomerMassG, TargetConversion: in.TargetConversion,
+			Basis: "DP_n = X_chain·[M]0/[I]0 over the chains started (X_chain: equilibrium conversion less the units in cyclic oligomers); with slow initiation (Gold) [M]0/[I]0 is solved so that the started chains reach DP_n; M_n = DP_n·M + end groups"}
 		l.EndGroupMassGmol = DefaultEndGroupMass
 		if in.EndGroupMass != nil {
 			l.EndGroupMassGmol = *in.EndGroupMass
@@ -238,9 +253,9 @@ func Make(r judge.Result, in Input, c units.Conditions) (Plan, error) {
 				return p, units.FieldErr("target.mn_g_mol", "below one repeat unit plus end groups (%.1f g/mol)", mm+l.EndGroupMassGmol)
 			}
 		}
-		l.MonomerToInitiator = l.DP / xeq
+		l.MonomerToInitiator = l.DP / xChain
 		l.MnGmol = l.DP*mm + l.EndGroupMassGmol
-		l.MnFullConversionGmol = l.MonomerToInitiator*mm + l.EndGroupMassGmol
+		l.MnAllStartedGmol = l.MnGmol
 		l.MonomerMmol = in.MonomerMassG / mm * 1000
 		l.CatalystMmol = l.MonomerMmol / l.MonomerToInitiator
 		l.CatalystMolarMassGmol, l.CatalystMolarMassBasis = def.molarMass, "class default (representative initiator; give catalyst_molar_mass_g_mol for yours)"
@@ -257,8 +272,25 @@ func Make(r judge.Result, in Input, c units.Conditions) (Plan, error) {
 			l.KiOverKp, l.KiOverKpBasis = in.KiOverKp, "supplied"
 		}
 		if l.KiOverKp != nil {
-			g := GoldAt(1 / *l.KiOverKp, l.MonomerToInitiator, xeq)
+			// fewer chains start than initiators are charged: charge less monomer per initiator
+			// so that the chains started reach the target DP_n
+			ratio := SlowInitiationRatio(1 / *l.KiOverKp, l.DP, xChain)
+			naive := l.MonomerToInitiator
+			l.MonomerToInitiator = ratio
+			g := GoldAt(1 / *l.KiOverKp, ratio, xChain)
 			l.DispersitySlowInitiation, l.UnreactedInitiatorFraction, l.DPSlowInitiation = &g.Dispersity, &g.UnreactedInitiator, &g.DPn
+			l.MnAllStartedGmol = ratio*xChain*mm + l.EndGroupMassGmol
+			if naive/ratio > 1.05 {
+				p.Notes = append(p.Notes, fmt.Sprintf("slow initiation (k_i/k_p = %.3g): %.0f%% of the initiator never starts, so [M]0/[I]0 is %.1f instead of %.1f to reach DP %.0f; M_n %.0f g/mol (%.0f g/mol if every initiator started)",
+					*l.KiOverKp, 100*g.UnreactedInitiator, ratio, naive, l.DP, l.MnGmol, l.MnAllStartedGmol))
+			}
+		}
+		l.MnFullConversionGmol = l.MonomerToInitiator*mm + l.EndGroupMassGmol
+		l.MonomerMmol = in.MonomerMassG / mm * 1000
+		l.CatalystMmol = l.MonomerMmol / l.MonomerToInitiator
+		if l.CatalystMolarMassGmol != nil {
+			mg := l.CatalystMmol * *l.CatalystMolarMassGmol
+			l.CatalystMassMg = &mg
 		}
 		target := math.Min(in.TargetConversion, 0.999*xeq)
 		if in.KpLmolS != nil {
@@ -267,12 +299,14 @@ func Make(r judge.Result, in Input, c units.Conditions) (Plan, error) {
 			if l.KiOverKp != nil {
 				ki = *l.KiOverKp * *in.KpLmolS
 			}
-			t := TimeToConversion(*in.KpLmolS, ki, float64(c.Conc), i0, target)
+			// reversible propagation: the rate is k_p[P*]([M] − [M]eq), the Gold model run on the
+			// monomer above equilibrium, [M]0·X_eq, to the conversion target/X_eq of it
+			t := TimeToConversion(*in.KpLmolS, ki, float64(c.Conc)*xeq, i0, target/xeq)
 			if !math.IsInf(t, 0) {
 				l.TimeToTargetS = &t
 				for k := 1; k <= 20; k++ {
 					pk := target * float64(k) / 20
-					l.ConversionTime = append(l.ConversionTime, Point{TimeS: TimeToConversion(*in.KpLmolS, ki, float64(c.Conc), i0, pk), Conversion: pk})
+					l.ConversionTime = append(l.ConversionTime, Point{TimeS: TimeToConversion(*in.KpLmolS, ki, float64(c.Conc)*xeq, i0, pk/xeq), Conversion: pk})
 				}
 			}
 			if target < in.TargetConversion {
@@ -295,8 +329,6 @@ func Make(r judge.Result, in Input, c units.Conditions) (Plan, error) {
 	} else {
 		p.Notes = append(p.Notes, "no polymer at these conditions (equilibrium conversion 0): no living plan")
 	}
-	p.RingChain = ringChain(r, c)
-	p.CriticalConcMolL = p.RingChain.CriticalConcMolL
 	if p.RingChain.BelowCriticalConc {
 		v := *p.RingChain.CriticalConcMolL
 		p.Reasons = append(p.Reasons, judge.Reason{Code: "below_critical_concentration", Effect: judge.EffectBlocks, Value: &v, Unit: "mol/L",
@@ -318,8 +350,8 @@ func Make(r judge.Result, in Input, c units.Conditions) (Plan, error) {
 func ringChain(r judge.Result, c units.Conditions) RingChain {
 	d := r.Descriptors
 	rc := RingChain{Basis: "Jacobson–Stockmayer model (J. Chem. Phys. 1950, 18, 1600), Gaussian chains, ring symmetry 2x: model values, not measurements, " +
-		"upper bounds for the smallest rings. Chain statistics: bond lengths C=C 1.34, =CH–CH2 1.50, CH2–CH2 1.53 Å; characteristic ratio 4.9 " +
-		"(cis-1,4-polybutadiene) for 4-bond units, 5.0 for 5-bond units, 6.7 (polyethylene limit) for longer units (all from memory)"}
+		"upper bounds for the smallest rings. Chain statistics: bond lengths C=C 1.34, =CH–CH2 1.50, CH2–CH2 1.53 Å; characteristic ratio 5.8 " +
+		"(trans-1,4-polybutadiene) for 4-bond units with ruthenium classes (trans-rich chains), 4.9 (cis) with the others, 5.0 for 5-bond units, 6.7 (polyethylene limit) for longer units (all from memory, romp_facts.md section c)"}
 	if d.RingSystem == describe.SystemBridged || d.RingSize < 5 || r.Thermo.DHkJmol < -40 {
 		rc.Basis = "not applied: ring strain makes cyclic oligomers negligible"
 		return rc
@@ -332,13 +364,8 @@ func ringChain(r judge.Result, c units.Conditions) RingChain {
 	if nuB < 4 {
 		nuB, k = d.RingSize, 1
 	}
-	cc := 6.7 // long CH2 runs: polyethylene limit
-	switch {
-	case nuB == 4:
-		cc = 4.9 // cis-1,4-polybutadiene
-	case nuB == 5:
-		cc = 5.0
-	}
+	// ruthenium classes give trans-rich chains (common practice): trans value where there is one
+	cc := thermo.CharacteristicRatio(nuB, c.Catalyst.IsRuthenium())
 	rc.Applies = true
 	rc.SkeletalBondsPerUnit, rc.CharacteristicRatio, rc.RepeatUnitsPerMonomer = nuB, cc, k
 	rc.MeanSquareBondLengthA2 = MeanSquareBondLength(nuB)

@@ -13,6 +13,7 @@ const (
 	BasisAdditive  = "additive_estimate"
 	BasisSupplied  = "supplied"
 	BasisStrain    = "strain_estimate"
+	BasisMeasured  = "measured"
 )
 
 // Thermo is the thermodynamic part of a result at the screening conditions.
@@ -43,7 +44,52 @@ type Thermo struct {
 	ParentRingSystem string `json:"parent_ring_system,omitempty"`
 	// UnsubstitutedParent: the monomer is that parent itself.
 	UnsubstitutedParent bool `json:"unsubstituted_parent,omitempty"`
+	// Estimate is the model's own prediction, made without any measurement of this structure;
+	// Measured is this structure's published measurement, when there is one. The numbers above
+	// are the measurement's where there is one, else the estimate's (contract v1.1).
+	Estimate *EstimateOut `json:"estimate,omitempty"`
+	Measured *MeasuredOut `json:"measured,omitempty"`
+	// CeilingTempExtrapolated marks a ceiling temperature far outside any measured range
+	// (below 200 K or above 500 K): a formal number, not a prediction.
+	CeilingTempExtrapolated bool `json:"ceiling_temp_extrapolated"`
+	// CriticalConcMolL is the ring–chain critical concentration of a macrocycle (its floor:
+	// below it, cyclic oligomers and no high polymer), mol/L; null for other monomers.
+	CriticalConcMolL *float64 `json:"critical_conc_mol_l,omitempty"`
 }
+
+// EstimateOut is the estimate part of a result (contract v1.1, thermo.estimate).
+type EstimateOut struct {
+	DHkJmol            float64  `json:"dh_kj_mol"`
+	DSJmolK            float64  `json:"ds_j_mol_k"`
+	DHUncertaintyKJmol float64  `json:"dh_uncertainty_kj_mol"`
+	DSUncertaintyJmolK float64  `json:"ds_uncertainty_j_mol_k"`
+	Method             string   `json:"method"`
+	ParentRingSystem   string   `json:"parent_ring_system"`
+	FFCorrectionKJmol  *float64 `json:"forcefield_correction_kj_mol"`
+	// Class is the calibration class and Calibration how its uncertainty was obtained.
+	Class       string `json:"class,omitempty"`
+	Calibration string `json:"calibration,omitempty"`
+}
+
+// MeasuredOut is a published measurement of the exact structure (contract v1.1,
+// thermo.measured).
+type MeasuredOut struct {
+	DHkJmol float64  `json:"dh_kj_mol"`
+	DSJmolK *float64 `json:"ds_j_mol_k"`
+	Source  string   `json:"source"`
+	// Evidence is seen (read in the source) or derived (arithmetic on a seen value); Note says
+	// what the value is when it is not a plain van 't Hoff or calorimetric ΔH_p.
+	Evidence string `json:"evidence,omitempty"`
+	Note     string `json:"note,omitempty"`
+}
+
+// Extrapolation limits of a ceiling temperature (K): measured ROMP ceiling temperatures lie
+// between about 250 and 450 K (romp_thermo.csv T010–T032); outside 200–500 K a T_c is a formal
+// number (design choice).
+const (
+	ExtrapolatedBelowK = 200
+	ExtrapolatedAboveK = 500
+)
 
 // maxReportedConc caps [M]eq in output (mol/L): beyond it the monomer cannot polymerize at any
 // feasible concentration and the exact number has no meaning (design choice).
@@ -59,6 +105,7 @@ func Evaluate(dhkJ, dsJ float64, t units.TempK, c units.ConcMolL) Thermo {
 	if dh < 0 && sEff < 0 {
 		tc := dh / sEff
 		th.CeilingTempK = &tc
+		th.CeilingTempExtrapolated = tc < ExtrapolatedBelowK || tc > ExtrapolatedAboveK
 	}
 	lnM := dh/(units.GasConstant*T) - dsJ/units.GasConstant
 	switch {

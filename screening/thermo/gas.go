@@ -92,7 +92,11 @@ type strainTerm struct {
 // ringSystemsTerms returns the strain terms of every ring system in the extracted molecule sub:
 // a whole-system row when the table has one, else the sum of its cores (rings sharing three or
 // more atoms), each a row or a fallback.
-func (t *ringTable) ringSystemsTerms(sub *mol.Molecule, p *rings.Rings, trans bool) []strainTerm {
+//
+// trans marks a trans ring olefin between sub atoms olA and olB: the whole-system key carries
+// the marker for a single ring, and in a fused system the core holding the olefin carries it
+// (so that a trans-cyclooctene fused to another ring is looked up as trans-cyclooctene).
+func (t *ringTable) ringSystemsTerms(sub *mol.Molecule, p *rings.Rings, trans bool, olA, olB int) []strainTerm {
 	_, systems := rings.Systems(p.SSSR)
 	var terms []strainTerm
 	for _, sys := range systems {
@@ -113,7 +117,7 @@ func (t *ringTable) ringSystemsTerms(sub *mol.Molecule, p *rings.Rings, trans bo
 				done[c] = true
 			}
 			catoms := rings.Atoms(p.SSSR, core)
-			ckey := systemKey(sub, catoms, -1, false)
+			ckey := systemKey(sub, catoms, -1, trans && containsBoth(catoms, olA, olB))
 			if row, ok := t.byKey[ckey]; ok {
 				terms = append(terms, strainTerm{Key: ckey, Name: row.Name, H: row.RSCH, S: row.RSCS, UH: row.UH, US: row.US, Hit: true, Row: row})
 				continue
@@ -206,6 +210,11 @@ func (t *ringTable) fallback(sub *mol.Molecule, p *rings.Rings, core []int, key 
 	return term
 }
 
+func containsBoth(sorted []int, a, b int) bool {
+	i, j := sort.SearchInts(sorted, a), sort.SearchInts(sorted, b)
+	return i < len(sorted) && sorted[i] == a && j < len(sorted) && sorted[j] == b
+}
+
 func seq(n int) []int {
 	out := make([]int, n)
 	for i := range out {
@@ -295,8 +304,9 @@ func (t *ringTable) gasEstimateSig(m *mol.Molecule, systemAtoms []int, bi int, t
 func (t *ringTable) gasEstimateUncached(m *mol.Molecule, systemAtoms []int, bi int, trans bool) GasEstimate {
 	subM, rM := extract(m, systemAtoms, -1)
 	subS, rS := extract(m, systemAtoms, bi)
-	mono := t.ringSystemsTerms(subM, rM, trans)
-	surv := t.ringSystemsTerms(subS, rS, false)
+	la, lb := sort.SearchInts(systemAtoms, m.Bonds[bi].A), sort.SearchInts(systemAtoms, m.Bonds[bi].B)
+	mono := t.ringSystemsTerms(subM, rM, trans, la, lb)
+	surv := t.ringSystemsTerms(subS, rS, false, -1, -1)
 	var g GasEstimate
 	if len(mono) == 1 && mono[0].Hit {
 		g.Row = mono[0].Row

@@ -8,6 +8,7 @@ import (
 	"encoding/csv"
 	"fmt"
 	"math"
+	"ringsieve/screening/canon"
 	"sort"
 	"strconv"
 	"strings"
@@ -35,7 +36,7 @@ import (
 // offsets δH, δS the mean residuals over the measured values in data/condensed_fit.csv (their
 // sources are on each row); fitOffsets recomputes them and the tests check the result.
 
-//go:embed data/ring_table.csv data/condensed_fit.csv
+//go:embed data/ring_table.csv data/condensed_fit.csv data/measured.csv data/ff_measured.csv
 var dataFS embed.FS
 
 // RingRow is one row of the ring-system strain table.
@@ -56,6 +57,8 @@ type RingRow struct {
 	Note     string
 	Key      string
 	Rings    int // rings in the row's system
+
+	constKey string // constitution key of the row's SMILES (to leave its own measurement out)
 }
 
 type ringTable struct {
@@ -65,6 +68,9 @@ type ringTable struct {
 	OffsetH, OffsetHU float64
 	OffsetS, OffsetSU float64
 	fitRows           []FitRow
+
+	offMu    sync.Mutex
+	offCache map[string][4]float64 // offsets refitted without one constitution's rows
 }
 
 // FitRow is one measured value of data/condensed_fit.csv with the estimator's gas-phase value.
@@ -73,6 +79,8 @@ type FitRow struct {
 	DHMeasured               float64
 	DSMeasured               *float64
 	DHGas, DSGas             float64
+
+	constKey string
 }
 
 var (
@@ -189,6 +197,7 @@ func loadTable() (*ringTable, error) {
 		}
 		sort.Ints(list)
 		row.Key = systemKey(m, list, -1, row.Trans)
+		row.constKey = canon.SkeletonKey(m, p, seq(len(m.Atoms)), -1)
 		row.Rings = len(p.SSSR)
 		if prev, dup := t.byKey[row.Key]; dup {
 			return nil, fmt.Errorf("ring_table.csv: %s and %s have the same skeleton key %s", prev.Name, row.Name, row.Key)
@@ -232,6 +241,7 @@ func (t *ringTable) fit() error {
 			return fmt.Errorf("condensed_fit.csv %s: %w", fr.ID, err)
 		}
 		fr.DHGas, fr.DSGas = gh, gs
+		fr.constKey = keyOfSMILES(fr.SMILES)
 		rh = append(rh, dh-gh)
 		if ds != nil && fr.Kind == "romp" {
 			rs = append(rs, *ds-gs)

@@ -47,15 +47,40 @@ func (c CatalystClass) Describe() string {
 	return string(c)
 }
 
+// ThermoMethod selects how ΔH_p is estimated (contract v1.1, conditions.thermo_method).
+type ThermoMethod string
+
+// Thermodynamics methods: auto adds the force-field difference from the parent ring system
+// wherever the structure differs from that parent; table is the fast ring-table tier alone;
+// forcefield always adds the force-field difference.
+const (
+	ThermoAuto       ThermoMethod = "auto"
+	ThermoTable      ThermoMethod = "table"
+	ThermoForceField ThermoMethod = "forcefield"
+)
+
+// ParseThermoMethod validates a method name ("" is auto).
+func ParseThermoMethod(s string) (ThermoMethod, error) {
+	switch ThermoMethod(s) {
+	case "", ThermoAuto:
+		return ThermoAuto, nil
+	case ThermoTable, ThermoForceField:
+		return ThermoMethod(s), nil
+	}
+	return "", FieldErr("thermo_method", "unknown thermodynamics method %q (auto, table or forcefield)", s)
+}
+
 // Conditions are the reaction conditions of one screening.
 type Conditions struct {
 	Temp     TempK
 	Conc     ConcMolL // initial monomer concentration; for Bulk, the estimated neat concentration
 	Bulk     bool     // neat monomer: Conc comes from an estimated liquid density
 	Catalyst CatalystClass
+	// ThermoMethod is how ΔH_p is estimated (ThermoAuto when empty).
+	ThermoMethod ThermoMethod
 }
 
-// DefaultConditions are the contract's defaults: 25 °C, 1.0 mol/L, ru-nhc.
+// DefaultConditions are the contract's defaults: 25 °C, 1.0 mol/L, ru-nhc, thermodynamics auto.
 func DefaultConditions() Conditions {
-	return Conditions{Temp: TempK(25 + ZeroCelsiusK), Conc: 1.0, Catalyst: CatRuNHC}
+	return Conditions{Temp: TempK(25 + ZeroCelsiusK), Conc: 1.0, Catalyst: CatRuNHC, ThermoMethod: ThermoAuto}
 }
