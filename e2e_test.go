@@ -7,6 +7,7 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"math"
 	"mime/multipart"
 	"net/http"
 	"os"
@@ -373,5 +374,36 @@ func TestCLIScreenAndSubmit(t *testing.T) {
 	b, _ := os.ReadFile(resPath)
 	if !strings.HasPrefix(string(b), "rank,id,") || strings.Count(string(b), "\n") != 4 {
 		t.Fatalf("submit output:\n%s", b)
+	}
+}
+
+// TestCLIPlan: `ringsieve plan` (contract v1.1) gives the plan of POST /v1/plan offline: DP,
+// [M]0/[I]0, the solution volume (10 g of cyclopentene, 68.12 g/mol, at 3.0 mol/L: 48.93 mL —
+// arithmetic) and the heat sink.
+func TestCLIPlan(t *testing.T) {
+	if testing.Short() {
+		t.Skip("end-to-end")
+	}
+	out, err := exec.Command(binPath, "plan", "--format", "json", "--dp", "200", "--temp-c", "0", "--conc-mol-l", "3",
+		"--catalyst", "mo-w-imido", "--monomer-mass-g", "10", "C1=CCCC1").Output()
+	if err != nil {
+		t.Fatal(err)
+	}
+	var p struct {
+		DP     float64 `json:"dp"`
+		Ratio  float64 `json:"monomer_to_initiator"`
+		Hazard struct {
+			Volume   float64 `json:"solvent_volume_ml"`
+			HeatSink string  `json:"heat_sink"`
+		} `json:"hazard"`
+	}
+	if err := json.Unmarshal(out, &p); err != nil {
+		t.Fatal(err)
+	}
+	if p.DP != 200 || p.Ratio <= 200 || math.Abs(p.Hazard.Volume-48.93) > 0.05 || !strings.Contains(p.Hazard.HeatSink, "toluene") {
+		t.Errorf("plan: %+v", p)
+	}
+	if out, err := exec.Command(binPath, "plan", "C1=CCCC1").CombinedOutput(); err == nil {
+		t.Errorf("plan without a target succeeded: %s", out)
 	}
 }

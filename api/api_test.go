@@ -122,6 +122,16 @@ func TestScreenEndpoint(t *testing.T) {
 	if out["verdict"] != "unfavorable" {
 		t.Errorf("cyclopentene at 1 mol/L, 25 °C: %v", out["verdict"])
 	}
+	// a blank SMILES beside a descriptor record screens the record (same numbers as above)
+	r = do(t, ts, "POST", "/v1/screen", `{"smiles":" ","descriptors":{"ring_size":5,"ring_system":"monocyclic","dh_kj_mol":-18.4,"ds_j_mol_k":-62.3}}`)
+	if r.status != 200 {
+		t.Fatalf("blank SMILES with descriptors: %d %s", r.status, r.body)
+	}
+	out = nil
+	r.json(t, &out)
+	if out["verdict"] != "unfavorable" {
+		t.Errorf("blank SMILES with descriptors: %v", out["verdict"])
+	}
 }
 
 func TestProblemResponses(t *testing.T) {
@@ -322,24 +332,12 @@ func TestJobsJSONUploadIdempotencyAndFormats(t *testing.T) {
 	}
 
 	// file upload: CSV with an extra column, one bad row
-	var buf bytes.Buffer
-	w := multipart.NewWriter(&buf)
-	w.WriteField("temperature_c", "60")
-	w.WriteField("catalyst", "ru-pyridine")
-	fw, _ := w.CreateFormFile("file", "list.csv")
-	io.WriteString(fw, "id,smiles,batch\nm1,C1=CC2CCC1C2,A\nm2,,B\nm3,C1=CCCC=CCC1,C\n")
-	w.Close()
-	req, _ := http.NewRequest("POST", ts.URL+"/v1/jobs", &buf)
-	req.Header.Set("Content-Type", w.FormDataContentType())
-	res2, err := http.DefaultClient.Do(req)
-	if err != nil {
-		t.Fatal(err)
-	}
+	res2 := upload(t, ts, "list.csv", "id,smiles,batch\nm1,C1=CC2CCC1C2,A\nm2,,B\nm3,C1=CCCC=CCC1,C\n",
+		"temperature_c", "60", "catalyst", "ru-pyridine")
 	var created JobCreated
-	json.NewDecoder(res2.Body).Decode(&created)
-	res2.Body.Close()
-	if res2.StatusCode != 202 || created.Total != 2 || len(created.InputErrors) != 1 || created.InputErrors[0].Line != 3 {
-		t.Fatalf("upload: %d %+v", res2.StatusCode, created)
+	res2.json(t, &created)
+	if res2.status != 202 || created.Total != 2 || len(created.InputErrors) != 1 || created.InputErrors[0].Line != 3 {
+		t.Fatalf("upload: %d %+v", res2.status, created)
 	}
 	if st := waitJob(t, ts, created.ID); st.SourceFormat != "csv" || len(st.ExtraColumns) != 1 || st.ExtraColumns[0] != "batch" {
 		t.Errorf("upload recorded format %q and columns %v", st.SourceFormat, st.ExtraColumns)
@@ -513,4 +511,53 @@ func TestThermoMethodCondition(t *testing.T) {
 	if r.status != 422 || !strings.Contains(string(r.body), `"conditions.thermo_method"`) {
 		t.Errorf("unknown method: %d %s", r.status, r.body)
 	}
+}
+
+// TestUploadUnknownFieldIs422: a misspelled condition in a job upload ("catalist") is a 422
+// naming the field, not a job run silently at the default.
+func TestUploadUnknownFieldIs422(t *testing.T) {
+	ts, _ := newTestServer(t, Config{})
+	for _, field := range []string{"catalist", "temperature"} {
+		r := upload(t, ts, "list.smi", "C1=CC2CCC1C2 a\n", field, "ru-nhc")
+		if r.status != 422 || !strings.Contains(string(r.body), `"field":"`+field+`"`) {
+			t.Errorf("%s: %d %s", field, r.status, r.body)
+		}
+	}
+	// correctly spelled fields are the job's effective conditions, shown on the job
+	up := upload(t, ts, "list.smi", "C1=CC2CCC1C2 a\n", "catalyst", "mo-w-imido", "temperature_c", "40")
+	var job struct {
+		ID         string         `json:"id"`
+		Conditions map[string]any `json:"conditions"`
+	}
+	if up.status != 202 || json.Unmarshal(up.body, &job) != nil {
+		t.Fatalf("upload: %d %s", up.status, up.body)
+	}
+	r := do(t, ts, "GET", "/v1/jobs/"+job.ID, "")
+	job.Conditions = nil
+	r.json(t, &job)
+	if job.Conditions["catalyst"] != "mo-w-imido" || job.Conditions["temperature_c"] != 40.0 || job.Conditions["thermo_method"] != "auto" {
+		t.Errorf("effective conditions of the upload: %d %v", r.status, job.Conditions)
+	}
+}
+
+// upload posts a multipart job upload: form fields in order (name, value pairs), then the file.
+func upload(t *testing.T, ts *httptest.Server, file, content string, fields ...string) resp {
+	t.Helper()
+	var buf bytes.Buffer
+	w := multipart.NewWriter(&buf)
+	for i := 0; i+1 < len(fields); i += 2 {
+		w.WriteField(fields[i], fields[i+1])
+	}
+	fw, _ := w.CreateFormFile("file", file)
+	io.WriteString(fw, content)
+	w.Close()
+	req, _ := http.NewRequest("POST", ts.URL+"/v1/jobs", &buf)
+	req.Header.Set("Content-Type", w.FormDataContentType())
+	res, err := http.DefaultClient.Do(req)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer res.Body.Close()
+	b, _ := io.ReadAll(res.Body)
+	return resp{status: res.StatusCode, body: b}
 }

@@ -162,6 +162,10 @@ func (s *Server) storeUpload(ctx context.Context, body []byte, boundary string) 
 			files++
 			continue
 		}
+		if !uploadFields[part.FormName()] {
+			return batch.Job{}, nil, &screening.FieldError{Field: part.FormName(),
+				Msg: fmt.Sprintf("unknown form field %q (known: file, format, id_field, temperature_c, temperature_k, monomer_conc_mol_l, bulk, catalyst, thermo_method)", part.FormName())}
+		}
 		b, err := io.ReadAll(io.LimitReader(part, 4096))
 		if err != nil {
 			return batch.Job{}, nil, badRequest(errMalformed, "", "malformed multipart body: "+err.Error())
@@ -211,6 +215,11 @@ func (s *Server) storeUpload(ctx context.Context, body []byte, boundary string) 
 	}
 	return job, in.Errors, nil
 }
+
+// uploadFields are the form fields a job upload may carry; any other is a 422 naming it (a
+// misspelled condition must not run silently at the default).
+var uploadFields = map[string]bool{"format": true, "id_field": true, "temperature_c": true, "temperature_k": true,
+	"monomer_conc_mol_l": true, "bulk": true, "catalyst": true, "thermo_method": true}
 
 // uploadConditions reads the conditions of a multipart upload from its form fields.
 func uploadConditions(vals map[string]string) (screening.Conditions, error) {
@@ -366,6 +375,10 @@ func keepsItem(f batch.ResultFilter, it data.RankedItem) (bool, error) {
 //	@Failure		422		{object}	Problem
 //	@Router			/v1/jobs/{id}/results [get]
 func (s *Server) jobResults(c *gin.Context) {
+	if err := onlyQuery(c, "format", "limit", "offset", "verdict", "compatible_with", "min_ceiling_c"); err != nil {
+		fail(c, err)
+		return
+	}
 	ctx := c.Request.Context()
 	j, err := s.store.GetJob(ctx, c.Param("id"))
 	if err != nil {

@@ -21,6 +21,9 @@ type MonomerIn struct {
 	SMILES      string                 `json:"smiles,omitempty" example:"CN1C(=O)C2C3C=CC(C3)C2C1=O"`
 	Descriptors *screening.Descriptors `json:"descriptors,omitempty"`
 	Tags        []string               `json:"tags,omitempty" example:"membrane,round-3"`
+	// AllowDuplicate stores the monomer even when another stored monomer has the same structure
+	// (otherwise 409 naming it).
+	AllowDuplicate bool `json:"allow_duplicate,omitempty"`
 }
 
 const (
@@ -63,7 +66,7 @@ func (in *MonomerIn) validate() (data.Monomer, error) {
 			return data.Monomer{}, &screening.FieldError{Field: fmt.Sprintf("tags[%d]", i), Msg: fmt.Sprintf("at most %d characters, no control characters", maxTagLen)}
 		}
 	}
-	return data.Monomer{Name: in.Name, SMILES: in.SMILES, Descriptors: desc, Tags: in.Tags}, nil
+	return data.Monomer{Name: in.Name, SMILES: in.SMILES, Descriptors: desc, Tags: in.Tags, AllowDuplicate: in.AllowDuplicate}, nil
 }
 
 func etag(m data.Monomer) string { return fmt.Sprintf(`"%s-v%d"`, m.ID, m.Version) }
@@ -77,6 +80,7 @@ func etag(m data.Monomer) string { return fmt.Sprintf(`"%s-v%d"`, m.ID, m.Versio
 //	@Param		request	body		MonomerIn	true	"name, SMILES and/or descriptor record, tags"
 //	@Success	201		{object}	data.Monomer
 //	@Failure	400		{object}	Problem
+//	@Failure	409		{object}	Problem
 //	@Failure	422		{object}	Problem
 //	@Router		/v1/monomers [post]
 func (s *Server) createMonomer(c *gin.Context) {
@@ -113,6 +117,24 @@ func intQuery(c *gin.Context, name string, def, lo, hi int) (int, error) {
 		return 0, &screening.FieldError{Field: name, Msg: fmt.Sprintf("must be an integer from %d to %d", lo, hi)}
 	}
 	return n, nil
+}
+
+// onlyQuery refuses query parameters other than the ones named (a misspelled filter must not be
+// ignored silently): 400 naming the parameter.
+func onlyQuery(c *gin.Context, allowed ...string) error {
+	for k := range c.Request.URL.Query() {
+		ok := false
+		for _, a := range allowed {
+			if k == a {
+				ok = true
+				break
+			}
+		}
+		if !ok {
+			return badRequest(errMalformed, k, fmt.Sprintf("unknown query parameter %q (known: %s)", k, strings.Join(allowed, ", ")))
+		}
+	}
+	return nil
 }
 
 // pageQuery reads limit (1..max, default def) and offset (≥ 0).
@@ -152,6 +174,10 @@ func bindMonomer(c *gin.Context) (data.Monomer, bool) {
 //	@Failure	422		{object}	Problem
 //	@Router		/v1/monomers [get]
 func (s *Server) listMonomers(c *gin.Context) {
+	if err := onlyQuery(c, "tag", "name", "limit", "offset"); err != nil {
+		fail(c, err)
+		return
+	}
 	limit, offset, err := pageQuery(c, 50, 500)
 	if err != nil {
 		fail(c, err)
@@ -272,6 +298,10 @@ type ResultHistory struct {
 //	@Failure	404		{object}	Problem
 //	@Router		/v1/monomers/{id}/results [get]
 func (s *Server) monomerResults(c *gin.Context) {
+	if err := onlyQuery(c, "limit"); err != nil {
+		fail(c, err)
+		return
+	}
 	limit, err := intQuery(c, "limit", 50, 1, 500)
 	if err != nil {
 		fail(c, err)

@@ -75,6 +75,7 @@ var errorMap = []struct {
 	{data.ErrNotFound, http.StatusNotFound, "not-found", "Not found"},
 	{errNotFoundPath, http.StatusNotFound, "not-found", "Not found"},
 	{data.ErrConflict, http.StatusPreconditionFailed, "version-conflict", "Version conflict"},
+	{data.ErrDuplicate, http.StatusConflict, "duplicate-structure", "Structure already stored"},
 	{data.ErrIdempotencyMismatch, http.StatusUnprocessableEntity, "idempotency-key-reused", "Idempotency key reused"},
 	{errPrecondition, http.StatusPreconditionFailed, "precondition-failed", "Precondition failed"},
 	{errUnauthorized, http.StatusUnauthorized, "unauthorized", "Unauthorized"},

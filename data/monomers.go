@@ -26,6 +26,50 @@ type Monomer struct {
 	Version     int             `json:"version"`
 	CreatedAt   time.Time       `json:"created_at"`
 	UpdatedAt   time.Time       `json:"updated_at"`
+	// AllowDuplicate stores the monomer even when another holds the same structure.
+	AllowDuplicate bool `json:"-"`
+}
+
+// ErrDuplicate matches a monomer whose structure another stored monomer already has.
+var ErrDuplicate = errors.New("the same structure is already stored")
+
+// DuplicateError names the monomer that already holds the structure.
+type DuplicateError struct{ ExistingID, ExistingName string }
+
+func (e *DuplicateError) Error() string {
+	return fmt.Sprintf("the same structure is already stored as %s (%q); send allow_duplicate: true to store it again", e.ExistingID, e.ExistingName)
+}
+
+// Is makes every DuplicateError match ErrDuplicate.
+func (e *DuplicateError) Is(target error) bool { return target == ErrDuplicate }
+
+// structureKey is the canonical key of a monomer's SMILES ("" for a descriptor record or a
+// SMILES that does not parse, which validation has refused before).
+func structureKey(smi string) string {
+	if smi == "" {
+		return ""
+	}
+	k, err := screening.StructureKey(smi)
+	if err != nil {
+		return ""
+	}
+	return k
+}
+
+// checkDuplicate refuses a structure another monomer (not except) already holds.
+func (s *Store) checkDuplicate(ctx context.Context, tx *sql.Tx, key, except string) error {
+	if key == "" {
+		return nil
+	}
+	var id, name string
+	err := s.queryRow(ctx, tx, `SELECT id, name FROM monomers WHERE structure_key = ? AND id <> ? ORDER BY created_at LIMIT 1`, key, except).Scan(&id, &name)
+	if errors.Is(err, sql.ErrNoRows) {
+		return nil
+	}
+	if err != nil {
+		return err
+	}
+	return &DuplicateError{ExistingID: id, ExistingName: name}
 }
 
 func normTags(tags []string) []string {
@@ -55,9 +99,15 @@ func (s *Store) CreateMonomer(ctx context.Context, m Monomer) (Monomer, error) {
 	m.Tags = normTags(m.Tags)
 	m.Version = 1
 	ts := now()
+	key := structureKey(m.SMILES)
 	err := s.tx(ctx, func(tx *sql.Tx) error {
-		if _, err := s.exec(ctx, tx, `INSERT INTO monomers (id, name, smiles, descriptors, version, created_at, updated_at) VALUES (?, ?, ?, ?, 1, ?, ?)`,
-			m.ID, m.Name, m.SMILES, descText(m.Descriptors), ts, ts); err != nil {
+		if !m.AllowDuplicate {
+			if err := s.checkDuplicate(ctx, tx, key, ""); err != nil {
+				return err
+			}
+		}
+		if _, err := s.exec(ctx, tx, `INSERT INTO monomers (id, name, smiles, descriptors, version, created_at, updated_at, structure_key) VALUES (?, ?, ?, ?, 1, ?, ?, ?)`,
+			m.ID, m.Name, m.SMILES, descText(m.Descriptors), ts, ts, key); err != nil {
 			return err
 		}
 		if err := s.insertTags(ctx, tx, m.ID, m.Tags); err != nil {
@@ -182,8 +232,14 @@ func (s *Store) ReplaceMonomer(ctx context.Context, id string, m Monomer, ifVers
 		if ifVersion > 0 && ver != ifVersion {
 			return fmt.Errorf("monomer %q is at version %d, not %d: %w", id, ver, ifVersion, ErrConflict)
 		}
-		if _, err := s.exec(ctx, tx, `UPDATE monomers SET name = ?, smiles = ?, descriptors = ?, version = version + 1, updated_at = ? WHERE id = ?`,
-			m.Name, m.SMILES, descText(m.Descriptors), ts, id); err != nil {
+		key := structureKey(m.SMILES)
+		if !m.AllowDuplicate {
+			if err := s.checkDuplicate(ctx, tx, key, id); err != nil {
+				return err
+			}
+		}
+		if _, err := s.exec(ctx, tx, `UPDATE monomers SET name = ?, smiles = ?, descriptors = ?, version = version + 1, updated_at = ?, structure_key = ? WHERE id = ?`,
+			m.Name, m.SMILES, descText(m.Descriptors), ts, key, id); err != nil {
 			return err
 		}
 		if _, err := s.exec(ctx, tx, `DELETE FROM monomer_tags WHERE monomer_id = ?`, id); err != nil {
@@ -229,21 +285,23 @@ type SavedResult struct {
 	Result        json.RawMessage `json:"result" swaggertype:"object"`
 	EngineVersion string          `json:"engine_version"`
 	CreatedAt     time.Time       `json:"created_at"`
+	// MonomerVersion and MonomerSMILES are the monomer as it was screened.
+	MonomerVersion int    `json:"monomer_version"`
+	MonomerSMILES  string `json:"monomer_smiles,omitempty"`
 }
 
 // SaveResult stores a result for monomer r.MonomerID (ErrNotFound when it does not exist).
 func (s *Store) SaveResult(ctx context.Context, r SavedResult) (SavedResult, error) {
 	ts := now()
 	err := s.tx(ctx, func(tx *sql.Tx) error {
-		var one int
-		if err := s.queryRow(ctx, tx, `SELECT 1 FROM monomers WHERE id = ?`, r.MonomerID).Scan(&one); err != nil {
+		if err := s.queryRow(ctx, tx, `SELECT version, smiles FROM monomers WHERE id = ?`, r.MonomerID).Scan(&r.MonomerVersion, &r.MonomerSMILES); err != nil {
 			if errors.Is(err, sql.ErrNoRows) {
 				return fmt.Errorf("monomer %q: %w", r.MonomerID, ErrNotFound)
 			}
 			return err
 		}
-		if err := s.queryRow(ctx, tx, `INSERT INTO results (monomer_id, conditions, verdict, score, result, engine_version, created_at) VALUES (?, ?, ?, ?, ?, ?, ?) RETURNING id`,
-			r.MonomerID, string(r.Conditions), r.Verdict, r.Score, string(r.Result), r.EngineVersion, ts).Scan(&r.ID); err != nil {
+		if err := s.queryRow(ctx, tx, `INSERT INTO results (monomer_id, conditions, verdict, score, result, engine_version, created_at, monomer_version, monomer_smiles) VALUES (?, ?, ?, ?, ?, ?, ?, ?, ?) RETURNING id`,
+			r.MonomerID, string(r.Conditions), r.Verdict, r.Score, string(r.Result), r.EngineVersion, ts, r.MonomerVersion, r.MonomerSMILES).Scan(&r.ID); err != nil {
 			return err
 		}
 		return s.claimIdempotency(ctx, tx, fmt.Sprintf("result:%d", r.ID))
@@ -261,7 +319,7 @@ func (s *Store) ListResults(ctx context.Context, monomerID string, limit int) ([
 	if _, err := s.GetMonomer(ctx, monomerID); err != nil {
 		return nil, err
 	}
-	rows, err := s.db.QueryContext(ctx, s.q(`SELECT id, monomer_id, conditions, verdict, score, result, engine_version, created_at FROM results WHERE monomer_id = ? ORDER BY id DESC LIMIT ?`), monomerID, limit)
+	rows, err := s.db.QueryContext(ctx, s.q(`SELECT id, monomer_id, conditions, verdict, score, result, engine_version, created_at, monomer_version, monomer_smiles FROM results WHERE monomer_id = ? ORDER BY id DESC LIMIT ?`), monomerID, limit)
 	if err != nil {
 		return nil, fmt.Errorf("list results: %w", err)
 	}
@@ -270,7 +328,7 @@ func (s *Store) ListResults(ctx context.Context, monomerID string, limit int) ([
 	for rows.Next() {
 		var r SavedResult
 		var cond, res, created string
-		if err := rows.Scan(&r.ID, &r.MonomerID, &cond, &r.Verdict, &r.Score, &res, &r.EngineVersion, &created); err != nil {
+		if err := rows.Scan(&r.ID, &r.MonomerID, &cond, &r.Verdict, &r.Score, &res, &r.EngineVersion, &created, &r.MonomerVersion, &r.MonomerSMILES); err != nil {
 			return nil, fmt.Errorf("list results: %w", err)
 		}
 		r.Conditions, r.Result, r.CreatedAt = json.RawMessage(cond), json.RawMessage(res), parseTime(created)

@@ -74,6 +74,7 @@ func createPrivate(path string) error {
 func (s *Store) migrate(ctx context.Context, d goose.Dialect, fsys fs.FS) error {
 	prov, err := goose.NewProvider(d, s.db, fsys, goose.WithGoMigrations(
 		goose.NewGoMigration(4, &goose.GoFunc{RunTx: s.moveLegacyJobResults}, nil),
+		goose.NewGoMigration(7, &goose.GoFunc{RunTx: s.backfillStructureKeys}, nil),
 	))
 	if err != nil {
 		return fmt.Errorf("migrations: %w", err)

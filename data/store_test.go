@@ -98,7 +98,7 @@ func TestListMonomersFilterAndPage(t *testing.T) {
 		if i%2 == 0 {
 			tags = append(tags, "even")
 		}
-		if _, err := s.CreateMonomer(ctx, Monomer{Name: name, SMILES: "C1=CCCC1", Tags: tags}); err != nil {
+		if _, err := s.CreateMonomer(ctx, Monomer{Name: name, SMILES: "C1=CCCC1", Tags: tags, AllowDuplicate: true}); err != nil {
 			t.Fatal(err)
 		}
 	}
@@ -353,7 +353,7 @@ func TestIdempotencyInTheWriteTransaction(t *testing.T) {
 	if err != nil || r.Status != 0 || r.Resource != m.ID {
 		t.Fatalf("record after the write (no response yet): %+v %v", r, err)
 	}
-	if _, err := s.CreateMonomer(ctx, Monomer{Name: "MEM-01 again", SMILES: "C1=CC2CCC1C2"}); !errors.Is(err, ErrIdempotencyInFlight) {
+	if _, err := s.CreateMonomer(ctx, Monomer{Name: "MEM-01 again", SMILES: "C1=CC2CCC1C2", AllowDuplicate: true}); !errors.Is(err, ErrIdempotencyInFlight) {
 		t.Fatalf("second write under one key: %v", err)
 	}
 	_, total, _ := s.ListMonomers(context.Background(), MonomerFilter{Limit: 10})
@@ -371,7 +371,7 @@ func TestConcurrentWrites(t *testing.T) {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			_, err := s.CreateMonomer(ctx, Monomer{Name: "c", SMILES: "C1=CCCC1", Tags: []string{"t"}})
+			_, err := s.CreateMonomer(ctx, Monomer{Name: "c", SMILES: "C1=CCCC1", Tags: []string{"t"}, AllowDuplicate: true})
 			errs <- err
 		}()
 	}
@@ -398,5 +398,39 @@ func TestPathWithURICharacters(t *testing.T) {
 	s.Close()
 	if _, err := os.Stat(path); err != nil {
 		t.Fatalf("database not at %s: %v", path, err)
+	}
+}
+
+// TestDuplicateStructureReported: a second monomer with the same structure written another way
+// is refused with the first one's id (canonical match), unless allowed; a stereoisomer is not a
+// duplicate; results carry the monomer's version and SMILES.
+func TestDuplicateStructureReported(t *testing.T) {
+	s, _ := openTemp(t)
+	ctx := context.Background()
+	a, err := s.CreateMonomer(ctx, Monomer{Name: "exo ester", SMILES: "O=C(OC)[C@@H]1C[C@@H]2C=C[C@H]1C2"})
+	if err != nil {
+		t.Fatal(err)
+	}
+	_, err = s.CreateMonomer(ctx, Monomer{Name: "same, written otherwise", SMILES: "COC(=O)[C@@H]1C[C@@H]2C=C[C@H]1C2"})
+	var de *DuplicateError
+	if !errors.As(err, &de) || de.ExistingID != a.ID {
+		t.Fatalf("duplicate not reported: %v", err)
+	}
+	if _, err := s.CreateMonomer(ctx, Monomer{Name: "endo ester", SMILES: "O=C(OC)[C@H]1C[C@@H]2C=C[C@H]1C2"}); err != nil {
+		t.Errorf("the endo isomer is not a duplicate of the exo one: %v", err)
+	}
+	// an amine and its ammonium salt are two structures (charges count in the key)
+	if _, err := s.CreateMonomer(ctx, Monomer{Name: "amine", SMILES: "NCC1CC2C=CC1C2"}); err != nil {
+		t.Fatal(err)
+	}
+	if _, err := s.CreateMonomer(ctx, Monomer{Name: "ammonium salt", SMILES: "[NH3+]CC1CC2C=CC1C2.[Cl-]"}); err != nil {
+		t.Errorf("the ammonium salt is not a duplicate of the amine: %v", err)
+	}
+	if _, err := s.CreateMonomer(ctx, Monomer{Name: "kept on purpose", SMILES: "COC(=O)[C@@H]1C[C@@H]2C=C[C@H]1C2", AllowDuplicate: true}); err != nil {
+		t.Errorf("allow_duplicate: %v", err)
+	}
+	r, err := s.SaveResult(ctx, SavedResult{MonomerID: a.ID, Conditions: json.RawMessage(`{}`), Verdict: "polymerizes", Result: json.RawMessage(`{}`), EngineVersion: "x"})
+	if err != nil || r.MonomerVersion != 1 || r.MonomerSMILES != a.SMILES {
+		t.Errorf("saved result: %+v %v", r, err)
 	}
 }

@@ -9,6 +9,7 @@ import (
 	"context"
 	"errors"
 	"fmt"
+	"math"
 	"sort"
 	"strings"
 	"time"
@@ -45,6 +46,17 @@ var (
 	ErrSMILES  = smiles.ErrSMILES
 	ErrInvalid = units.ErrInvalid
 )
+
+// StructureKey is the canonical key of a SMILES's screened component: its constitution and,
+// when the SMILES specifies stereo, the stereo the descriptors see. Two SMILES of the same
+// structure give the same key. Errors are *SMILESError values.
+func StructureKey(text string) (string, error) {
+	s, err := describe.Describe(text)
+	if err != nil {
+		return "", err
+	}
+	return thermo.StructureKeyOf(s), nil
+}
 
 // Ceiling temperatures outside these bounds (K) are marked extrapolated.
 const (
@@ -189,11 +201,37 @@ func ScreenStructureContext(ctx context.Context, s *Structure, c Conditions) (Re
 	sort.SliceStable(cands, func(i, j int) bool { return judge.MoreReactive(&cands[i].r, &cands[j].r) })
 	best := cands[0].r
 	best.Descriptors.RingOlefins = len(cands)
+	// equivalent olefins (same ring, substitution, core and estimate) are listed once, counted
+	same := func(a, b cand) bool {
+		return a.o.Desc.RingSize == b.o.Desc.RingSize && a.o.Desc.OlefinSubstitution == b.o.Desc.OlefinSubstitution &&
+			a.o.Desc.CoreKey == b.o.Desc.CoreKey && a.r.Verdict == b.r.Verdict && math.Abs(a.e.DHkJmol-b.e.DHkJmol) < 0.01
+	}
+	equivalentToBest := 0
 	for _, x := range cands[1:] {
+		if same(x, cands[0]) {
+			equivalentToBest++
+			continue
+		}
+		merged := false
+		for k := range best.Descriptors.OtherRingOlefins {
+			o := &best.Descriptors.OtherRingOlefins[k]
+			if o.RingSize == x.o.Desc.RingSize && o.OlefinSubstitution == x.o.Desc.OlefinSubstitution && o.SkeletonKey == x.o.Desc.CoreKey &&
+				math.Abs(o.DHkJmol-describe.Round(x.e.DHkJmol, 2)) < 0.01 {
+				o.Count = max(o.Count, 1) + 1
+				merged = true
+				break
+			}
+		}
+		if merged {
+			continue
+		}
 		best.Descriptors.OtherRingOlefins = append(best.Descriptors.OtherRingOlefins, describe.OlefinSummary{
 			RingSize: x.o.Desc.RingSize, RingSystem: x.o.Desc.RingSystem, OlefinSubstitution: x.o.Desc.OlefinSubstitution,
 			SkeletonKey: x.o.Desc.CoreKey, DHkJmol: describe.Round(x.e.DHkJmol, 2), Note: "verdict for this olefin alone: " + x.r.Verdict,
 		})
+	}
+	if equivalentToBest > 0 {
+		best.Descriptors.EquivalentRingOlefins = equivalentToBest
 	}
 	best.Descriptors.RingOlefins += s.Skipped
 	if n := len(cands) + s.Skipped; n > 1 {

@@ -86,21 +86,25 @@ func sameSet(a, b []string) bool {
 }
 
 func TestSeveralRingOlefins(t *testing.T) {
+	// others: distinct other ring olefins listed; equivalent: olefins equivalent to the screened
+	// one, counted but not listed (COD's two C=C, norbornadiene's two, cyclooctatetraene's four)
 	for _, c := range []struct {
-		smiles   string
-		ringSize int
-		others   int
+		smiles             string
+		ringSize           int
+		others, equivalent int
 	}{
-		{"C1=CC2C(C1)C1C=CC2C1", 5, 1},
-		{"C1=CCCC=CCC1", 8, 1},
-		{"C1=CC2C=CC1C2", 5, 1},
+		{"C1=CC2C(C1)C1C=CC2C1", 5, 1, 0},
+		{"C1=CCCC=CCC1", 8, 0, 1},
+		{"C1=CC2C=CC1C2", 5, 0, 1},
+		{"C1=CC=CC=CC=C1", 8, 0, 3},
 	} {
 		r, err := ScreenSMILES(c.smiles, DefaultConditions())
 		if err != nil {
 			t.Fatal(err)
 		}
-		if r.Descriptors.RingSize != c.ringSize || len(r.Descriptors.OtherRingOlefins) != c.others {
-			t.Errorf("%s: ring %d with %d others, want %d with %d", c.smiles, r.Descriptors.RingSize, len(r.Descriptors.OtherRingOlefins), c.ringSize, c.others)
+		d := r.Descriptors
+		if d.RingSize != c.ringSize || len(d.OtherRingOlefins) != c.others || d.EquivalentRingOlefins != c.equivalent {
+			t.Errorf("%s: ring %d with %d others and %d equivalent, want %d with %d and %d", c.smiles, d.RingSize, len(d.OtherRingOlefins), d.EquivalentRingOlefins, c.ringSize, c.others, c.equivalent)
 		}
 	}
 	r, _ := ScreenSMILES("C1=CC2C(C1)C1C=CC2C1", DefaultConditions())

@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	. "ringsieve/screening"
+	"ringsieve/screening/thermo"
 	"ringsieve/screening/units"
 )
 
@@ -113,5 +114,27 @@ func TestCeilingTemperatureExtrapolated(t *testing.T) {
 	cp := screenWith(t, "C1=CCCC1", units.ThermoAuto, 0)
 	if cp.Thermo.CeilingTempExtrapolated {
 		t.Errorf("cyclopentene T_c %v flagged as extrapolated", *cp.Thermo.CeilingTempK)
+	}
+}
+
+// TestForceFieldIndependentOfWriting: the force-field strain difference of a structure does not
+// depend on how its SMILES was written or on what was computed before (an invariance, no
+// check value): four writings of 5-(aminomethyl)norbornene, each from a cold cache.
+func TestForceFieldIndependentOfWriting(t *testing.T) {
+	var first float64
+	for i, s := range []string{"NCC1CC2C=CC1C2", "C1=CC2CC1CC2CN", "NCC1CC2CC1C=C2", "C1C2C=CC1C(CN)C2"} {
+		thermo.ResetFFCache()
+		r, err := ScreenSMILES(s, DefaultConditions())
+		if err != nil {
+			t.Fatal(err)
+		}
+		if r.Thermo.Basis != "forcefield_difference" {
+			t.Fatalf("%s: basis %s", s, r.Thermo.Basis)
+		}
+		if i == 0 {
+			first = r.Thermo.DHkJmol
+		} else if r.Thermo.DHkJmol != first {
+			t.Errorf("%s: ΔH_p %.6f kJ/mol, first writing %.6f", s, r.Thermo.DHkJmol, first)
+		}
 	}
 }

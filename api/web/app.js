@@ -303,6 +303,17 @@
     summary.appendChild(el("strong", { class: "verdict v-" + r.verdict }, VERDICT_TEXT[r.verdict]));
     summary.appendChild(document.createTextNode(" — score " + fmt(r.score, 3) + (row.smiles ? " — " + row.smiles : "")));
     body.appendChild(summary);
+    // say first why a monomer is blocked or unfavorable, before any number
+    var why = (r.reasons || []).filter(function (x) { return x.effect === "blocks"; });
+    if (!why.length && r.verdict !== "polymerizes") why = (r.reasons || []).filter(function (x) { return x.effect === "penalizes"; });
+    if (why.length) {
+      var wb = el("div", { class: "why", id: "why" });
+      wb.appendChild(el("strong", null, r.verdict === "blocked" ? "Why it is blocked: " : "What holds it back: "));
+      var ul = el("ul");
+      why.forEach(function (x) { ul.appendChild(el("li", null, x.detail + (x.group ? " (" + x.group + ")" : ""))); });
+      wb.appendChild(ul);
+      body.appendChild(wb);
+    }
     if (t) {
       var tt = el("table", { class: "thermo" });
       [["ΔH_p", fmt(t.dh_kj_mol, 1) + " ± " + fmt(t.dh_uncertainty_kj_mol, 1) + " kJ/mol"],

@@ -51,7 +51,10 @@ type subgraph struct {
 	label []string    // atom label: element symbol, lower-case when aromatic
 }
 
-func newSubgraph(m *mol.Molecule, r *rings.Rings, atoms []int, skipBond int) *subgraph {
+// newSubgraph builds the subgraph of atoms (without bond skipBond when ≥ 0). With full, atom
+// labels carry charge, isotope and unusual hydrogen counts (whole structures); without, element
+// and aromaticity only (ring skeletons).
+func newSubgraph(m *mol.Molecule, r *rings.Rings, atoms []int, skipBond int, full bool) *subgraph {
 	g := &subgraph{atoms: append([]int(nil), atoms...), local: map[int]int{}}
 	sort.Ints(g.atoms)
 	for i, a := range g.atoms {
@@ -69,6 +72,9 @@ func newSubgraph(m *mol.Molecule, r *rings.Rings, atoms []int, skipBond int) *su
 		}
 		if r.AromaticAtom[a] {
 			sym = strings.ToLower(sym)
+		}
+		if full {
+			sym = fullLabel(m, a, sym)
 		}
 		g.label[i] = sym
 		for _, bi := range m.Neighbors(a) {
@@ -148,15 +154,30 @@ func (g *subgraph) canonicalKey() string {
 	if n > maxCanonAtoms {
 		return g.largeKey()
 	}
-	init := make([]string, n)
-	for i := 0; i < n; i++ {
+	key, _ := g.canonical()
+	return key
+}
+
+// initialLabels are the colours refinement starts from: element (aromatic in lower case), degree
+// and bond-order sum.
+func (g *subgraph) initialLabels() []string {
+	init := make([]string, len(g.atoms))
+	for i := range init {
 		sum := 0
 		for _, o := range g.ord[i] {
 			sum += o
 		}
 		init[i] = g.label[i] + "|" + strconv.Itoa(len(g.nbr[i])) + "|" + strconv.Itoa(sum)
 	}
+	return init
+}
+
+// canonical returns the canonical string and the complete ranking (per local atom) that wrote it.
+func (g *subgraph) canonical() (string, []int) {
+	n := len(g.atoms)
+	init := g.initialLabels()
 	best := ""
+	var bestRank []int
 	budget := canonBranchBudget
 	var search func(col []int)
 	search = func(col []int) {
@@ -168,7 +189,7 @@ func (g *subgraph) canonicalKey() string {
 			budget--
 			s := g.write(col)
 			if best == "" || s < best {
-				best = s
+				best, bestRank = s, col
 			}
 			return
 		}
@@ -199,7 +220,7 @@ func (g *subgraph) canonicalKey() string {
 		}
 	}
 	search(denseRanks(init))
-	return best
+	return best, bestRank
 }
 
 // write renders the subgraph as SMILES-like text from a complete ranking: depth-first from the
@@ -344,5 +365,74 @@ func (g *subgraph) orderBetween(a, b int) int {
 // leaving out one bond (skipBond >= 0), as used for the ring left after ring opening.
 // Aromaticity is read from r, the rings perceived on m.
 func SkeletonKey(m *mol.Molecule, r *rings.Rings, atoms []int, skipBond int) string {
-	return newSubgraph(m, r, atoms, skipBond).canonicalKey()
+	return newSubgraph(m, r, atoms, skipBond, false).canonicalKey()
+}
+
+// StructureKey is the canonical key of the atoms given as a whole structure: like SkeletonKey,
+// but an atom with a charge, an isotope or a hydrogen count other than its default valence gives
+// (OpenSMILES 3.1.5) is written in brackets with them, so that an amine and its ammonium salt,
+// or a carbon and a carbene centre, get different keys.
+func StructureKey(m *mol.Molecule, r *rings.Rings, atoms []int) string {
+	return newSubgraph(m, r, atoms, -1, true).canonicalKey()
+}
+
+// fullLabel writes atom a in brackets when its charge, isotope or hydrogen count is not what its
+// element symbol alone implies.
+func fullLabel(m *mol.Molecule, a int, sym string) string {
+	at := &m.Atoms[a]
+	h := m.TotalH(a)
+	if at.Charge == 0 && at.Isotope == 0 {
+		if e := mol.ElementByZ(at.Z); e != nil && len(e.Valences) > 0 {
+			v := m.BondOrderSum(a) - m.TotalH(a) + at.HCount // bonds to heavy atoms
+			for _, dv := range e.Valences {
+				if dv >= v {
+					if dv-v == h {
+						return sym
+					}
+					break
+				}
+			}
+		}
+	}
+	var b strings.Builder
+	b.WriteByte('[')
+	if at.Isotope != 0 {
+		b.WriteString(strconv.Itoa(at.Isotope))
+	}
+	b.WriteString(sym)
+	if h > 0 {
+		b.WriteString("H")
+		if h > 1 {
+			b.WriteString(strconv.Itoa(h))
+		}
+	}
+	switch {
+	case at.Charge > 0:
+		b.WriteString(strings.Repeat("+", at.Charge))
+	case at.Charge < 0:
+		b.WriteString(strings.Repeat("-", -at.Charge))
+	}
+	b.WriteByte(']')
+	return b.String()
+}
+
+// Order returns the atoms given in canonical order, the order in which StructureKey ranks them,
+// so that two writings of the same graph list corresponding atoms in the same places (atoms
+// related by a symmetry of the graph may trade places), and class, per listed atom, its colour
+// after refinement: atoms related by a symmetry always share a class. Subgraphs larger than the
+// canonical limit (64 atoms) come back in ascending index order with a nil class.
+func Order(m *mol.Molecule, r *rings.Rings, atoms []int) (order, class []int) {
+	g := newSubgraph(m, r, atoms, -1, true)
+	if len(g.atoms) == 0 || len(g.atoms) > maxCanonAtoms {
+		return g.atoms, nil
+	}
+	_, rank := g.canonical()
+	stable := g.refine(denseRanks(g.initialLabels()))
+	order = make([]int, len(g.atoms))
+	class = make([]int, len(g.atoms))
+	for i, a := range g.atoms {
+		order[rank[i]] = a
+		class[rank[i]] = stable[i]
+	}
+	return order, class
 }

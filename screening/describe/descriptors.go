@@ -33,6 +33,9 @@ type OlefinSummary struct {
 	SkeletonKey        string  `json:"skeleton_key,omitempty"`
 	DHkJmol            float64 `json:"dh_kj_mol"`
 	Note               string  `json:"note,omitempty"`
+	// Count is how many equivalent ring olefins this entry stands for (by symmetry: the four
+	// C=C of cyclooctatetraene are one entry with the screened one and count 3); 0 means 1.
+	Count int `json:"count,omitempty"`
 }
 
 // Descriptors is the ROMP descriptor record: what a caller may supply without a structure, and
@@ -62,19 +65,26 @@ type Descriptors struct {
 	FunctionalGroups        []string `json:"functional_groups,omitempty"`
 
 	// Derived from a structure only.
-	SMILES           string          `json:"smiles,omitempty"`
-	Formula          string          `json:"formula,omitempty"`
-	MolWeightGmol    float64         `json:"mol_weight_g_mol,omitempty"`
-	MonoisotopicMass float64         `json:"monoisotopic_mass,omitempty"`
-	HeavyAtoms       int             `json:"heavy_atoms,omitempty"`
-	RingCount        int             `json:"ring_count,omitempty"`
-	AromaticAtoms    int             `json:"aromatic_atoms,omitempty"`
-	RingSystemRings  int             `json:"ring_system_rings,omitempty"`
-	SkeletonKey      string          `json:"skeleton_key,omitempty"`
-	CoreKey          string          `json:"core_key,omitempty"`
-	RingOlefins      int             `json:"ring_olefins,omitempty"`
-	OtherRingOlefins []OlefinSummary `json:"other_ring_olefins,omitempty"`
-	CounterIons      []string        `json:"counter_ions,omitempty"`
+	SMILES        string  `json:"smiles,omitempty"`
+	Formula       string  `json:"formula,omitempty"`
+	MolWeightGmol float64 `json:"mol_weight_g_mol,omitempty"`
+	// RecordFormula and RecordMolWeightGmol describe the whole input as weighed (a salt with its
+	// counter-ions, a hydrate); Formula and MolWeightGmol the screened component (contract v1.1).
+	RecordFormula       string  `json:"record_formula,omitempty"`
+	RecordMolWeightGmol float64 `json:"record_mol_weight_g_mol,omitempty"`
+	MonoisotopicMass    float64 `json:"monoisotopic_mass,omitempty"`
+	HeavyAtoms          int     `json:"heavy_atoms,omitempty"`
+	RingCount           int     `json:"ring_count,omitempty"`
+	AromaticAtoms       int     `json:"aromatic_atoms,omitempty"`
+	RingSystemRings     int     `json:"ring_system_rings,omitempty"`
+	SkeletonKey         string  `json:"skeleton_key,omitempty"`
+	CoreKey             string  `json:"core_key,omitempty"`
+	// EquivalentRingOlefins counts the other ring olefins equivalent to the screened one (same
+	// ring, substitution and estimate), which are not listed again.
+	EquivalentRingOlefins int             `json:"equivalent_ring_olefins,omitempty"`
+	RingOlefins           int             `json:"ring_olefins,omitempty"`
+	OtherRingOlefins      []OlefinSummary `json:"other_ring_olefins,omitempty"`
+	CounterIons           []string        `json:"counter_ions,omitempty"`
 	// FromStructure marks a record derived from SMILES (set by the describer).
 	FromStructure bool `json:"from_structure,omitempty"`
 }

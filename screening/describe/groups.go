@@ -52,6 +52,8 @@ const (
 	FGPhosphite       = "phosphite"
 	FGBoronicEster    = "boronic_ester"
 	FGAromaticNHetero = "pyrrole_type_nh"
+	FGIsocyanide      = "isocyanide"
+	FGSulfonicAcid    = "sulfonic_acid"
 )
 
 // KnownFunctionalGroups lists every identifier the inventory can report; descriptor records may
@@ -62,7 +64,7 @@ var KnownFunctionalGroups = []string{
 	FGThiol, FGThioether, FGThioester, FGPhosphine, FGPhosphineBorane, FGSulfone, FGSulfonamide,
 	FGSulfoxide, FGHalide, FGSilylEther, FGVinylEther, FGTerminalOlefin, FGAcyclicOlefin, FGAlkyne,
 	FGCarbamate, FGEther, FGEpoxide, FGNitro, FGWater, FGCyclicEnolEther, FGPhosphite,
-	FGBoronicEster, FGAromaticNHetero,
+	FGBoronicEster, FGAromaticNHetero, FGIsocyanide, FGSulfonicAcid,
 }
 
 // IsKnownFunctionalGroup reports whether name is an identifier of the inventory.
@@ -140,6 +142,22 @@ func (g graph) isEWG(a int) bool {
 		return g.countDoubleTo(a, 8) >= 2
 	case 7:
 		return at.Charge == 1 && g.countDoubleTo(a, 8) > 0
+	}
+	return false
+}
+
+// isocyanideN reports the nitrogen of an isocyanide R–N⁺≡C⁻ (written as such or as R–N=C:).
+func (g graph) isocyanideN(a int) bool {
+	m := g.m
+	if m.Atoms[a].Z != 7 {
+		return false
+	}
+	for _, bi := range m.Neighbors(a) {
+		o := m.Other(bi, a)
+		b := m.Bonds[bi]
+		if m.Atoms[o].Z == 6 && m.Degree(o) == 1 && m.TotalH(o) == 0 && (b.Order == mol.BondTriple || (b.Order == mol.BondDouble && m.Atoms[o].Charge == 0 && m.Atoms[o].Bracket)) {
+			return true
+		}
 	}
 	return false
 }
@@ -284,7 +302,7 @@ func FunctionalGroups(m *mol.Molecule, r *rings.Rings, comp []int) []string {
 			for _, bi := range m.Neighbors(a) {
 				b := &m.Bonds[bi]
 				o := m.Other(bi, a)
-				if b.Order == mol.BondTriple && m.Atoms[o].Z == 7 {
+				if b.Order == mol.BondTriple && m.Atoms[o].Z == 7 && !g.isocyanideN(o) {
 					found.add(FGNitrile)
 				}
 				if b.Order == mol.BondTriple && m.Atoms[o].Z == 6 {
@@ -313,7 +331,9 @@ func FunctionalGroups(m *mol.Molecule, r *rings.Rings, comp []int) []string {
 				continue
 			}
 			if at.Charge == 1 {
-				if g.countDoubleTo(a, 8) > 0 {
+				if g.isocyanideN(a) {
+					found.add(FGIsocyanide)
+				} else if g.countDoubleTo(a, 8) > 0 {
 					found.add(FGNitro)
 				} else if g.countDoubleTo(a, 0) == 0 {
 					found.add(FGAmmonium)
@@ -379,7 +399,13 @@ func FunctionalGroups(m *mol.Molecule, r *rings.Rings, comp []int) []string {
 			}
 			os := g.doubleTo(a, 8)
 			if len(os) >= 2 {
-				if len(nb) == 4 {
+				// sulfonic acid: an S(=O)2 carrying an O–H
+				for _, x := range nb {
+					if m.Atoms[x].Z == 8 && m.TotalH(x) > 0 && m.Bonds[m.BondBetween(a, x)].Order == mol.BondSingle {
+						found.add(FGSulfonicAcid)
+					}
+				}
+				if len(nb) == 4 && !found.has(FGSulfonicAcid) {
 					hasN := false
 					for _, x := range nb {
 						if m.Atoms[x].Z == 7 {
@@ -440,6 +466,15 @@ func (s *groupSet) add(g string) {
 		}
 	}
 	s.names = append(s.names, g)
+}
+
+func (s *groupSet) has(g string) bool {
+	for _, x := range s.names {
+		if x == g {
+			return true
+		}
+	}
+	return false
 }
 
 func (s *groupSet) sorted() []string {

@@ -39,15 +39,17 @@ func (s *Structure) MoleculeDescriptors() Descriptors {
 		}
 	}
 	return Descriptors{
-		FromStructure:    true,
-		SMILES:           s.MainSMILES,
-		Formula:          m.FormulaOf(s.Main),
-		MolWeightGmol:    Round(m.MolWeightOf(s.Main), 3),
-		MonoisotopicMass: Round(m.MonoMassOf(s.Main), 5),
-		HeavyAtoms:       heavy,
-		RingCount:        nr,
-		AromaticAtoms:    arom,
-		CounterIons:      s.CounterIons,
+		FromStructure:       true,
+		SMILES:              s.MainSMILES,
+		Formula:             m.FormulaOf(s.Main),
+		MolWeightGmol:       Round(m.MolWeightOf(s.Main), 3),
+		MonoisotopicMass:    Round(m.MonoMassOf(s.Main), 5),
+		HeavyAtoms:          heavy,
+		RingCount:           nr,
+		AromaticAtoms:       arom,
+		CounterIons:         s.CounterIons,
+		RecordFormula:       m.Formula(),
+		RecordMolWeightGmol: Round(m.MolWeight(), 3),
 	}
 }
 
@@ -55,6 +57,7 @@ func (s *Structure) MoleculeDescriptors() Descriptors {
 func (d *Descriptors) MergeMolecule(b *Descriptors) {
 	d.SMILES, d.Formula, d.MolWeightGmol, d.MonoisotopicMass = b.SMILES, b.Formula, b.MolWeightGmol, b.MonoisotopicMass
 	d.HeavyAtoms, d.RingCount, d.AromaticAtoms, d.CounterIons = b.HeavyAtoms, b.RingCount, b.AromaticAtoms, b.CounterIons
+	d.RecordFormula, d.RecordMolWeightGmol = b.RecordFormula, b.RecordMolWeightGmol
 }
 
 var pow10 = [...]float64{1, 10, 100, 1e3, 1e4, 1e5, 1e6}

@@ -112,9 +112,52 @@ func DescribeMolecule(m *mol.Molecule, text string) (*Structure, error) {
 		ringOlefins = ringOlefins[:MaxOlefinsAnalysed]
 	}
 	for _, bi := range ringOlefins {
-		s.Olefins = append(s.Olefins, s.analyse(bi))
+		o := s.analyse(bi)
+		if err := bredt(m, p, o); err != nil {
+			return nil, err
+		}
+		s.Olefins = append(s.Olefins, o)
 	}
 	return s, nil
+}
+
+// bredt refuses a double bond at the bridgehead of a small bridged bicycle (Bredt's rule: the
+// p orbitals cannot overlap; such olefins are not isolable when the bridges hold fewer than
+// seven atoms in all, e.g. bicyclo[2.2.1]hept-1-ene; common practice, the S ≥ 7 limit from
+// memory). It returns a *ValenceError naming the atom.
+func bredt(m *mol.Molecule, p *rings.Rings, o *Olefin) error {
+	if len(o.CoreRings) < 2 || len(o.CoreAtoms) == len(o.SmallRing) {
+		return nil
+	}
+	in := make(map[int]bool, len(o.CoreAtoms))
+	for _, a := range o.CoreAtoms {
+		in[a] = true
+	}
+	// bridged: two of the core's rings share three or more atoms
+	bridged := false
+	for i := 0; i < len(o.CoreRings) && !bridged; i++ {
+		for j := i + 1; j < len(o.CoreRings); j++ {
+			if rings.SharedAtoms(p.SSSR[o.CoreRings[i]], p.SSSR[o.CoreRings[j]]) >= 3 {
+				bridged = true
+				break
+			}
+		}
+	}
+	if !bridged {
+		return nil
+	}
+	for _, a := range [2]int{o.A, o.B} {
+		n := 0
+		for _, x := range m.HeavyNbrs(a) {
+			if in[x] {
+				n++
+			}
+		}
+		if n >= 3 && len(o.CoreAtoms)-2 < 7 {
+			return &ValenceError{Atom: a, Msg: fmt.Sprintf("atom %d: a double bond at the bridgehead of a small bridged bicycle cannot exist (Bredt's rule: %d atoms in the bridges, fewer than 7)", a+1, len(o.CoreAtoms)-2)}
+		}
+	}
+	return nil
 }
 
 // MaxOlefinsAnalysed bounds the ring olefins of one monomer that are analysed in full (design

@@ -11,6 +11,9 @@ import (
 
 // Catalyst-class × functional-group tolerance.
 //
+// Changes after a review of every cell (issue "a day at the bench"): phosphine poisons the
+// ruthenium classes (was "slows"); isocyanide and sulfonic acid added; see the README's list.
+//
 // Source: the class × group matrix and ranking of what each metal's alkylidene attacks first, as
 // compiled in the project reference romp_facts.md section (a) from the
 // functional-group tolerance reviews: Trnka et al., Acc. Chem. Res. 2001, 34, 18,
@@ -58,7 +61,9 @@ var tolerance = map[string]tolRow{
 	describe.FGThiol:           {TolPoisons, TolPoisons, TolPoisons, TolPoisons, TolPoisons, "free thiols poison every class: protect as a thioester or disulfide"},
 	describe.FGThioether:       {TolSlows, TolSlows, TolSlows, TolSlows, TolPoisons, "thioethers chelate and slow propagation"},
 	describe.FGThioester:       {TolTolerated, TolTolerated, TolTolerated, TolConditional, TolPoisons, ""},
-	describe.FGPhosphine:       {TolSlows, TolSlows, TolPoisons, TolSlows, TolPoisons, "free phosphines retard initiation; protect as the phosphine–borane or oxide"},
+	describe.FGPhosphine:       {TolPoisons, TolPoisons, TolPoisons, TolSlows, TolPoisons, "a free phosphine in every monomer unit outnumbers the catalyst by the monomer-to-initiator ratio: it blocks the ruthenium's open site and decomposes the N-heterocyclic-carbene types (common practice); protect as the phosphine–borane or the oxide"},
+	describe.FGIsocyanide:      {TolPoisons, TolPoisons, TolPoisons, TolPoisons, TolPoisons, "isocyanides bind ruthenium alkylidenes irreversibly — they are used to quench ROMP (common practice) — and coordinate early metals: no metathesis catalyst class tolerates one per monomer unit"},
+	describe.FGSulfonicAcid:    {TolConditional, TolConditional, TolConditional, TolPoisons, TolPoisons, "a strong protic acid: protonates Mo/W and classical alkylidenes; ruthenium classes survive acid additives but not a free sulfonic acid in every unit at high conversion (common practice) — polymerize the sulfonate ester or a salt with a non-coordinating cation"},
 	describe.FGPhosphineBorane: {TolTolerated, TolTolerated, TolTolerated, TolConditional, TolConditional, ""},
 	describe.FGPhosphite:       {TolSlows, TolSlows, TolSlows, TolSlows, TolPoisons, "phosphites are used on purpose as latency agents: expect an induction period"},
 	describe.FGSulfoxide:       {TolSlows, TolSlows, TolSlows, TolSlows, TolPoisons, ""},

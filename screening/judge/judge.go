@@ -286,7 +286,8 @@ func cautions(d *describe.Descriptors, th *thermo.Thermo, c units.Conditions, ve
 			out = append(out, "Strongly exothermic ring opening (ΔH_p ≈ "+f0(th.DHkJmol)+" kJ/mol): at high concentration or in bulk the heat can outrun cooling. Add catalyst or monomer gradually and watch the temperature.")
 		}
 	}
-	if d.MolWeightGmol > 0 && d.MolWeightGmol < VolatileMolarMassG && d.HeavyAtoms > 0 {
+	if d.RingSize > 0 && d.MolWeightGmol > 0 && d.MolWeightGmol < VolatileMolarMassG && d.HeavyAtoms > 0 &&
+		len(d.CounterIons) == 0 && !d.HasGroup(describe.FGAmmonium) && !d.HasGroup(describe.FGCarboxylate) {
 		out = append(out, "Low-molar-mass cyclic olefin: likely volatile and flammable (cyclopentene and norbornene have flash points below 0 °C); keep away from ignition sources, use closed or vented vessels rated for the pressure, and check the safety data sheet.")
 	}
 	if th != nil && c.Temp > 373.15 {

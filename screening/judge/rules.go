@@ -55,6 +55,8 @@ var rules = []rule{
 	ruleExoEndo,
 	ruleCyclicEnolEther,
 	ruleTransCyclooctene,
+	ruleDisubstitutedCyclopropene,
+	ruleTemperatureWindow,
 }
 
 func ruleNoRingOlefin(in ruleInput) []Reason {
@@ -187,6 +189,21 @@ func ruleCyclicEnolEther(in ruleInput) []Reason {
 	}
 	return []Reason{{Code: "cyclic_enol_ether", Effect: EffectNote,
 		Detail: "cyclic enol ether: the ruthenium Fischer carbene formed still ring-opens this ring (Feist & Xia, J. Am. Chem. Soc. 2020, 142, 1186), unlike acyclic vinyl ethers which end chains"}}
+}
+
+// ruleDisubstitutedCyclopropene: 3,3-disubstituted cyclopropenes add once to ruthenium
+// alkylidenes when a substituent on the ring carbon conjugates or crowds it (Elling & Xia, J. Am.
+// Chem. Soc. 2015, 137, 9922, abstract seen: single additions, used for alternating ROMP; the
+// ester case is blocked by quaternary_allylic_ewg), while a CH2 spacer restores propagation
+// (Macromolecules 2020, 53, 5833, romp_outcomes.csv R004, seen). So the other 3,3-disubstituted
+// ones are penalized, not blocked, with ruthenium; Mo/W imido classes polymerize them.
+func ruleDisubstitutedCyclopropene(in ruleInput) []Reason {
+	d := in.Desc
+	if d.RingSize != 3 || d.GemDisubstituted == 0 || !in.Cond.Catalyst.IsRuthenium() || d.QuaternaryAllylicEWG {
+		return nil
+	}
+	return []Reason{{Code: "cyclopropene_single_addition_risk", Effect: EffectPenalizes, Penalty: 0.2,
+		Detail: "3,3-disubstituted cyclopropene with ruthenium: single addition when a ring-carbon substituent conjugates or crowds the alkylidene (J. Am. Chem. Soc. 2015, 137, 9922); alkyl substituents with a CH2 spacer still propagate (Macromolecules 2020, 53, 5833); a Mo/W imido class homopolymerizes them"}}
 }
 
 func ruleTransCyclooctene(in ruleInput) []Reason {

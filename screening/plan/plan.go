@@ -162,6 +162,10 @@ type Hazard struct {
 	Basis                string   `json:"basis"`
 	MonomerMassFraction  *float64 `json:"monomer_mass_fraction,omitempty"`
 	ConversionApplied    float64  `json:"conversion_applied"`
+	// SolventVolumeML is the volume of solution that holds the batch at [M]0 (mL; null in bulk)
+	// and HeatSink names what takes up the heat in the adiabatic bound.
+	SolventVolumeML *float64 `json:"solvent_volume_ml"`
+	HeatSink        string   `json:"heat_sink"`
 }
 
 // Plan is the planning result. The contract's fixed names (catalyst_compatibility, dp,
@@ -206,6 +210,12 @@ func Make(r judge.Result, in Input, c units.Conditions) (Plan, error) {
 	mm := in.MonomerMolarMass
 	if mm <= 0 {
 		mm = r.Descriptors.MolWeightGmol
+		// amounts are weighed as the whole record (salt with counter-ions, hydrate)
+		if rec := r.Descriptors.RecordMolWeightGmol; rec > mm {
+			p.Notes = append(p.Notes, fmt.Sprintf("amounts use the molar mass of the record as weighed, %s %.3f g/mol (the screened component %s is %.3f g/mol)",
+				r.Descriptors.RecordFormula, rec, r.Descriptors.Formula, mm))
+			mm = rec
+		}
 	}
 	if mm <= 0 {
 		return p, units.FieldErr("monomer_molar_mass_g_mol", "needed for a descriptor record (no structure to compute it from)")
@@ -356,7 +366,10 @@ func ringChain(r judge.Result, c units.Conditions) RingChain {
 		rc.Basis = "not applied: ring strain makes cyclic oligomers negligible"
 		return rc
 	}
-	k := 1 + len(d.OtherRingOlefins)
+	k := 1 + d.EquivalentRingOlefins
+	for _, o := range d.OtherRingOlefins {
+		k += max(o.Count, 1)
+	}
 	if k < 1 || d.RingSize%k != 0 {
 		k = 1
 	}
@@ -417,6 +430,13 @@ func hazard(r judge.Result, in Input, c units.Conditions, sol solventData, mm fl
 		h.SolventBoilingPointC = &bp
 	}
 	h.MaxTemperatureC = h.StartTemperatureC + h.AdiabaticRiseK
+	if c.Bulk {
+		h.HeatSink = "the monomer and polymer themselves (no solvent)"
+	} else {
+		v := in.MonomerMassG / mm / float64(c.Conc) * 1e3 // mL of solution (mol / (mol/L) = L)
+		h.SolventVolumeML = &v
+		h.HeatSink = fmt.Sprintf("about %.0f mL of %s solution (its heat capacity); the vessel and any cooling are not counted", v, in.Solvent)
+	}
 	if bp, ok := parentBoilingC[th.ParentRingSystem]; ok && th.UnsubstitutedParent {
 		h.MonomerBoilingPointC = &bp
 	}
@@ -449,6 +469,24 @@ func hazardCautions(r judge.Result, h Hazard, c units.Conditions, solvent string
 		out = append(out, "A second ring olefin can cross-link later in a separate exotherm; hot dicyclopentadiene cracks to volatile, flammable cyclopentadiene.")
 	}
 	out = append(out, "A quench stops the chemistry but not the heat already released: cool and dilute first.")
-	// the screening cautions (flammability, catalyst handling, deferral) close the list
-	return append(out, r.Cautions...)
+	// the screening cautions (flammability, catalyst handling, deferral) close the list; the
+	// screen's general exotherm and bulk warnings give way to the plan's graded ones, and no
+	// caution is repeated
+	seen := map[string]bool{}
+	for _, x := range out {
+		seen[x] = true
+	}
+	for _, x := range r.Cautions {
+		if strings.HasPrefix(x, "Strongly exothermic ring opening") || strings.HasPrefix(x, "Bulk polymerization releases") {
+			continue
+		}
+		if strings.Contains(x, "quenching stops the chemistry") {
+			x = strings.Replace(x, " (quenching stops the chemistry, it does not remove heat already released; cooling and dilution come first)", "", 1)
+		}
+		if !seen[x] {
+			seen[x] = true
+			out = append(out, x)
+		}
+	}
+	return out
 }

@@ -61,14 +61,23 @@ func ParseInto(m *mol.Molecule, s string) error {
 	if strings.TrimSpace(s) == "" {
 		return smilesErr(0, "empty SMILES")
 	}
+	if t := strings.TrimSpace(s); strings.HasPrefix(t, "InChI=") || strings.HasPrefix(t, "1S/") {
+		return smilesErr(0, "this is an InChI, not a SMILES: convert it to SMILES first")
+	}
 	m.Reset()
 	r := &smilesReader{s: s, m: m}
 	if err := r.read(); err != nil {
+		if hint := nameHint(s); hint != "" {
+			var se *Error
+			if errors.As(err, &se) {
+				se.Msg += "; " + hint
+			}
+		}
 		return err
 	}
 	m.Index()
 	if a, ok := m.Kekulize(); !ok {
-		return smilesErr(m.Atoms[a].Pos, "aromatic system cannot be kekulized (check hydrogens on aromatic nitrogen, e.g. [nH])")
+		return smilesErr(m.Atoms[a].Pos, "%s", kekuleHint(m, a))
 	}
 	m.AssignImplicitHydrogens()
 	return nil
@@ -501,3 +510,42 @@ func (r *smilesReader) readBracket() (mol.Atom, error) {
 }
 
 func isUpper(c byte) bool { return c >= 'A' && c <= 'Z' }
+
+// kekuleHint explains a failed Kekulé assignment at atom a: for an all-carbon aromatic ring the
+// likely cause (an odd ring, a missing charge), else the hydrogen on an aromatic nitrogen.
+func kekuleHint(m *mol.Molecule, a int) string {
+	hetero := false
+	for i := range m.Atoms {
+		if m.Atoms[i].Aromatic && m.Atoms[i].Z != 6 {
+			hetero = true
+		}
+	}
+	if !hetero {
+		return "aromatic system cannot be kekulized: the lower-case carbons here cannot take alternating single and double bonds " +
+			"(an odd ring such as c1cccc1, or a ring that needs a charge or an sp3 carbon); write the ring with explicit bonds " +
+			"(cyclopentadiene C1=CC=CC1) or give the charge ([cH-]1cccc1)"
+	}
+	return "aromatic system cannot be kekulized (check hydrogens on aromatic nitrogen, e.g. [nH] in pyrrole c1cc[nH]c1, and charges)"
+}
+
+// nameHint recognizes a chemical name typed into a SMILES field (words of lower-case letters
+// that SMILES cannot hold) and says so; "" when the text does not look like a name.
+func nameHint(s string) string {
+	t := strings.TrimSpace(s)
+	if strings.ContainsAny(t, "[]=#@/\\%") {
+		return ""
+	}
+	run, longest := 0, 0
+	for _, ch := range t {
+		if ch >= 'a' && ch <= 'z' {
+			run++
+			longest = max(longest, run)
+		} else {
+			run = 0
+		}
+	}
+	if longest >= 4 || strings.Contains(t, " ") {
+		return "this looks like a name, not a SMILES: give the structure as SMILES (e.g. norbornene is C1=CC2CCC1C2)"
+	}
+	return ""
+}

@@ -86,7 +86,9 @@ func noteValue(code, detail string, v float64, unit string) Note {
 
 // EstimateOlefin estimates the thermodynamics of opening ring olefin o of structure s with the
 // ring table, measurements included (EstimateFor is the leave-self-out estimate with a method).
-func EstimateOlefin(s *describe.Structure, o *describe.Olefin) Estimate { return estimateTable(s, o, "") }
+func EstimateOlefin(s *describe.Structure, o *describe.Olefin) Estimate {
+	return estimateTable(s, o, "")
+}
 
 // applyCorrections adds the substituent corrections for the record's features.
 func applyCorrections(e *Estimate, d *describe.Descriptors) { applyCorrectionsExcluding(e, d, "") }

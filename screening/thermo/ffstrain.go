@@ -5,6 +5,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
+	"sort"
 	"strconv"
 	"strings"
 
@@ -74,11 +75,16 @@ const kcalToKJ = 4.184
 // the all-carbon core of its ring (the parent). Errors wrap ErrFFNotApplicable, or are the
 // context's.
 func StrainDifference(ctx context.Context, s *describe.Structure, o *describe.Olefin) (*FFCorrection, error) {
-	cand, bond, err := mainComponent(s.Mol, s.Main, o.Bond)
+	parent, pbond, name, err := coreParent(s, o)
 	if err != nil {
 		return nil, err
 	}
-	parent, pbond, name, err := coreParent(s, o)
+	return strainDifferenceTo(ctx, s, o, parent, pbond, name)
+}
+
+// strainDifferenceTo is StrainDifference against a given parent (its olefin bond pbond).
+func strainDifferenceTo(ctx context.Context, s *describe.Structure, o *describe.Olefin, parent *mol.Molecule, pbond int, name string) (*FFCorrection, error) {
+	cand, bond, err := mainComponent(s.Mol, s.Main, o.Bond)
 	if err != nil {
 		return nil, err
 	}
@@ -97,15 +103,63 @@ func StrainDifference(ctx context.Context, s *describe.Structure, o *describe.Ol
 // ringOpeningEnergy returns ΔE_ro of ring olefin bond bi of m in kJ/mol (without the constant
 // (E)-2-butene term, which cancels in every difference), cached by structure.
 func ringOpeningEnergy(ctx context.Context, m *mol.Molecule, bi int) (float64, error) {
-	key := structureKey(m) + "|" + strconv.Itoa(bondKeyIndex(m, bi))
-	if r, ok := ffMemo.Get(key); ok {
-		return r.dE, r.err
+	cm, cbi, key := canonicalForm(m, bi)
+	if key != "" {
+		if r, ok := ffMemo.Get(key); ok {
+			return r.dE, r.err
+		}
 	}
-	dE, err := computeRingOpening(ctx, m, bi)
-	if ctx.Err() == nil { // a cancelled computation is not an answer
+	dE, err := computeRingOpening(ctx, cm, cbi)
+	if key != "" && ctx.Err() == nil { // a cancelled computation is not an answer
 		ffMemo.Put(key, ffResult{dE, err})
 	}
 	return dE, err
+}
+
+// canonicalForm returns the molecule the force field computes for ring olefin bond bi of m, that
+// bond in it, and the cache key of the pair, so that the answer depends on the structure and not
+// on how it was written (the conformer search starts from an atom order). Without stereo marks
+// the molecule is renumbered in canonical order and the olefin is the first bond of its
+// symmetry class; with stereo marks (which name written neighbours) the written numbering
+// stands and is part of the key. A molecule too large for a canonical order is not cached
+// (empty key).
+func canonicalForm(m *mol.Molecule, bi int) (*mol.Molecule, int, string) {
+	if hasStereoMarks(m) {
+		return m, bi, structureKey(m) + "|" + strconv.Itoa(bi)
+	}
+	order, class := canon.Order(m, rings.Perceive(m), seq(len(m.Atoms)))
+	if class == nil {
+		return m, bi, ""
+	}
+	pos := make([]int, len(m.Atoms))
+	cm := &mol.Molecule{Atoms: make([]mol.Atom, 0, len(m.Atoms))}
+	for k, a := range order {
+		pos[a] = k
+		at := m.Atoms[a]
+		at.Chiral, at.NChiral = 0, 0
+		cm.Atoms = append(cm.Atoms, at)
+	}
+	for _, b := range m.Bonds {
+		nb := b
+		nb.A, nb.B = min(pos[b.A], pos[b.B]), max(pos[b.A], pos[b.B])
+		nb.Dir = 0
+		cm.Bonds = append(cm.Bonds, nb)
+	}
+	sort.Slice(cm.Bonds, func(i, j int) bool {
+		x, y := cm.Bonds[i], cm.Bonds[j]
+		return x.A < y.A || (x.A == y.A && x.B < y.B)
+	})
+	cm.Index()
+	pair := func(a, b int) [2]int { return [2]int{min(class[a], class[b]), max(class[a], class[b])} }
+	want := pair(pos[m.Bonds[bi].A], pos[m.Bonds[bi].B])
+	cbi := -1
+	for j, b := range cm.Bonds {
+		if b.Order == m.Bonds[bi].Order && pair(b.A, b.B) == want {
+			cbi = j
+			break
+		}
+	}
+	return cm, cbi, structureKey(m) + "|" + strconv.Itoa(want[0]) + "-" + strconv.Itoa(want[1])
 }
 
 func computeRingOpening(ctx context.Context, m *mol.Molecule, bi int) (float64, error) {
@@ -317,7 +371,7 @@ func coreParent(s *describe.Structure, o *describe.Olefin) (*mol.Molecule, int, 
 // structureKey is the canonical constitution key of m, followed by its stereo as written when it
 // has any (so that exo and endo isomers are cached apart).
 func structureKey(m *mol.Molecule) string {
-	k := canon.SkeletonKey(m, rings.Perceive(m), seq(len(m.Atoms)), -1)
+	k := canon.StructureKey(m, rings.Perceive(m), seq(len(m.Atoms)))
 	var st []string
 	for i, a := range m.Atoms {
 		if a.Chiral != 0 {
@@ -333,25 +387,6 @@ func structureKey(m *mol.Molecule) string {
 		return k
 	}
 	return k + "|" + strings.Join(st, ",")
-}
-
-// bondKeyIndex identifies the olefin bond within the structure key: for a molecule without stereo
-// marks the canonical key does not fix atom numbers, so the bond is named by its sorted pair of
-// heavy-atom environments; with stereo the written numbering stands.
-func bondKeyIndex(m *mol.Molecule, bi int) int {
-	a, b := m.Bonds[bi].A, m.Bonds[bi].B
-	env := func(x int) int {
-		e := 0
-		for _, n := range m.HeavyNbrs(x) {
-			e = e*31 + m.Atoms[n].Z*7 + m.HeavyDegree(n)
-		}
-		return e
-	}
-	ea, eb := env(a), env(b)
-	if ea > eb {
-		ea, eb = eb, ea
-	}
-	return ea*100003 + eb
 }
 
 // writeSimple writes a hydrogen-implicit, stereo-free molecule as a SMILES-like key for reports.

@@ -197,7 +197,7 @@ func loadTable() (*ringTable, error) {
 		}
 		sort.Ints(list)
 		row.Key = systemKey(m, list, -1, row.Trans)
-		row.constKey = canon.SkeletonKey(m, p, seq(len(m.Atoms)), -1)
+		row.constKey = canon.StructureKey(m, p, seq(len(m.Atoms)))
 		row.Rings = len(p.SSSR)
 		if prev, dup := t.byKey[row.Key]; dup {
 			return nil, fmt.Errorf("ring_table.csv: %s and %s have the same skeleton key %s", prev.Name, row.Name, row.Key)

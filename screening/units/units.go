@@ -66,13 +66,18 @@ type TempK float64
 // a guard against typing errors, not a chemical limit).
 const MaxTempK = 1500
 
-// NewTempK validates an absolute temperature: finite, above 0 K and at most MaxTempK.
+// MinTempK bounds temperatures from below: 100 K (−173 °C) is colder than any solvent a
+// polymerization is run in stays liquid (design choice: 1e-300 K is a typing error, not a
+// condition).
+const MinTempK = 100
+
+// NewTempK validates an absolute temperature: finite, from MinTempK to MaxTempK.
 func NewTempK(v float64) (TempK, error) {
 	if math.IsNaN(v) || math.IsInf(v, 0) {
 		return 0, FieldErr("temperature", "must be a finite number")
 	}
-	if v <= 0 {
-		return 0, FieldErr("temperature", "must be above 0 K (got %g K)", v)
+	if v < MinTempK {
+		return 0, FieldErr("temperature", "must be at least %d K (got %g K): below any liquid reaction medium", MinTempK, v)
 	}
 	if v > MaxTempK {
 		return 0, FieldErr("temperature", "must be at most %d K (got %g K)", MaxTempK, v)
@@ -87,7 +92,7 @@ func TempFromCelsius(c float64) (TempK, error) {
 	}
 	t, err := NewTempK(c + ZeroCelsiusK)
 	if err != nil {
-		return 0, FieldErr("temperature_c", "%g °C is out of range: must be above -273.15 °C and at most 1226.85 °C", c)
+		return 0, FieldErr("temperature_c", "%g °C is out of range: must be from -173.15 °C to 1226.85 °C", c)
 	}
 	return t, nil
 }

@@ -1,0 +1,84 @@
+package canon_test
+
+import (
+	"testing"
+
+	"ringsieve/screening/canon"
+	"ringsieve/screening/rings"
+	"ringsieve/screening/smiles"
+)
+
+func keys(t *testing.T, s string) (skeleton, structure string, order []int) {
+	t.Helper()
+	m, err := smiles.Parse(s)
+	if err != nil {
+		t.Fatalf("%s: %v", s, err)
+	}
+	r := rings.Perceive(m)
+	all := make([]int, len(m.Atoms))
+	for i := range all {
+		all[i] = i
+	}
+	order, _ = canon.Order(m, r, all)
+	return canon.SkeletonKey(m, r, all, -1), canon.StructureKey(m, r, all), order
+}
+
+// TestKeysIgnoreWritingOnly: writings of one structure share both keys; a charge, an isotope or
+// an unusual hydrogen count changes the structure key but not the skeleton key (graph facts,
+// common practice).
+func TestKeysIgnoreWritingOnly(t *testing.T) {
+	same := [][]string{
+		{"NCC1CC2C=CC1C2", "C1=CC2CC1CC2CN", "C1C2C=CC1C(CN)C2"},
+		{"[NH3+]CC1CC2C=CC1C2", "C1=CC2CC1CC2C[NH3+]"},
+		{"C1=CCCC1", "C1CC=CC1", "[CH2]1CC=CC1"},
+		{"c1ccccc1C1CC2C=CC1C2", "C1=CC2CC1CC2C1=CC=CC=C1"},
+	}
+	for _, group := range same {
+		sk0, st0, _ := keys(t, group[0])
+		for _, s := range group[1:] {
+			sk, st, _ := keys(t, s)
+			if sk != sk0 || st != st0 {
+				t.Errorf("%s vs %s: skeleton %q/%q structure %q/%q", group[0], s, sk0, sk, st0, st)
+			}
+		}
+	}
+	differ := [][2]string{
+		{"NCC1CC2C=CC1C2", "[NH3+]CC1CC2C=CC1C2"},       // amine and its ammonium salt
+		{"C1=CCCC1", "[13CH2]1CC=CC1"},                  // an isotope label
+		{"C1=CCCC1", "[CH]1CC=CC1"},                     // a radical centre
+		{"OC(=O)C1CC2C=CC1C2", "[O-]C(=O)C1CC2C=CC1C2"}, // acid and carboxylate
+	}
+	for _, p := range differ {
+		sk1, st1, _ := keys(t, p[0])
+		sk2, st2, _ := keys(t, p[1])
+		if sk1 != sk2 {
+			t.Errorf("%s vs %s: skeleton keys differ %q %q", p[0], p[1], sk1, sk2)
+		}
+		if st1 == st2 {
+			t.Errorf("%s vs %s: one structure key %q", p[0], p[1], st1)
+		}
+	}
+}
+
+// TestOrderIsCanonical: the canonical order lists atoms of the same element, degree and charge
+// in the same places whatever the writing.
+func TestOrderIsCanonical(t *testing.T) {
+	sig := func(s string) []string {
+		m, _ := smiles.Parse(s)
+		_, _, order := keys(t, s)
+		var out []string
+		for _, a := range order {
+			out = append(out, string(rune('A'+m.Atoms[a].Z))+string(rune('0'+m.Degree(a))))
+		}
+		return out
+	}
+	a, b := sig("NCC1CC2C=CC1C2"), sig("C1C2C=CC1C(CN)C2")
+	if len(a) != len(b) {
+		t.Fatal(a, b)
+	}
+	for i := range a {
+		if a[i] != b[i] {
+			t.Fatalf("orders differ at %d: %v vs %v", i, a, b)
+		}
+	}
+}
