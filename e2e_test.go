@@ -49,8 +49,15 @@ type service struct {
 // startService runs `ringsieve serve` on a free loopback port and waits for /healthz.
 func startService(t *testing.T, db string, extra ...string) *service {
 	t.Helper()
+	return startServiceBin(t, binPath, nil, db, extra...)
+}
+
+// startServiceBin is startService with another binary and extra environment variables.
+func startServiceBin(t *testing.T, bin string, env []string, db string, extra ...string) *service {
+	t.Helper()
 	args := append([]string{"serve", "--addr", "127.0.0.1:0", "--db", db}, extra...)
-	cmd := exec.Command(binPath, args...)
+	cmd := exec.Command(bin, args...)
+	cmd.Env = append(os.Environ(), env...)
 	stderr, _ := cmd.StderrPipe()
 	if err := cmd.Start(); err != nil {
 		t.Fatal(err)
@@ -124,7 +131,6 @@ func TestEndToEndEveryEndpoint(t *testing.T) {
 	}
 	db := filepath.Join(t.TempDir(), "e2e.db")
 	s := startService(t, db)
-	J := "application/json"
 	check := func(name string, status, want int, body []byte) {
 		t.Helper()
 		if status != want {

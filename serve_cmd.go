@@ -91,6 +91,8 @@ func serveCmd(getenv func(string) string) *cobra.Command {
 	f.StringVar(&cors, "cors-origins", "", "comma-separated origins allowed by CORS, or * (env RINGSIEVE_CORS_ORIGINS)")
 	f.StringVar(&requireKeys, "require-keys", requireKeys, "API keys: off, writes or all (env RINGSIEVE_REQUIRE_KEYS; writes is forced on a non-loopback address)")
 	f.IntVar(&cfg.API.BatchLimit, "batch-limit", cfg.API.BatchLimit, "most items in one synchronous batch")
+	f.IntVar(&cfg.API.MaxInFlight, "max-in-flight", cfg.API.MaxInFlight, "requests served at once; more get 503 with Retry-After (healthz and metrics exempt)")
+	f.IntVar(&cfg.API.MaxUploads, "max-uploads", cfg.API.MaxUploads, "job submissions read at once (each may hold a body of up to 64 MB)")
 	f.IntVar(&workers, "workers", workers, "goroutines working jobs: -1 one per core, 0 none (serve only; other processes work the jobs)")
 	f.DurationVar(&cfg.ShutdownTimeout, "shutdown-timeout", cfg.ShutdownTimeout, "grace period for in-flight requests on SIGINT/SIGTERM")
 	return cmd

@@ -561,3 +561,44 @@ func upload(t *testing.T, ts *httptest.Server, file, content string, fields ...s
 	b, _ := io.ReadAll(res.Body)
 	return resp{status: res.StatusCode, body: b}
 }
+
+// TestBatchBodiesDecodedAsStreams: item lists are counted while they are read (the limit+1st
+// item stops the read), conditions may follow the items, and unknown or repeated fields are
+// refused with the field named.
+func TestBatchBodiesDecodedAsStreams(t *testing.T) {
+	ts, _ := newTestServer(t, Config{BatchLimit: 3, JobLimit: 4})
+	many := func(n int) string { return strings.TrimSuffix(strings.Repeat(`{},`, n), ",") }
+	cases := []struct {
+		name, path, body string
+		status           int
+		field            string
+	}{
+		{"batch over the limit", "/v1/screen/batch", `{"items":[` + many(100000) + `]}`, 422, "items"},
+		{"job over the limit", "/v1/jobs", `{"items":[` + many(100000) + `]}`, 422, "items"},
+		{"conditions after items", "/v1/screen/batch", `{"items":[{"smiles":"C1=CCCC1"}],"conditions":{"temperature_c":25}}`, 200, ""},
+		{"job conditions after items", "/v1/jobs", `{"items":[{"smiles":"C1=CCCC1"}],"conditions":{"temperature_c":25}}`, 202, ""},
+		{"bad conditions after items", "/v1/jobs", `{"items":[{"smiles":"C1=CCCC1"}],"conditions":{"temperature_k":-1}}`, 422, "conditions.temperature_k"},
+		{"unknown top-level field", "/v1/screen/batch", `{"items":[],"colour":"blue"}`, 400, "colour"},
+		{"unknown item field", "/v1/jobs", `{"items":[{"smiles":"C1=CCCC1"},{"smile":"C"}]}`, 400, "items[1].smile"},
+		{"items twice", "/v1/screen/batch", `{"items":[{"smiles":"C1=CCCC1"}],"items":[]}`, 400, "items"},
+		{"items not an array", "/v1/jobs", `{"items":{}}`, 400, "items"},
+		{"no items", "/v1/jobs", `{"items":[]}`, 422, "items"},
+		{"not an object", "/v1/screen/batch", `[1,2]`, 400, ""},
+		{"truncated", "/v1/jobs", `{"items":[{"smiles":"C1=CCCC1"}`, 400, ""},
+		{"trailing data", "/v1/jobs", `{"items":[{"smiles":"C1=CCCC1"}]} x`, 400, ""},
+	}
+	for _, tc := range cases {
+		r := do(t, ts, "POST", tc.path, tc.body)
+		if r.status != tc.status {
+			t.Errorf("%s: status %d, want %d (%s)", tc.name, r.status, tc.status, r.body)
+			continue
+		}
+		if tc.field != "" {
+			var p Problem
+			r.json(t, &p)
+			if p.Field != tc.field {
+				t.Errorf("%s: field %q, want %q (%s)", tc.name, p.Field, tc.field, p.Detail)
+			}
+		}
+	}
+}

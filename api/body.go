@@ -86,15 +86,23 @@ func (k *keyedMutex) lock(key string) func() {
 
 // decodeJSON reads exactly one JSON object from the body into v, refusing unknown fields.
 func decodeJSON(c *gin.Context, v any) error {
-	ct := c.ContentType()
-	if ct != "" && ct != "application/json" && !strings.HasSuffix(ct, "+json") {
-		return badRequest(errUnsupported, "", "send application/json (got "+ct+")")
+	if err := checkJSONType(c); err != nil {
+		return err
 	}
 	body, err := readBody(c)
 	if err != nil {
 		return err
 	}
 	return decodeJSONBytes(body, v)
+}
+
+// checkJSONType refuses a body that is declared as something other than JSON (415).
+func checkJSONType(c *gin.Context) error {
+	ct := c.ContentType()
+	if ct != "" && ct != "application/json" && !strings.HasSuffix(ct, "+json") {
+		return badRequest(errUnsupported, "", "send application/json (got "+ct+")")
+	}
+	return nil
 }
 
 func decodeJSONBytes(body []byte, v any) error {

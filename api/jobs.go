@@ -110,29 +110,29 @@ func (s *Server) storeJobBody(c *gin.Context, body []byte) (batch.Job, []batch.I
 	if ct == "multipart/form-data" {
 		return s.storeUpload(ctx, body, params["boundary"])
 	}
-	var req BatchRequest
-	if err := decodeJSONBytes(body, &req); err != nil {
+	if err := checkJSONType(c); err != nil {
 		return batch.Job{}, nil, err
 	}
-	cond, err := req.Conditions.toConditions()
-	if err != nil {
-		return batch.Job{}, nil, err
-	}
-	if len(req.Items) == 0 {
-		return batch.Job{}, nil, &screening.FieldError{Field: "items", Msg: "give at least one item"}
-	}
-	if len(req.Items) > s.cfg.JobLimit {
-		return batch.Job{}, nil, &screening.FieldError{Field: "items", Msg: fmt.Sprintf("at most %d items per job", s.cfg.JobLimit)}
-	}
+	// items go to the database as they are decoded (one transaction); the conditions may come
+	// before or after them and are checked before the commit
 	job, err := s.store.CreateJob(ctx, 0, func(add func(data.JobInput) error) (data.JobMeta, error) {
-		for i, it := range req.Items {
-			id := it.ID
-			if id == "" {
-				id = strconv.Itoa(i + 1)
-			}
-			if err := add(data.JobInput{ItemID: id, Source: batch.ItemSource{SMILES: it.SMILES, Descriptors: it.Descriptors, MonomerID: it.MonomerID}}); err != nil {
-				return data.JobMeta{}, err
-			}
+		condIn, n, err := decodeBatch(body, s.cfg.JobLimit, func(limit int) string { return fmt.Sprintf("at most %d items per job", limit) },
+			func(i int, it BatchItem) error {
+				id := it.ID
+				if id == "" {
+					id = strconv.Itoa(i + 1)
+				}
+				return add(data.JobInput{ItemID: id, Source: batch.ItemSource{SMILES: it.SMILES, Descriptors: it.Descriptors, MonomerID: it.MonomerID}})
+			})
+		if err != nil {
+			return data.JobMeta{}, err
+		}
+		cond, err := condIn.toConditions()
+		if err != nil {
+			return data.JobMeta{}, err
+		}
+		if n == 0 {
+			return data.JobMeta{}, &screening.FieldError{Field: "items", Msg: "give at least one item"}
 		}
 		return data.JobMeta{Conditions: batch.EffectiveConditions(cond), Format: "json"}, nil
 	})

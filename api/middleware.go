@@ -159,6 +159,8 @@ type metrics struct {
 	screenings *prometheus.CounterVec
 	queue      prometheus.Gauge
 	jobItems   prometheus.Counter
+	shed       prometheus.Counter
+	storeUp    prometheus.Gauge
 }
 
 func newMetrics() *metrics {
@@ -169,7 +171,9 @@ func newMetrics() *metrics {
 	m.screenings = prometheus.NewCounterVec(prometheus.CounterOpts{Name: "ringsieve_screenings_total", Help: "Monomers screened, by verdict (error: input refused)."}, []string{"verdict"})
 	m.queue = prometheus.NewGauge(prometheus.GaugeOpts{Name: "ringsieve_job_queue_depth", Help: "Jobs queued or running."})
 	m.jobItems = prometheus.NewCounter(prometheus.CounterOpts{Name: "ringsieve_job_items_screened_total", Help: "Items screened by asynchronous jobs."})
-	m.reg.MustRegister(m.requests, m.latency, m.screenings, m.queue, m.jobItems,
+	m.shed = prometheus.NewCounter(prometheus.CounterOpts{Name: "ringsieve_http_shed_total", Help: "Requests turned away with 503 because the server was at its in-flight or upload limit."})
+	m.storeUp = prometheus.NewGauge(prometheus.GaugeOpts{Name: "ringsieve_store_writable", Help: "1 while the store takes writes, 0 while it is degraded (read-only, full or failing disk)."})
+	m.reg.MustRegister(m.requests, m.latency, m.screenings, m.queue, m.jobItems, m.shed, m.storeUp,
 		prometheus.NewGoCollector(), prometheus.NewProcessCollector(prometheus.ProcessCollectorOpts{}))
 	return m
 }
@@ -234,6 +238,7 @@ func (s *Server) idempotent(c *gin.Context) {
 	cw := &captureWriter{ResponseWriter: c.Writer}
 	c.Writer = cw
 	c.Next()
+	data.FaultPoint("idempotent-write-after-commit")
 	if st := cw.Status(); st >= 200 && st < 300 {
 		s.saveIdempotent(c, id, st, cw.buf.Bytes())
 	}

@@ -37,6 +37,7 @@ var (
 	errRateLimited    = errors.New("rate limit exceeded")
 	errBusy           = errors.New("every force-field slot is busy; try again shortly")
 	errComputeTimeout = errors.New("the computation did not finish within the server's time limit")
+	errOverloaded     = errors.New("the server is at its limit of requests in flight; retry shortly")
 )
 
 // requestError wraps a sentinel with a message safe to show the client.
@@ -61,28 +62,37 @@ var errorMap = []struct {
 	status int
 	typ    string
 	title  string
+	detail string // fixed text instead of the error's own (when that would show internals)
 }{
-	{errMalformed, http.StatusBadRequest, "malformed-request", "Malformed request"},
-	{errTooLarge, http.StatusRequestEntityTooLarge, "body-too-large", "Request body too large"},
-	{errUnsupported, http.StatusUnsupportedMediaType, "unsupported-media-type", "Unsupported media type"},
-	{screening.ErrSMILES, http.StatusUnprocessableEntity, "invalid-smiles", "Invalid SMILES"},
-	{screening.ErrNotCovered, http.StatusUnprocessableEntity, "not-covered-by-force-field", "Structure outside the force field"},
-	{screening.ErrBudget, http.StatusUnprocessableEntity, "over-work-budget", "Over the work budget"},
-	{screening.ErrEmbedding, http.StatusUnprocessableEntity, "no-3d-structure", "No 3-D structure found"},
-	{errBusy, http.StatusServiceUnavailable, "busy", "Busy"},
-	{errComputeTimeout, http.StatusServiceUnavailable, "compute-timeout", "Computation timed out"},
-	{screening.ErrInvalid, http.StatusUnprocessableEntity, "invalid-value", "Invalid value"},
-	{data.ErrNotFound, http.StatusNotFound, "not-found", "Not found"},
-	{errNotFoundPath, http.StatusNotFound, "not-found", "Not found"},
-	{data.ErrConflict, http.StatusPreconditionFailed, "version-conflict", "Version conflict"},
-	{data.ErrDuplicate, http.StatusConflict, "duplicate-structure", "Structure already stored"},
-	{data.ErrIdempotencyMismatch, http.StatusUnprocessableEntity, "idempotency-key-reused", "Idempotency key reused"},
-	{errPrecondition, http.StatusPreconditionFailed, "precondition-failed", "Precondition failed"},
-	{errUnauthorized, http.StatusUnauthorized, "unauthorized", "Unauthorized"},
-	{errRateLimited, http.StatusTooManyRequests, "rate-limited", "Too many requests"},
-	{data.ErrJobFinished, http.StatusConflict, "job-finished", "Job already finished"},
-	{data.ErrIdempotencyInFlight, http.StatusConflict, "idempotency-key-in-flight", "Request with this key in progress"},
+	{errMalformed, http.StatusBadRequest, "malformed-request", "Malformed request", ""},
+	{errTooLarge, http.StatusRequestEntityTooLarge, "body-too-large", "Request body too large", ""},
+	{errUnsupported, http.StatusUnsupportedMediaType, "unsupported-media-type", "Unsupported media type", ""},
+	{screening.ErrSMILES, http.StatusUnprocessableEntity, "invalid-smiles", "Invalid SMILES", ""},
+	{screening.ErrNotCovered, http.StatusUnprocessableEntity, "not-covered-by-force-field", "Structure outside the force field", ""},
+	{screening.ErrBudget, http.StatusUnprocessableEntity, "over-work-budget", "Over the work budget", ""},
+	{screening.ErrEmbedding, http.StatusUnprocessableEntity, "no-3d-structure", "No 3-D structure found", ""},
+	{errBusy, http.StatusServiceUnavailable, "busy", "Busy", ""},
+	{errComputeTimeout, http.StatusServiceUnavailable, "compute-timeout", "Computation timed out", ""},
+	{screening.ErrTooComplex, http.StatusUnprocessableEntity, "structure-too-complex", "Structure too complex", ""},
+	{screening.ErrInvalid, http.StatusUnprocessableEntity, "invalid-value", "Invalid value", ""},
+	{data.ErrNotFound, http.StatusNotFound, "not-found", "Not found", ""},
+	{errNotFoundPath, http.StatusNotFound, "not-found", "Not found", ""},
+	{data.ErrConflict, http.StatusPreconditionFailed, "version-conflict", "Version conflict", ""},
+	{data.ErrDuplicate, http.StatusConflict, "duplicate-structure", "Structure already stored", ""},
+	{data.ErrIdempotencyMismatch, http.StatusUnprocessableEntity, "idempotency-key-reused", "Idempotency key reused", ""},
+	{errPrecondition, http.StatusPreconditionFailed, "precondition-failed", "Precondition failed", ""},
+	{errUnauthorized, http.StatusUnauthorized, "unauthorized", "Unauthorized", ""},
+	{errRateLimited, http.StatusTooManyRequests, "rate-limited", "Too many requests", ""},
+	{data.ErrJobFinished, http.StatusConflict, "job-finished", "Job already finished", ""},
+	{data.ErrIdempotencyInFlight, http.StatusConflict, "idempotency-key-in-flight", "Request with this key in progress", ""},
+	{data.ErrUnavailable, http.StatusServiceUnavailable, "store-unavailable", "Store cannot take writes",
+		"the store cannot take writes at the moment (for example a read-only or full disk); nothing was written — retry later; reads still work"},
+	{errOverloaded, http.StatusServiceUnavailable, "overloaded", "Server busy", ""},
 }
+
+// retryAfterSeconds is the Retry-After sent with every 503 (design choice: long enough for a
+// burst to pass or a disk to be freed, short enough for a pipeline's retry loop).
+const retryAfterSeconds = "5"
 
 const problemBase = "https://ringsieve.invalid/problems/"
 
@@ -91,6 +101,9 @@ func problemFor(err error) Problem {
 	for _, e := range errorMap {
 		if errors.Is(err, e.err) {
 			p := Problem{Type: problemBase + e.typ, Title: e.title, Status: e.status, Detail: err.Error()}
+			if e.detail != "" {
+				p.Detail = e.detail
+			}
 			var se *screening.SMILESError
 			if errors.As(err, &se) {
 				pos := se.Pos
@@ -109,6 +122,9 @@ func problemFor(err error) Problem {
 			if errors.As(err, &re) && re.field != "" {
 				p.Field = re.field
 			}
+			if p.Field == "" && errors.Is(err, screening.ErrTooComplex) {
+				p.Field = "smiles"
+			}
 			return p
 		}
 	}
@@ -123,6 +139,9 @@ func fail(c *gin.Context, err error) {
 	p.RequestID = c.GetString(ctxRequestID)
 	if p.Status >= 500 {
 		c.Error(err) // logged by the logging middleware, never sent
+	}
+	if p.Status == http.StatusServiceUnavailable && c.Writer.Header().Get("Retry-After") == "" {
+		c.Header("Retry-After", retryAfterSeconds)
 	}
 	writeProblem(c, p)
 }

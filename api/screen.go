@@ -256,17 +256,34 @@ type BatchResponse struct {
 //	@Failure		422		{object}	Problem	"invalid conditions or too many items"
 //	@Router			/v1/screen/batch [post]
 func (s *Server) batch(c *gin.Context) {
+	if err := checkJSONType(c); err != nil {
+		fail(c, err)
+		return
+	}
+	body, err := readBody(c)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	// decoded as a stream: the item limit is checked while reading, so an oversized list never
+	// sits in memory as Go values
 	var req BatchRequest
-	cond, ok := bind(c, &req, func(r *BatchRequest) *ConditionsIn { return r.Conditions })
-	if !ok {
+	condIn, n, err := decodeBatch(body, s.cfg.BatchLimit,
+		func(limit int) string {
+			return fmt.Sprintf("more than the synchronous limit of %d items: submit a job (POST /v1/jobs)", limit)
+		},
+		func(_ int, it BatchItem) error { req.Items = append(req.Items, it); return nil })
+	if err != nil {
+		fail(c, err)
 		return
 	}
-	if len(req.Items) == 0 {
+	cond, err := condIn.toConditions()
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	if n == 0 {
 		fail(c, &screening.FieldError{Field: "items", Msg: "give at least one item"})
-		return
-	}
-	if len(req.Items) > s.cfg.BatchLimit {
-		fail(c, &screening.FieldError{Field: "items", Msg: fmt.Sprintf("%d items is more than the synchronous limit of %d: submit a job (POST /v1/jobs)", len(req.Items), s.cfg.BatchLimit)})
 		return
 	}
 	results := s.screenItems(c.Request.Context(), req.Items, cond)

@@ -6,6 +6,7 @@ import (
 	"net/http"
 	"runtime"
 	"sync"
+	"sync/atomic"
 	"time"
 
 	"github.com/gin-gonic/gin"
@@ -35,12 +36,16 @@ type Config struct {
 	// request (screen, batch, compare, plan); past it, auto estimates use the ring table with a
 	// note. Jobs are not bounded this way.
 	SyncForceField time.Duration
+	// MaxInFlight caps the requests served at once (every address, keys or not); past it a
+	// request gets 503 with Retry-After. MaxUploads caps the job submissions read at once.
+	MaxInFlight int
+	MaxUploads  int
 }
 
 // DefaultConfig returns the defaults.
 func DefaultConfig() Config {
 	return Config{MaxBodyBytes: 8 << 20, MaxFileBytes: 64 << 20, BatchLimit: 5000, JobLimit: 200000, RatePerKey: 200, RateBurst: 400,
-		ComputeTimeout: 60 * time.Second, SyncForceField: 3 * time.Second}
+		ComputeTimeout: 60 * time.Second, SyncForceField: 3 * time.Second, MaxInFlight: 256, MaxUploads: 4}
 }
 
 // Server holds what handlers need.
@@ -54,6 +59,10 @@ type Server struct {
 	idemLocks keyedMutex
 	// compute bounds the force-field computations running at once.
 	compute computeSlots
+	// inFlight and uploads shed load (Config.MaxInFlight, MaxUploads).
+	inFlight, uploads slots
+	// degraded remembers the store's last reported state (for logging changes).
+	degraded atomic.Bool
 	// limiters holds one token bucket per API key id (*rate.Limiter).
 	limiters sync.Map
 	wg       sync.WaitGroup
@@ -86,10 +95,17 @@ func New(cfg Config, store *data.Store, log *slog.Logger) *Server {
 	if cfg.ComputeTimeout <= 0 {
 		cfg.ComputeTimeout = def.ComputeTimeout
 	}
+	if cfg.MaxInFlight <= 0 {
+		cfg.MaxInFlight = def.MaxInFlight
+	}
+	if cfg.MaxUploads <= 0 {
+		cfg.MaxUploads = def.MaxUploads
+	}
 	if cfg.ComputeSlots <= 0 {
 		cfg.ComputeSlots = runtime.NumCPU()
 	}
-	s := &Server{cfg: cfg, store: store, log: log, metrics: newMetrics(), compute: make(computeSlots, cfg.ComputeSlots)}
+	s := &Server{cfg: cfg, store: store, log: log, metrics: newMetrics(), compute: make(computeSlots, cfg.ComputeSlots),
+		inFlight: make(slots, cfg.MaxInFlight), uploads: make(slots, cfg.MaxUploads)}
 	if cfg.Workers <= 0 {
 		cfg.Workers = runtime.NumCPU()
 	}
@@ -124,6 +140,7 @@ func (s *Server) housekeeping(ctx context.Context) {
 	defer tick.Stop()
 	lastPurge := time.Time{}
 	for {
+		s.storeHealth(ctx) // probes a write while degraded, so the state clears without callers
 		if n, err := s.store.CountActiveJobs(ctx); err == nil {
 			s.metrics.queue.Set(float64(n))
 		}
@@ -150,7 +167,7 @@ func init() { gin.SetMode(gin.ReleaseMode) }
 func (s *Server) Handler() http.Handler {
 	r := gin.New()
 	r.HandleMethodNotAllowed = true
-	r.Use(s.requestID, s.recoverer, s.logRequests, s.countRequests, s.cors)
+	r.Use(s.requestID, s.recoverer, s.logRequests, s.countRequests, s.securityHeaders, s.limitInFlight, s.cors)
 	r.NoRoute(func(c *gin.Context) {
 		fail(c, badRequest(errNotFoundPath, "", "no endpoint at "+c.Request.Method+" "+c.Request.URL.Path))
 	})
@@ -164,7 +181,7 @@ func (s *Server) Handler() http.Handler {
 	r.GET("/docs", s.docsPage)
 	r.GET("/", s.indexPage)
 	r.GET("/static/*file", s.static)
-	r.GET("/metrics", s.metricsHandler())
+	r.GET("/metrics", s.auth, s.metricsHandler()) // behind keys when reads need them
 
 	json, file := s.bodyLimit(s.cfg.MaxBodyBytes), s.bodyLimit(s.cfg.MaxFileBytes)
 	v1 := r.Group("/v1", s.auth)
@@ -181,33 +198,70 @@ func (s *Server) Handler() http.Handler {
 	v1.PUT("/monomers/:id", json, s.replaceMonomer)
 	v1.DELETE("/monomers/:id", s.deleteMonomer)
 	v1.GET("/monomers/:id/results", s.monomerResults)
-	v1.POST("/jobs", file, s.idempotent, s.createJob)
+	v1.POST("/jobs", s.limitUploads, file, s.idempotent, s.createJob)
 	v1.GET("/jobs/:id", s.getJob)
 	v1.GET("/jobs/:id/results", s.jobResults)
 	v1.DELETE("/jobs/:id", s.cancelJob)
 	return r
 }
 
-// Health is the /healthz body.
+// Health is the /healthz body: the process is up (the status code says so) and whether the
+// store answers reads and takes writes. Status is "ok", or "degraded" while writes fail
+// (reads and screening go on; writes get 503 with Retry-After).
 type Health struct {
-	Status string `json:"status" example:"ok"`
+	Status string      `json:"status" example:"ok"`
+	Store  StoreHealth `json:"store"`
+}
+
+// StoreHealth is the store's part of /healthz.
+type StoreHealth struct {
+	Reachable bool `json:"reachable" example:"true"`
+	Writable  bool `json:"writable" example:"true"`
+	// Since is when writes started failing (RFC 3339, UTC), absent while writable.
+	Since string `json:"since,omitempty"`
 }
 
 // healthz godoc
 //
-//	@Summary	Liveness and store readiness
-//	@Tags		service
-//	@Produce	json
-//	@Success	200	{object}	Health
-//	@Failure	503	{object}	Problem
-//	@Router		/healthz [get]
+//	@Summary		Liveness and store readiness
+//	@Description	200 while the process serves and the store answers reads: status "ok", or "degraded" while the store cannot take writes (store.writable false, since when). 503 when the store does not answer at all.
+//	@Tags			service
+//	@Produce		json
+//	@Success		200	{object}	Health
+//	@Failure		503	{object}	Problem
+//	@Router			/healthz [get]
 func (s *Server) healthz(c *gin.Context) {
 	ctx, cancel := context.WithTimeout(c.Request.Context(), 2*time.Second)
 	defer cancel()
-	if err := s.store.Ping(ctx); err != nil {
-		s.log.Error("health check", "err", err)
-		writeProblem(c, Problem{Type: problemBase + "unavailable", Title: "Store unavailable", Status: http.StatusServiceUnavailable, Detail: "the database does not answer"})
+	h := s.storeHealth(ctx)
+	if !h.Reachable {
+		writeProblem(c, Problem{Type: problemBase + "unavailable", Title: "Store unavailable", Status: http.StatusServiceUnavailable,
+			Detail: "the database does not answer", Instance: c.Request.URL.Path, RequestID: c.GetString(ctxRequestID)})
 		return
 	}
-	c.JSON(http.StatusOK, Health{Status: "ok"})
+	out := Health{Status: "ok", Store: StoreHealth{Reachable: true, Writable: h.Writable}}
+	if !h.Writable {
+		out.Status = "degraded"
+		out.Store.Since = h.Since.UTC().Format(time.RFC3339)
+	}
+	c.JSON(http.StatusOK, out)
+}
+
+// storeHealth asks the store (which probes a write while degraded), updates the gauge and logs
+// changes of state.
+func (s *Server) storeHealth(ctx context.Context) data.Health {
+	h := s.store.Health(ctx)
+	up := 0.0
+	if h.Writable && h.Reachable {
+		up = 1
+	}
+	s.metrics.storeUp.Set(up)
+	if was := s.degraded.Swap(!h.Writable); was != !h.Writable {
+		if h.Writable {
+			s.log.Info("store takes writes again")
+		} else {
+			s.log.Error("store degraded: writes fail", "since", h.Since, "err", h.Detail)
+		}
+	}
+	return h
 }

@@ -56,6 +56,7 @@ func (s *Store) claimIdempotency(ctx context.Context, tx *sql.Tx, resource strin
 	} else if n == 0 {
 		return ErrIdempotencyInFlight
 	}
+	FaultPoint("idempotent-write-before-commit")
 	return nil
 }
 
@@ -125,7 +126,7 @@ func idemCutoff() string { return time.Now().Add(-IdempotencyTTL).UTC().Format(t
 func (s *Store) PurgeIdempotency(ctx context.Context) (int64, error) {
 	res, err := s.db.ExecContext(ctx, s.q(`DELETE FROM idempotency WHERE created_at < ?`), idemCutoff())
 	if err != nil {
-		return 0, err
+		return 0, s.fault(err)
 	}
 	return res.RowsAffected()
 }

@@ -35,7 +35,7 @@ func (s *Store) CreateAPIKey(ctx context.Context, name string) (APIKey, string, 
 	k := APIKey{ID: newID("key_"), Name: name}
 	ts := now()
 	if _, err := s.db.ExecContext(ctx, s.q(`INSERT INTO api_keys (id, name, hash, created_at) VALUES (?, ?, ?, ?)`), k.ID, name, hashKey(secret), ts); err != nil {
-		return APIKey{}, "", fmt.Errorf("create key: %w", err)
+		return APIKey{}, "", fmt.Errorf("create key: %w", s.fault(err))
 	}
 	k.CreatedAt = parseTime(ts)
 	return k, secret, nil
@@ -78,7 +78,7 @@ func (s *Store) ListAPIKeys(ctx context.Context) ([]APIKey, error) {
 func (s *Store) RevokeAPIKey(ctx context.Context, id string) error {
 	res, err := s.db.ExecContext(ctx, s.q(`UPDATE api_keys SET revoked_at = ? WHERE id = ? AND revoked_at = ''`), now(), id)
 	if err != nil {
-		return err
+		return s.fault(err)
 	}
 	if n, err := res.RowsAffected(); err != nil {
 		return err

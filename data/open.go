@@ -10,7 +10,7 @@ import (
 	"os"
 	"strings"
 
-	_ "github.com/mattn/go-sqlite3" // SQLite driver (cgo)
+	"github.com/mattn/go-sqlite3" // SQLite driver (cgo)
 	"github.com/pressly/goose/v3"
 
 	"ringsieve/migrations"
@@ -27,6 +27,12 @@ func Open(ctx context.Context, dsn string) (*Store, error) {
 // a write acknowledged to a client has been flushed to the disk with its WAL frame, so it
 // survives a crash of the process and of the machine (power loss), at the cost of one sync per
 // commit (design choice; job results are committed a chunk at a time, so the cost is small).
+//
+// The file is opened through SQLite's "unix-excl" VFS: the first access takes an exclusive lock
+// for this process (its connections share the file; another process gets ErrInUse), and the WAL
+// index lives in heap memory instead of a memory-mapped -shm file. A memory-mapped file that
+// cannot be written (a file made immutable, a full disk) ends a process with SIGBUS; heap memory
+// cannot, so storage faults come back as errors (ErrUnavailable) and the service stays up.
 func openSQLite(ctx context.Context, path string) (*Store, error) {
 	if err := createPrivate(path); err != nil {
 		return nil, fmt.Errorf("open %s: %w", path, err)
@@ -34,9 +40,10 @@ func openSQLite(ctx context.Context, path string) (*Store, error) {
 	q := url.Values{}
 	q.Set("_journal_mode", "WAL")
 	q.Set("_foreign_keys", "on")
-	q.Set("_busy_timeout", "5000")
+	q.Set("_busy_timeout", "2000")
 	q.Set("_synchronous", "FULL")
 	q.Set("_txlock", "immediate")
+	q.Set("vfs", "unix-excl")
 	// the path is part of a URI: escape the characters that would end or change it
 	esc := strings.NewReplacer("%", "%25", "?", "%3f", "#", "%23").Replace(path)
 	db, err := sql.Open("sqlite3", "file:"+esc+"?"+q.Encode())
@@ -46,14 +53,30 @@ func openSQLite(ctx context.Context, path string) (*Store, error) {
 	db.SetMaxOpenConns(8)
 	if err := db.PingContext(ctx); err != nil {
 		db.Close()
+		if inUse(err) {
+			return nil, errInUse(path)
+		}
 		return nil, fmt.Errorf("open %s: %w", path, err)
 	}
 	s := &Store{db: db, dialect: sqliteDialect, path: path}
 	if err := s.migrate(ctx, goose.DialectSQLite3, migrations.SQLite); err != nil {
 		db.Close()
+		if inUse(err) {
+			return nil, errInUse(path)
+		}
 		return nil, fmt.Errorf("migrate %s: %w", path, err)
 	}
 	return s, nil
+}
+
+// inUse reports whether err is SQLite's answer to a file locked by another process.
+func inUse(err error) bool {
+	var se sqlite3.Error
+	return errors.As(err, &se) && (se.Code == sqlite3.ErrBusy || se.Code == sqlite3.ErrLocked)
+}
+
+func errInUse(path string) error {
+	return fmt.Errorf("%s: %w: an SQLite store serves one process at a time — stop the other ringsieve process (a running server) first, or use a PostgreSQL store for several", path, ErrInUse)
 }
 
 // createPrivate creates the database file readable by its owner only when it does not exist

@@ -13,6 +13,7 @@ import (
 	"fmt"
 	"strconv"
 	"strings"
+	"sync/atomic"
 	"time"
 
 	"ringsieve/screening/batch"
@@ -38,6 +39,9 @@ type Store struct {
 	db      *sql.DB
 	dialect dialect
 	path    string // SQLite file, for messages
+	faults  faultState
+	// degraded is set while writes fail with storage faults (fast check for recovered)
+	degraded atomic.Bool
 }
 
 // dialect holds what differs between the engines the SQL runs on.
@@ -111,18 +115,24 @@ func tsPtr(s string) *time.Time {
 }
 
 // tx runs fn in a transaction, committing on success and rolling back on any error.
+// A storage fault (read-only or full disk, I/O error) comes back wrapping ErrUnavailable and
+// marks the store degraded until a probe write succeeds.
 func (s *Store) tx(ctx context.Context, fn func(*sql.Tx) error) error {
 	t, err := s.db.BeginTx(ctx, nil)
 	if err != nil {
-		return err
+		return s.fault(err)
 	}
 	if err := fn(t); err != nil {
 		if rb := t.Rollback(); rb != nil && !errors.Is(rb, sql.ErrTxDone) {
-			return fmt.Errorf("%w (and rollback: %v)", err, rb)
+			return s.fault(fmt.Errorf("%w (and rollback: %v)", err, rb))
 		}
-		return err
+		return s.fault(err)
 	}
-	return t.Commit()
+	if err := t.Commit(); err != nil {
+		return s.fault(err)
+	}
+	s.recovered()
+	return nil
 }
 
 // exec and queryRow run a ?-placeholder query in a transaction on the store's engine.

@@ -43,9 +43,32 @@ type (
 // Error sentinels: every malformed SMILES matches ErrSMILES; every out-of-range or inconsistent
 // value (and every malformed molfile) matches ErrInvalid.
 var (
-	ErrSMILES  = smiles.ErrSMILES
-	ErrInvalid = units.ErrInvalid
+	ErrSMILES     = smiles.ErrSMILES
+	ErrInvalid    = units.ErrInvalid
+	ErrTooComplex = units.ErrTooComplex
 )
+
+// MaxRingWork bounds the work of screening one structure, counted in ring look-ups: each
+// analysed ring olefin costs the number of rings in its ring system (every ring of the system
+// is keyed and looked up before and after opening). Real monomers stay far below it
+// (dicyclopentadiene: 2 olefins × 4 rings = 8; a porphyrin-bearing norbornene about 10); a
+// ladder of 100 fused olefin rings reaches ~1,200 and costs a quarter of a CPU-second
+// (design choice: the limit keeps every accepted structure under ~0.1 CPU-second in the table tier).
+const MaxRingWork = 500
+
+// checkWork returns an ErrTooComplex error naming the numbers when s is over MaxRingWork.
+func checkWork(s *Structure) error {
+	work, most := 0, 0
+	for _, o := range s.Olefins {
+		work += len(o.SystemRings)
+		most = max(most, len(o.SystemRings))
+	}
+	if work > MaxRingWork {
+		return fmt.Errorf("%d analysed ring olefins in ring systems of up to %d rings need %d ring look-ups; the limit per structure is %d: %w",
+			len(s.Olefins), most, work, MaxRingWork, ErrTooComplex)
+	}
+	return nil
+}
 
 // StructureKey is the canonical key of a SMILES's screened component: its constitution and,
 // when the SMILES specifies stereo, the stereo the descriptors see. Two SMILES of the same
@@ -157,6 +180,9 @@ func ScreenStructure(s *Structure, c Conditions) (Result, error) {
 
 // ScreenStructureContext is ScreenStructure under ctx.
 func ScreenStructureContext(ctx context.Context, s *Structure, c Conditions) (Result, error) {
+	if err := checkWork(s); err != nil {
+		return Result{}, err
+	}
 	base := s.MoleculeDescriptors()
 	var bulkNote *Reason
 	if c.Bulk {

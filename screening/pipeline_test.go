@@ -1,6 +1,8 @@
 package screening_test
 
 import (
+	"errors"
+	"fmt"
 	"reflect"
 	"sort"
 	"strings"
@@ -176,5 +178,52 @@ M  END`
 	b, _ := ScreenSMILES("C1=CC2CCC1C2", DefaultConditions())
 	if a.Descriptors.Formula != "C7H10" || a.Verdict != b.Verdict || a.Descriptors.SkeletonKey != b.Descriptors.SkeletonKey {
 		t.Errorf("molfile: %s %s %s; SMILES: %s %s", a.Descriptors.Formula, a.Verdict, a.Descriptors.SkeletonKey, b.Verdict, b.Descriptors.SkeletonKey)
+	}
+}
+
+// ladderSMILES writes a linear ladder of n fused six-membered rings with an olefin in every
+// other ring (a stress input, not a monomer).
+func ladderSMILES(n int) string {
+	var b strings.Builder
+	b.WriteString("C1CCC2")
+	for k := 3; k <= n; k++ {
+		if k%2 == 1 {
+			fmt.Fprintf(&b, "C=C%%%02d", k)
+		} else {
+			fmt.Fprintf(&b, "CC%%%02d", k)
+		}
+	}
+	fmt.Fprintf(&b, "CCCC=C%%%02d", n)
+	for k := n - 1; k > 1; k-- {
+		if k%2 == 0 {
+			fmt.Fprintf(&b, "C=C%%%02d", k)
+		} else {
+			fmt.Fprintf(&b, "CC%%%02d", k)
+		}
+	}
+	b.WriteString("C1")
+	return b.String()
+}
+
+// TestWorkBound: a structure over MaxRingWork is refused with ErrTooComplex before any
+// estimate is computed; real polycyclic monomers pass.
+func TestWorkBound(t *testing.T) {
+	for _, tc := range []struct {
+		name, smiles string
+		tooComplex   bool
+	}{
+		{"dicyclopentadiene (common practice: a routine ROMP monomer)", "C1=CC2C3C=CC(C3)C2C1", false},
+		{"DCPD trimer-like chain of fused bicycles", strings.Repeat("C1=CC2C3C=CC(C3)C2C1", 10), false},
+		{"ladder of 20 fused rings", ladderSMILES(20), false},
+		{"ladder of 60 fused rings, 12 olefins analysed", ladderSMILES(60), true},
+		{"ladder of 95 fused rings", ladderSMILES(95), true},
+	} {
+		_, err := ScreenSMILES(tc.smiles, DefaultConditions())
+		if got := errors.Is(err, ErrTooComplex); got != tc.tooComplex {
+			t.Errorf("%s: error %v, want too complex %v", tc.name, err, tc.tooComplex)
+		}
+		if tc.tooComplex && (err == nil || !strings.Contains(err.Error(), "limit per structure is 500")) {
+			t.Errorf("%s: error %v should name the numbers", tc.name, err)
+		}
 	}
 }

@@ -87,6 +87,7 @@ const (
 	CodeInvalidSMILES = "invalid_smiles"
 	CodeInvalidValue  = "invalid_value"
 	CodeNotFound      = "not_found"
+	CodeTooComplex    = "structure_too_complex"
 	CodeInternal      = "internal"
 )
 
@@ -101,6 +102,8 @@ func (e *ItemError) Unwrap() error {
 		return units.ErrInvalid
 	case CodeNotFound:
 		return ErrNotFound
+	case CodeTooComplex:
+		return units.ErrTooComplex
 	}
 	return nil
 }
@@ -125,6 +128,8 @@ func NewItemError(err error) *ItemError {
 		e.Code, e.Field = CodeInvalidValue, fe.Field
 	case errors.As(err, &me):
 		e.Code, e.Field = CodeInvalidValue, "molfile"
+	case errors.Is(err, units.ErrTooComplex):
+		e.Code, e.Field = CodeTooComplex, "smiles"
 	case errors.Is(err, units.ErrInvalid):
 		e.Code = CodeInvalidValue
 	case errors.Is(err, ErrNotFound):

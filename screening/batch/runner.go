@@ -25,6 +25,8 @@ type Runner struct {
 	Log     *slog.Logger
 	// Observe, when set, is called once per stored chunk with its outcomes (metrics).
 	Observe func(outs []Outcome)
+	// Retry is how failed result writes are retried (zero fields: the defaults below).
+	Retry RetryPolicy
 
 	wake chan struct{}
 }
@@ -42,6 +44,13 @@ const (
 	writeBackoffMax = 30 * time.Second
 	idlePoll        = 2 * time.Second
 )
+
+// RetryPolicy spaces the attempts to store a chunk's outcomes: waits double from First up to
+// Max between at most Attempts attempts; then the job fails.
+type RetryPolicy struct {
+	Attempts   int
+	First, Max time.Duration
+}
 
 // Notify wakes the runner when work arrives.
 func (r *Runner) Notify() {
@@ -61,6 +70,15 @@ func (r *Runner) init() {
 	}
 	if r.Log == nil {
 		r.Log = slog.New(slog.DiscardHandler)
+	}
+	if r.Retry.Attempts <= 0 {
+		r.Retry.Attempts = writeAttempts
+	}
+	if r.Retry.First <= 0 {
+		r.Retry.First = writeBackoff
+	}
+	if r.Retry.Max <= 0 {
+		r.Retry.Max = writeBackoffMax
 	}
 	if r.Owner == "" {
 		var b [6]byte
@@ -145,7 +163,7 @@ func (r *Runner) process(ctx context.Context, c Chunk) {
 // store writes a chunk's outcomes, retrying storage faults with back-off; after the last
 // attempt the job fails.
 func (r *Runner) store(ctx context.Context, log *slog.Logger, c Chunk, outs []Outcome) {
-	wait := writeBackoff
+	wait := r.Retry.First
 	for attempt := 1; ; attempt++ {
 		_, err := r.Store.CompleteChunk(ctx, c, outs)
 		switch {
@@ -162,7 +180,7 @@ func (r *Runner) store(ctx context.Context, log *slog.Logger, c Chunk, outs []Ou
 			return
 		}
 		log.Error("store chunk outcomes", "attempt", attempt, "err", err)
-		if attempt == writeAttempts {
+		if attempt == r.Retry.Attempts {
 			r.fail(ctx, log, c, fmt.Sprintf("results could not be stored after %d attempts", attempt))
 			return
 		}
@@ -176,7 +194,7 @@ func (r *Runner) store(ctx context.Context, log *slog.Logger, c Chunk, outs []Ou
 			log.Warn("lease lost while retrying the write; another worker redoes the chunk")
 			return
 		}
-		wait = min(2*wait, writeBackoffMax)
+		wait = min(2*wait, r.Retry.Max)
 	}
 }
 

@@ -43,11 +43,27 @@ func Perceive(m *mol.Molecule) *Rings {
 	scratch := make([]int, 3*len(m.Atoms))
 	var seenMasks []uint64 // bond masks of the rings found, when the molecule has at most 64 bonds
 	small := len(m.Bonds) <= 64
+	var seenHash map[[2]uint64]bool // larger molecules: bond-set hashes of the rings found
+	cycleOf := simpleCycles(m, inRing)
 	for bi := range m.Bonds {
 		if !inRing[bi] {
 			continue
 		}
-		path := shortestPathAvoiding(m, m.Bonds[bi].A, m.Bonds[bi].B, bi, scratch)
+		var path []int
+		if c := cycleOf[bi]; c != nil {
+			// a ring system that is one plain cycle: its only ring, found without a search
+			if c[0] == -1 {
+				continue // already listed
+			}
+			path = c[1:]
+			for _, b := range ringBondsOfPath(m, path) {
+				p.BondRingSize[b] = len(path)
+			}
+			c[0] = -1
+			candidates = append(candidates, ringFromPath(m, path))
+			continue
+		}
+		path = shortestPathAvoiding(m, m.Bonds[bi].A, m.Bonds[bi].B, bi, scratch)
 		if path == nil {
 			continue
 		}
@@ -69,6 +85,17 @@ func Perceive(m *mol.Molecule) *Rings {
 				continue
 			}
 			seenMasks = append(seenMasks, mask)
+		} else {
+			// the same ring is found through each of its bonds: keep it once (a large macrocycle
+			// would otherwise give as many candidate copies as it has bonds)
+			h := pathHash(m, path)
+			if seenHash[h] {
+				continue
+			}
+			if seenHash == nil {
+				seenHash = map[[2]uint64]bool{}
+			}
+			seenHash[h] = true
 		}
 		candidates = append(candidates, ringFromPath(m, path))
 	}
@@ -85,6 +112,93 @@ func Perceive(m *mol.Molecule) *Rings {
 	p.SSSR = selectSSSR(m, candidates)
 	p.perceiveAromaticity(m)
 	return p
+}
+
+// simpleCycles finds the ring systems that are one plain cycle (as many ring bonds as atoms, every
+// atom on two of them) and returns, per ring bond of such a system, the cycle as a slice whose
+// first element is a marker (0) followed by the atoms in ring order; other bonds get nil. Rings
+// of such systems need no shortest-path search, which keeps a 1,000-membered macrocycle linear.
+func simpleCycles(m *mol.Molecule, inRing []bool) [][]int {
+	out := make([][]int, len(m.Bonds))
+	deg := make([]int, len(m.Atoms))
+	for bi, r := range inRing {
+		if r {
+			deg[m.Bonds[bi].A]++
+			deg[m.Bonds[bi].B]++
+		}
+	}
+	seen := make([]bool, len(m.Atoms))
+	for start := range m.Atoms {
+		if seen[start] || deg[start] == 0 {
+			continue
+		}
+		// walk the ring-bond component from start; it is a plain cycle when every atom on it has
+		// ring degree 2 and the walk returns to start
+		cyc := []int{0, start}
+		seen[start] = true
+		plain := deg[start] == 2
+		prevBond, x := -1, start
+		var bonds []int
+		for {
+			next, nb := -1, -1
+			for _, bi := range m.Neighbors(x) {
+				if inRing[bi] && bi != prevBond {
+					next, nb = m.Other(bi, x), bi
+					break
+				}
+			}
+			if next < 0 {
+				plain = false
+				break
+			}
+			bonds = append(bonds, nb)
+			if next == start {
+				break
+			}
+			if seen[next] || deg[next] != 2 {
+				plain = false
+				break
+			}
+			seen[next] = true
+			cyc = append(cyc, next)
+			prevBond, x = nb, next
+		}
+		if !plain {
+			// mark the rest of this component as seen so it is not walked again
+			markComponent(m, inRing, start, seen)
+			continue
+		}
+		for _, bi := range bonds {
+			out[bi] = cyc
+		}
+	}
+	return out
+}
+
+// markComponent marks every atom reachable from s over ring bonds.
+func markComponent(m *mol.Molecule, inRing []bool, s int, seen []bool) {
+	visited := make([]bool, len(m.Atoms))
+	stack := []int{s}
+	visited[s], seen[s] = true, true
+	for len(stack) > 0 {
+		x := stack[len(stack)-1]
+		stack = stack[:len(stack)-1]
+		for _, bi := range m.Neighbors(x) {
+			if o := m.Other(bi, x); inRing[bi] && !visited[o] {
+				visited[o], seen[o] = true, true
+				stack = append(stack, o)
+			}
+		}
+	}
+}
+
+// ringBondsOfPath lists the bonds of a closed path.
+func ringBondsOfPath(m *mol.Molecule, path []int) []int {
+	out := make([]int, len(path))
+	for i := range path {
+		out[i] = m.BondBetween(path[i], path[(i+1)%len(path)])
+	}
+	return out
 }
 
 // ringBonds marks the bonds that lie on a cycle: every bond that is not a bridge of the graph
@@ -184,6 +298,28 @@ func shortestPathAvoiding(m *mol.Molecule, a, b, skip int, scratch []int) []int 
 		path[i], path[j] = path[j], path[i]
 	}
 	return path
+}
+
+// pathHash is an order-free hash of the bond set of a closed path: two sums of a 64-bit mix of
+// each bond index (equal for the same ring found from any of its bonds; a collision of both
+// sums between two different rings of one molecule is negligibly unlikely).
+func pathHash(m *mol.Molecule, path []int) [2]uint64 {
+	var h [2]uint64
+	for i := range path {
+		b := uint64(m.BondBetween(path[i], path[(i+1)%len(path)]))
+		h[0] += mix64(b + 0x9e3779b97f4a7c15)
+		h[1] += mix64(b*0xbf58476d1ce4e5b9 + 1)
+	}
+	return h
+}
+
+// mix64 is the finalizer of the splitmix64 generator (Steele, Lea & Flood, OOPSLA 2014).
+func mix64(x uint64) uint64 {
+	x ^= x >> 30
+	x *= 0xbf58476d1ce4e5b9
+	x ^= x >> 27
+	x *= 0x94d049bb133111eb
+	return x ^ x>>31
 }
 
 func ringFromPath(m *mol.Molecule, path []int) Ring {

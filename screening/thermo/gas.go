@@ -1,6 +1,7 @@
 package thermo
 
 import (
+	"fmt"
 	"math"
 	"sort"
 	"strconv"
@@ -101,7 +102,7 @@ func (t *ringTable) ringSystemsTerms(sub *mol.Molecule, p *rings.Rings, trans bo
 	var terms []strainTerm
 	for _, sys := range systems {
 		atoms := rings.Atoms(p.SSSR, sys)
-		key := systemKey(sub, atoms, -1, trans && len(sys) == 1)
+		key := t.lookupKey(sub, atoms, trans && len(sys) == 1)
 		if row, ok := t.byKey[key]; ok {
 			terms = append(terms, strainTerm{Key: key, Name: row.Name, H: row.RSCH, S: row.RSCS, UH: row.UH, US: row.US, Hit: true, Row: row})
 			continue
@@ -117,7 +118,7 @@ func (t *ringTable) ringSystemsTerms(sub *mol.Molecule, p *rings.Rings, trans bo
 				done[c] = true
 			}
 			catoms := rings.Atoms(p.SSSR, core)
-			ckey := systemKey(sub, catoms, -1, trans && containsBoth(catoms, olA, olB))
+			ckey := t.lookupKey(sub, catoms, trans && containsBoth(catoms, olA, olB))
 			if row, ok := t.byKey[ckey]; ok {
 				terms = append(terms, strainTerm{Key: ckey, Name: row.Name, H: row.RSCH, S: row.RSCS, UH: row.UH, US: row.US, Hit: true, Row: row})
 				continue
@@ -126,6 +127,15 @@ func (t *ringTable) ringSystemsTerms(sub *mol.Molecule, p *rings.Rings, trans bo
 		}
 	}
 	return terms
+}
+
+// lookupKey is systemKey for a table look-up: a system larger than every table row gets a
+// plain size label instead of its canonical key, which no row could match anyway.
+func (t *ringTable) lookupKey(sub *mol.Molecule, atoms []int, trans bool) string {
+	if len(atoms) > t.maxAtoms {
+		return fmt.Sprintf("ring system of %d atoms", len(atoms))
+	}
+	return systemKey(sub, atoms, -1, trans)
 }
 
 // fallback estimates a core the table lacks. First choice: the all-carbon analogue of the whole
@@ -138,7 +148,9 @@ func (t *ringTable) ringSystemsTerms(sub *mol.Molecule, p *rings.Rings, trans bo
 func (t *ringTable) fallback(sub *mol.Molecule, p *rings.Rings, core []int, key string) strainTerm {
 	term := strainTerm{Key: key, Name: "estimate for " + key}
 	catoms := rings.Atoms(p.SSSR, core)
-	if row, ok := t.byKey[carbonAnalogueKey(sub, catoms)]; ok && len(core) > 1 {
+	if len(catoms) > t.maxAtoms {
+		// no row can match: skip the all-carbon analogue's key
+	} else if row, ok := t.byKey[carbonAnalogueKey(sub, catoms)]; ok && len(core) > 1 {
 		term.Name = "all-carbon analogue " + row.Name
 		term.H, term.S = row.RSCH, row.RSCS
 		term.UH, term.US = math.Hypot(row.UH, 8), math.Hypot(row.US, 15)

@@ -64,6 +64,9 @@ type RingRow struct {
 type ringTable struct {
 	rows  []*RingRow
 	byKey map[string]*RingRow
+	// maxAtoms is the atom count of the table's largest ring system: larger systems cannot
+	// match a row, so their canonical keys (the costly step for big fused systems) are skipped.
+	maxAtoms int
 	// offsets fitted on the measured values
 	OffsetH, OffsetHU float64
 	OffsetS, OffsetSU float64
@@ -197,6 +200,7 @@ func loadTable() (*ringTable, error) {
 		}
 		sort.Ints(list)
 		row.Key = systemKey(m, list, -1, row.Trans)
+		t.maxAtoms = max(t.maxAtoms, len(list))
 		row.constKey = canon.StructureKey(m, p, seq(len(m.Atoms)))
 		row.Rings = len(p.SSSR)
 		if prev, dup := t.byKey[row.Key]; dup {

@@ -14,6 +14,10 @@ import (
 // errors.Is(err, ErrInvalid) holds for every *FieldError.
 var ErrInvalid = errors.New("invalid input")
 
+// ErrTooComplex is the sentinel for a well-formed structure whose screening would need more
+// work than the per-structure bound allows (see screening.MaxRingWork).
+var ErrTooComplex = errors.New("structure too complex")
+
 // FieldError names the input field that is wrong and why.
 type FieldError struct {
 	Field string
