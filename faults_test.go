@@ -234,17 +234,19 @@ func TestFaultsLoadShedding(t *testing.T) {
 		}()
 		pw.Write([]byte(`{"smiles":`))
 	}
-	deadline := time.Now().Add(5 * time.Second)
-	var st int
-	var h http.Header
-	var b []byte
-	for time.Now().Before(deadline) {
-		st, b, h = call(t, "POST", s.base+"/v1/screen", J, strings.NewReader(`{"smiles":"C1=CC2CCC1C2"}`))
-		if st == 503 {
+	// wait until both are being served (the in-flight gauge; /metrics is exempt from the limit)
+	deadline := time.Now().Add(10 * time.Second)
+	for {
+		_, m, _ := call(t, "GET", s.base+"/metrics", "", nil)
+		if bytes.Contains(m, []byte("\nringsieve_http_in_flight 2\n")) {
 			break
 		}
-		time.Sleep(20 * time.Millisecond)
+		if time.Now().After(deadline) {
+			t.Fatalf("the held requests never reached the server")
+		}
+		time.Sleep(10 * time.Millisecond)
 	}
+	st, b, h := call(t, "POST", s.base+"/v1/screen", J, strings.NewReader(`{"smiles":"C1=CC2CCC1C2"}`))
 	if p := problemOf(t, b); st != 503 || h.Get("Retry-After") == "" || !strings.HasSuffix(fmt.Sprint(p["type"]), "/overloaded") {
 		t.Errorf("third request: %d Retry-After %q %s, want 503 overloaded with Retry-After", st, h.Get("Retry-After"), b)
 	}

@@ -63,7 +63,7 @@ func serveCmd(getenv func(string) string) *cobra.Command {
 	workers := -1
 	cmd := &cobra.Command{
 		Use:   "serve",
-		Short: "Run the HTTP service (creates and migrates the SQLite database)",
+		Short: "Run the HTTP service (creates and migrates the database: an SQLite file, or PostgreSQL)",
 		Args:  cobra.NoArgs,
 		RunE: func(cmd *cobra.Command, _ []string) error {
 			if cors != "" {
@@ -86,7 +86,7 @@ func serveCmd(getenv func(string) string) *cobra.Command {
 	}
 	f := cmd.Flags()
 	f.StringVar(&cfg.Addr, "addr", cfg.Addr, "listen address HOST:PORT (env RINGSIEVE_ADDR)")
-	f.StringVar(&cfg.DBPath, "db", cfg.DBPath, "SQLite database file (env RINGSIEVE_DB)")
+	f.StringVar(&cfg.DBPath, "db", cfg.DBPath, "SQLite database file, or a PostgreSQL URL postgres://… shared by replicas and workers (env RINGSIEVE_DB)")
 	f.StringVar(&cfg.LogLevel, "log-level", cfg.LogLevel, "debug, info, warn or error (env RINGSIEVE_LOG_LEVEL)")
 	f.StringVar(&cors, "cors-origins", "", "comma-separated origins allowed by CORS, or * (env RINGSIEVE_CORS_ORIGINS)")
 	f.StringVar(&requireKeys, "require-keys", requireKeys, "API keys: off, writes or all (env RINGSIEVE_REQUIRE_KEYS; writes is forced on a non-loopback address)")
@@ -156,7 +156,7 @@ func serve(ctx context.Context, cfg Config, logOut interface{ Write([]byte) (int
 		IdleTimeout:       cfg.IdleTimeout,
 		MaxHeaderBytes:    1 << 20,
 	}
-	log.Info("ringsieve listening", "addr", ln.Addr().String(), "db", cfg.DBPath, "api_keys_required", cfg.API.RequireKeys)
+	log.Info("ringsieve listening", "addr", ln.Addr().String(), "db", redactDB(cfg.DBPath), "api_keys_required", cfg.API.RequireKeys)
 	errc := make(chan error, 1)
 	go func() { errc <- hs.Serve(ln) }()
 	select {

@@ -35,7 +35,8 @@ func (s *Server) limitInFlight(c *gin.Context) {
 		fail(c, badRequest(errOverloaded, "", "the server is at its limit of requests in flight; retry after a few seconds"))
 		return
 	}
-	defer s.inFlight.release()
+	s.metrics.inFlight.Inc()
+	defer func() { s.metrics.inFlight.Dec(); s.inFlight.release() }()
 	c.Next()
 }
 

@@ -135,12 +135,27 @@ func (s *Server) auth(c *gin.Context) {
 		return
 	}
 	c.Set(ctxKeyID, id)
-	if !s.limiter(id).Allow() {
+	if !s.allow(c.Request.Context(), id) {
 		c.Header("Retry-After", "1")
 		fail(c, badRequest(errRateLimited, "", fmt.Sprintf("more than %.0f requests per second for this key", s.cfg.RatePerKey)))
 		return
 	}
 	c.Next()
+}
+
+// allow applies the per-key rate limit: in the database when the store shares it between
+// replicas (PostgreSQL), else in this process. A store that cannot answer lets the request
+// through (the limit protects capacity; refusing every request would be worse).
+func (s *Server) allow(ctx context.Context, id string) bool {
+	if s.store.SharedRateLimits() {
+		ok, err := s.store.TakeToken(ctx, id, s.cfg.RatePerKey, s.cfg.RateBurst)
+		if err != nil {
+			s.log.Warn("shared rate limit unavailable", "err", err)
+			return true
+		}
+		return ok
+	}
+	return s.limiter(id).Allow()
 }
 
 func (s *Server) limiter(id string) *rate.Limiter {
@@ -160,6 +175,9 @@ type metrics struct {
 	queue      prometheus.Gauge
 	jobItems   prometheus.Counter
 	shed       prometheus.Counter
+	claims     prometheus.Counter
+	inFlight   prometheus.Gauge
+	leaseLost  prometheus.Counter
 	storeUp    prometheus.Gauge
 }
 
@@ -173,7 +191,10 @@ func newMetrics() *metrics {
 	m.jobItems = prometheus.NewCounter(prometheus.CounterOpts{Name: "ringsieve_job_items_screened_total", Help: "Items screened by asynchronous jobs."})
 	m.shed = prometheus.NewCounter(prometheus.CounterOpts{Name: "ringsieve_http_shed_total", Help: "Requests turned away with 503 because the server was at its in-flight or upload limit."})
 	m.storeUp = prometheus.NewGauge(prometheus.GaugeOpts{Name: "ringsieve_store_writable", Help: "1 while the store takes writes, 0 while it is degraded (read-only, full or failing disk)."})
-	m.reg.MustRegister(m.requests, m.latency, m.screenings, m.queue, m.jobItems, m.shed, m.storeUp,
+	m.claims = prometheus.NewCounter(prometheus.CounterOpts{Name: "ringsieve_job_chunks_claimed_total", Help: "Job chunks claimed by this process's runner."})
+	m.leaseLost = prometheus.NewCounter(prometheus.CounterOpts{Name: "ringsieve_job_lease_lost_total", Help: "Job chunks this process gave up because their lease passed to another worker."})
+	m.inFlight = prometheus.NewGauge(prometheus.GaugeOpts{Name: "ringsieve_http_in_flight", Help: "Requests being served now (those counted against --max-in-flight)."})
+	m.reg.MustRegister(m.requests, m.latency, m.screenings, m.queue, m.jobItems, m.shed, m.storeUp, m.claims, m.leaseLost, m.inFlight,
 		prometheus.NewGoCollector(), prometheus.NewProcessCollector(prometheus.ProcessCollectorOpts{}))
 	return m
 }

@@ -110,7 +110,8 @@ func New(cfg Config, store *data.Store, log *slog.Logger) *Server {
 		cfg.Workers = runtime.NumCPU()
 	}
 	if !cfg.ServeOnly {
-		s.runner = &batch.Runner{Store: store, Workers: cfg.Workers, Log: log, Observe: s.metrics.observeChunk}
+		s.runner = &batch.Runner{Store: store, Workers: cfg.Workers, Log: log, Observe: s.metrics.observeChunk,
+			OnClaim: s.metrics.claims.Inc, OnLeaseLost: s.metrics.leaseLost.Inc}
 	}
 	return s
 }
@@ -120,10 +121,14 @@ func New(cfg Config, store *data.Store, log *slog.Logger) *Server {
 // by a restart are resumed from their first unrecorded chunk.
 func (s *Server) Start(ctx context.Context) error {
 	if s.runner != nil {
-		s.wg.Add(1)
+		s.wg.Add(2)
 		go func() {
 			defer s.wg.Done()
 			s.runner.Run(ctx)
+		}()
+		go func() { // jobs submitted to other replicas (PostgreSQL): start without waiting for a poll
+			defer s.wg.Done()
+			s.store.ListenJobs(ctx, func(string) { s.runner.Notify() })
 		}()
 	}
 	s.wg.Add(1)

@@ -33,6 +33,9 @@ const probeEvery = 2 * time.Second
 // storageFault reports whether err is a fault of the storage itself rather than of the request:
 // SQLite's read-only, full, I/O, cannot-open, permission, busy and locked results.
 func storageFault(err error) bool {
+	if pgFault(err) {
+		return true
+	}
 	var se sqlite3.Error
 	if !errors.As(err, &se) {
 		return false

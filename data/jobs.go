@@ -27,20 +27,30 @@ type JobMeta struct {
 	Format       string   // input format (json, smiles, csv, sdf)
 }
 
-// DefaultChunkSize is the number of items a worker claims at a time (design choice: about
-// 20 ms of screening per item-thousand on one core for the fast tier, so a chunk is claimed,
-// screened and stored a few times a second).
-const DefaultChunkSize = 1024
+// DefaultChunkSize is the number of items a worker claims at a time in the fast tier (design
+// choice: about 20 ms of screening per item-thousand on one core, so a chunk is claimed,
+// screened and stored a few times a second). ForceFieldChunkSize is the chunk of jobs whose
+// thermodynamics may use the force field (auto, forcefield): tens of milliseconds to a second
+// per item, so small chunks let several workers share even a short list.
+const (
+	DefaultChunkSize    = 1024
+	ForceFieldChunkSize = 32
+)
+
+// ChunkSizeFor returns the chunk size for a job's thermo method.
+func ChunkSizeFor(method string) int {
+	if method == "table" {
+		return DefaultChunkSize
+	}
+	return ForceFieldChunkSize
+}
 
 // CreateJob stores a job whose items are produced by fill, in one transaction: fill calls add
 // for each item as it is read and finally returns the job's conditions, extra columns and input
-// format. The items are split into chunks of chunkSize (≤ 0: DefaultChunkSize) that workers
+// format. The items are split into chunks of chunkSize (≤ 0: ChunkSizeFor the job's method) that workers
 // claim. Nothing is stored when fill or any insert fails, and items never need to be held in
 // memory at once. An idempotency claim in ctx is recorded in the same transaction.
 func (s *Store) CreateJob(ctx context.Context, chunkSize int, fill func(add func(JobInput) error) (JobMeta, error)) (batch.Job, error) {
-	if chunkSize <= 0 {
-		chunkSize = DefaultChunkSize
-	}
 	j := batch.Job{ID: newID("job_"), Status: batch.JobQueued}
 	ts := now()
 	err := s.tx(ctx, func(tx *sql.Tx) error {
@@ -75,6 +85,9 @@ func (s *Store) CreateJob(ctx context.Context, chunkSize int, fill func(add func
 		if err != nil {
 			return err
 		}
+		if err := s.notifyJob(ctx, tx, "new:"+j.ID); err != nil {
+			return err
+		}
 		if meta.ExtraColumns == nil {
 			meta.ExtraColumns = []string{}
 		}
@@ -91,7 +104,11 @@ func (s *Store) CreateJob(ctx context.Context, chunkSize int, fill func(add func
 			string(cj), n, string(ec), meta.Format, j.ID); err != nil {
 			return err
 		}
-		if err := s.insertChunks(ctx, tx, j.ID, n, chunkSize); err != nil {
+		size := chunkSize
+		if size <= 0 {
+			size = ChunkSizeFor(meta.Conditions.ThermoMethod)
+		}
+		if err := s.insertChunks(ctx, tx, j.ID, n, size); err != nil {
 			return err
 		}
 		return s.claimIdempotency(ctx, tx, j.ID)
@@ -167,8 +184,10 @@ func (s *Store) CancelJob(ctx context.Context, id string) (batch.Job, error) {
 		if st != batch.JobQueued && st != batch.JobRunning {
 			return fmt.Errorf("job %q is %s: %w", id, st, ErrJobFinished)
 		}
-		_, err := s.exec(ctx, tx, `UPDATE jobs SET status = 'canceled', finished_at = ? WHERE id = ?`, now(), id)
-		return err
+		if _, err := s.exec(ctx, tx, `UPDATE jobs SET status = 'canceled', finished_at = ? WHERE id = ?`, now(), id); err != nil {
+			return err
+		}
+		return s.notifyJob(ctx, tx, "canceled:"+id)
 	})
 	if err != nil {
 		return batch.Job{}, err

@@ -16,10 +16,19 @@ import (
 	"ringsieve/migrations"
 )
 
-// Open opens the store named by dsn: a file path is an SQLite database (created with mode 0600
-// and migrated when needed).
+// Open opens the store named by dsn: a postgres:// or postgresql:// URL is a PostgreSQL
+// database shared by any number of processes; anything else is the path of an SQLite database
+// (created with mode 0600) that serves one process. Either is migrated when needed.
 func Open(ctx context.Context, dsn string) (*Store, error) {
+	if IsPostgresURL(dsn) {
+		return openPostgres(ctx, dsn)
+	}
 	return openSQLite(ctx, dsn)
+}
+
+// IsPostgresURL reports whether dsn names a PostgreSQL database.
+func IsPostgresURL(dsn string) bool {
+	return strings.HasPrefix(dsn, "postgres://") || strings.HasPrefix(dsn, "postgresql://")
 }
 
 // SQLite settings: WAL journaling (readers never block the writer), foreign keys on, a busy
@@ -92,13 +101,18 @@ func createPrivate(path string) error {
 	return f.Close()
 }
 
-// migrate applies every pending migration of the engine's folder, and the data migration that
-// moves job results of earlier versions into the chunked layout.
+// migrate applies every pending migration of the engine's folder; on SQLite also the data
+// migrations that move job results of earlier versions into the chunked layout and backfill
+// structure keys (a PostgreSQL store starts at the current layout).
 func (s *Store) migrate(ctx context.Context, d goose.Dialect, fsys fs.FS) error {
-	prov, err := goose.NewProvider(d, s.db, fsys, goose.WithGoMigrations(
-		goose.NewGoMigration(4, &goose.GoFunc{RunTx: s.moveLegacyJobResults}, nil),
-		goose.NewGoMigration(7, &goose.GoFunc{RunTx: s.backfillStructureKeys}, nil),
-	))
+	var opts []goose.ProviderOption
+	if d == goose.DialectSQLite3 {
+		opts = append(opts, goose.WithGoMigrations(
+			goose.NewGoMigration(4, &goose.GoFunc{RunTx: s.moveLegacyJobResults}, nil),
+			goose.NewGoMigration(7, &goose.GoFunc{RunTx: s.backfillStructureKeys}, nil),
+		))
+	}
+	prov, err := goose.NewProvider(d, s.db, fsys, opts...)
 	if err != nil {
 		return fmt.Errorf("migrations: %w", err)
 	}

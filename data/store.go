@@ -38,7 +38,8 @@ var (
 type Store struct {
 	db      *sql.DB
 	dialect dialect
-	path    string // SQLite file, for messages
+	path    string // SQLite file or redacted URL, for messages
+	dsn     string // PostgreSQL URL (for the notification listener)
 	faults  faultState
 	// degraded is set while writes fail with storage faults (fast check for recovered)
 	degraded atomic.Bool
@@ -88,7 +89,7 @@ func (s *Store) Ping(ctx context.Context) error { return s.db.PingContext(ctx) }
 // DB exposes the handle for tests and maintenance.
 func (s *Store) DB() *sql.DB { return s.db }
 
-// Engine names the database engine ("sqlite").
+// Engine names the database engine ("sqlite" or "postgres").
 func (s *Store) Engine() string { return s.dialect.name }
 
 func newID(prefix string) string {
@@ -116,8 +117,18 @@ func tsPtr(s string) *time.Time {
 
 // tx runs fn in a transaction, committing on success and rolling back on any error.
 // A storage fault (read-only or full disk, I/O error) comes back wrapping ErrUnavailable and
-// marks the store degraded until a probe write succeeds.
+// marks the store degraded until a probe write succeeds. On PostgreSQL a transaction that lost
+// a serialization conflict or a deadlock to a concurrent one is run again (up to five times).
 func (s *Store) tx(ctx context.Context, fn func(*sql.Tx) error) error {
+	for attempt := 1; ; attempt++ {
+		err := s.tx1(ctx, fn)
+		if err == nil || attempt == 5 || !retryable(err) || ctx.Err() != nil {
+			return err
+		}
+	}
+}
+
+func (s *Store) tx1(ctx context.Context, fn func(*sql.Tx) error) error {
 	t, err := s.db.BeginTx(ctx, nil)
 	if err != nil {
 		return s.fault(err)

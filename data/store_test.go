@@ -12,26 +12,69 @@ import (
 	"testing"
 	"time"
 
+	"ringsieve/data/pgtest"
 	"ringsieve/screening"
 	"ringsieve/screening/batch"
 )
 
-// Store tests run on a real SQLite file in a temporary directory.
+// The behaviour suite runs on both engines: a real SQLite file in a temporary directory, and a
+// PostgreSQL database created for the test and dropped after it (pgtest).
 
-func openTemp(t *testing.T) (*Store, string) {
+type engine struct {
+	name string
+	dsn  func(t *testing.T) string
+}
+
+var engines = []engine{
+	{"sqlite", func(t *testing.T) string { return filepath.Join(t.TempDir(), "test.db") }},
+	{"postgres", func(t *testing.T) string { return pgtest.NewDatabase(t) }},
+}
+
+// open opens a fresh store on the engine; it returns the store and its dsn (to reopen it).
+func (e engine) open(t *testing.T) (*Store, string) {
 	t.Helper()
-	path := filepath.Join(t.TempDir(), "test.db")
-	s, err := Open(context.Background(), path)
+	dsn := e.dsn(t)
+	s, err := Open(context.Background(), dsn)
 	if err != nil {
 		t.Fatal(err)
 	}
 	t.Cleanup(func() { s.Close() })
-	return s, path
+	return s, dsn
 }
 
-func TestMonomerLifecycle(t *testing.T) {
+func openTemp(t *testing.T) (*Store, string) { return engines[0].open(t) }
+
+var behaviour = []struct {
+	name string
+	fn   func(t *testing.T, e engine)
+}{
+	{"MonomerLifecycle", behaviourMonomerLifecycle},
+	{"ListMonomersFilterAndPage", behaviourListMonomersFilterAndPage},
+	{"FailedWriteLeavesNothing", behaviourFailedWriteLeavesNothing},
+	{"ChunksClaimedOnceAndRecordedOnce", behaviourChunksClaimedOnceAndRecordedOnce},
+	{"CancelKeepsResults", behaviourCancelKeepsResults},
+	{"RankedItems", behaviourRankedItems},
+	{"JobStreamRollsBack", behaviourJobStreamRollsBack},
+	{"APIKeysAndIdempotency", behaviourAPIKeysAndIdempotency},
+	{"IdempotencyInTheWriteTransaction", behaviourIdempotencyInTheWriteTransaction},
+	{"ConcurrentWrites", behaviourConcurrentWrites},
+	{"DuplicateStructureReported", behaviourDuplicateStructureReported},
+}
+
+// TestStoreBehaviour runs every behaviour test on every engine.
+func TestStoreBehaviour(t *testing.T) {
+	for _, e := range engines {
+		t.Run(e.name, func(t *testing.T) {
+			for _, b := range behaviour {
+				t.Run(b.name, func(t *testing.T) { b.fn(t, e) })
+			}
+		})
+	}
+}
+
+func behaviourMonomerLifecycle(t *testing.T, e engine) {
 	ctx := context.Background()
-	s, path := openTemp(t)
+	s, path := e.open(t)
 	m, err := s.CreateMonomer(ctx, Monomer{Name: "MEM-01 parent norbornene", SMILES: "C1=CC2CCC1C2", Tags: []string{"membrane", "round-1", "membrane"}})
 	if err != nil {
 		t.Fatal(err)
@@ -84,15 +127,15 @@ func TestMonomerLifecycle(t *testing.T) {
 		t.Fatalf("second delete: %v", err)
 	}
 	var n int
-	s2.DB().QueryRow(`SELECT count(*) FROM results`).Scan(&n)
+	s2.DB().QueryRow(s2.q(`SELECT count(*) FROM results`)).Scan(&n)
 	if n != 0 {
 		t.Fatalf("%d results left after delete", n)
 	}
 }
 
-func TestListMonomersFilterAndPage(t *testing.T) {
+func behaviourListMonomersFilterAndPage(t *testing.T, e engine) {
 	ctx := context.Background()
-	s, _ := openTemp(t)
+	s, _ := e.open(t)
 	for i, name := range []string{"Alpha norbornene", "Beta oxanorbornene", "Gamma cyclooctene", "alpha prime"} {
 		tags := []string{"all"}
 		if i%2 == 0 {
@@ -118,9 +161,9 @@ func TestListMonomersFilterAndPage(t *testing.T) {
 
 // TestFailedWriteLeavesNothing: a transaction that fails half-way (a tag insert violating the
 // primary key inside the same transaction) leaves no monomer row behind.
-func TestFailedWriteLeavesNothing(t *testing.T) {
+func behaviourFailedWriteLeavesNothing(t *testing.T, e engine) {
 	ctx := context.Background()
-	s, _ := openTemp(t)
+	s, _ := e.open(t)
 	id := "mon_fixed"
 	err := s.tx(ctx, func(tx *sql.Tx) error {
 		if _, err := tx.ExecContext(ctx, `INSERT INTO monomers (id, name, created_at, updated_at) VALUES (?, 'x', 'now', 'now')`, id); err != nil {
@@ -164,9 +207,9 @@ func outcomes(items []batch.Item) []batch.Outcome {
 // TestChunksClaimedOnceAndRecordedOnce: two workers never hold one chunk; a worker whose lease
 // expired and was taken over cannot store its outcomes; a chunk redone does not count twice;
 // the job finishes with its last chunk.
-func TestChunksClaimedOnceAndRecordedOnce(t *testing.T) {
+func behaviourChunksClaimedOnceAndRecordedOnce(t *testing.T, e engine) {
 	ctx := context.Background()
-	s, _ := openTemp(t)
+	s, _ := e.open(t)
 	j := newJob(t, s, 2, "C1=CCCC1", "C", "C1=CC2CCC1C2")
 	a, err := s.ClaimChunk(ctx, "A", time.Minute)
 	if err != nil || a.No != 0 || a.FirstSeq != 0 || a.LastSeq != 1 {
@@ -184,7 +227,7 @@ func TestChunksClaimedOnceAndRecordedOnce(t *testing.T) {
 		t.Fatalf("after claims: %+v", got)
 	}
 	// A's lease runs out; C takes the chunk over; A can no longer store or renew it
-	if _, err := s.DB().Exec(`UPDATE job_chunks SET lease_until_ms = 1 WHERE job_id = ? AND chunk_no = 0`, j.ID); err != nil {
+	if _, err := s.DB().Exec(s.q(`UPDATE job_chunks SET lease_until_ms = 1 WHERE job_id = ? AND chunk_no = 0`), j.ID); err != nil {
 		t.Fatal(err)
 	}
 	c, err := s.ClaimChunk(ctx, "C", time.Minute)
@@ -216,7 +259,7 @@ func TestChunksClaimedOnceAndRecordedOnce(t *testing.T) {
 		t.Fatalf("finished job %+v", got)
 	}
 	var n int
-	s.DB().QueryRow(`SELECT count(*) FROM job_results WHERE job_id = ?`, j.ID).Scan(&n)
+	s.DB().QueryRow(s.q(`SELECT count(*) FROM job_results WHERE job_id = ?`), j.ID).Scan(&n)
 	if n != 3 {
 		t.Fatalf("%d results stored, want 3", n)
 	}
@@ -227,9 +270,9 @@ func TestChunksClaimedOnceAndRecordedOnce(t *testing.T) {
 
 // TestCancelKeepsResults: a canceled job is not claimed again, keeps what was stored, and stays
 // canceled when a chunk in flight completes.
-func TestCancelKeepsResults(t *testing.T) {
+func behaviourCancelKeepsResults(t *testing.T, e engine) {
 	ctx := context.Background()
-	s, _ := openTemp(t)
+	s, _ := e.open(t)
 	j := newJob(t, s, 1, "C1=CCCC1", "C1=CCCC1")
 	c, err := s.ClaimChunk(ctx, "A", time.Minute)
 	if err != nil {
@@ -253,9 +296,9 @@ func TestCancelKeepsResults(t *testing.T) {
 
 // TestRankedItems orders by the rank key, then submission; failed and pending items last in
 // submission order.
-func TestRankedItems(t *testing.T) {
+func behaviourRankedItems(t *testing.T, e engine) {
 	ctx := context.Background()
-	s, _ := openTemp(t)
+	s, _ := e.open(t)
 	j := newJob(t, s, 10, "a", "b", "c", "d")
 	c, _ := s.ClaimChunk(ctx, "A", time.Minute)
 	outs := []batch.Outcome{
@@ -281,9 +324,9 @@ func TestRankedItems(t *testing.T) {
 }
 
 // TestJobStreamRollsBack: an error from the item producer stores nothing.
-func TestJobStreamRollsBack(t *testing.T) {
+func behaviourJobStreamRollsBack(t *testing.T, e engine) {
 	ctx := context.Background()
-	s, _ := openTemp(t)
+	s, _ := e.open(t)
 	_, err := s.CreateJob(ctx, 0, func(add func(JobInput) error) (JobMeta, error) {
 		add(JobInput{ItemID: "a"})
 		return JobMeta{}, errors.New("bad row")
@@ -292,21 +335,21 @@ func TestJobStreamRollsBack(t *testing.T) {
 		t.Fatal("no error")
 	}
 	var n int
-	s.DB().QueryRow(`SELECT (SELECT count(*) FROM jobs) + (SELECT count(*) FROM job_items) + (SELECT count(*) FROM job_chunks)`).Scan(&n)
+	s.DB().QueryRow(s.q(`SELECT (SELECT count(*) FROM jobs) + (SELECT count(*) FROM job_items) + (SELECT count(*) FROM job_chunks)`)).Scan(&n)
 	if n != 0 {
 		t.Fatalf("%d rows left behind", n)
 	}
 }
 
-func TestAPIKeysAndIdempotency(t *testing.T) {
+func behaviourAPIKeysAndIdempotency(t *testing.T, e engine) {
 	ctx := context.Background()
-	s, _ := openTemp(t)
+	s, _ := e.open(t)
 	k, secret, err := s.CreateAPIKey(ctx, "notebook")
 	if err != nil {
 		t.Fatal(err)
 	}
 	var stored string
-	s.DB().QueryRow(`SELECT hash FROM api_keys WHERE id = ?`, k.ID).Scan(&stored)
+	s.DB().QueryRow(s.q(`SELECT hash FROM api_keys WHERE id = ?`), k.ID).Scan(&stored)
 	if stored == secret || stored == "" {
 		t.Fatal("secret stored in clear")
 	}
@@ -341,8 +384,8 @@ func TestAPIKeysAndIdempotency(t *testing.T) {
 
 // TestIdempotencyInTheWriteTransaction: the record is written with the monomer; a second write
 // under the same key is refused and rolled back; the resource survives without a response.
-func TestIdempotencyInTheWriteTransaction(t *testing.T) {
-	s, _ := openTemp(t)
+func behaviourIdempotencyInTheWriteTransaction(t *testing.T, e engine) {
+	s, _ := e.open(t)
 	id := Idempotency{Route: "POST /v1/monomers", Key: "k1", BodyHash: "h"}
 	ctx := WithIdempotency(context.Background(), id)
 	m, err := s.CreateMonomer(ctx, Monomer{Name: "MEM-01", SMILES: "C1=CC2CCC1C2"})
@@ -362,9 +405,9 @@ func TestIdempotencyInTheWriteTransaction(t *testing.T) {
 	}
 }
 
-func TestConcurrentWrites(t *testing.T) {
+func behaviourConcurrentWrites(t *testing.T, e engine) {
 	ctx := context.Background()
-	s, _ := openTemp(t)
+	s, _ := e.open(t)
 	var wg sync.WaitGroup
 	errs := make(chan error, 40)
 	for i := 0; i < 40; i++ {
@@ -404,8 +447,8 @@ func TestPathWithURICharacters(t *testing.T) {
 // TestDuplicateStructureReported: a second monomer with the same structure written another way
 // is refused with the first one's id (canonical match), unless allowed; a stereoisomer is not a
 // duplicate; results carry the monomer's version and SMILES.
-func TestDuplicateStructureReported(t *testing.T) {
-	s, _ := openTemp(t)
+func behaviourDuplicateStructureReported(t *testing.T, e engine) {
+	s, _ := e.open(t)
 	ctx := context.Background()
 	a, err := s.CreateMonomer(ctx, Monomer{Name: "exo ester", SMILES: "O=C(OC)[C@@H]1C[C@@H]2C=C[C@H]1C2"})
 	if err != nil {
@@ -432,5 +475,42 @@ func TestDuplicateStructureReported(t *testing.T) {
 	r, err := s.SaveResult(ctx, SavedResult{MonomerID: a.ID, Conditions: json.RawMessage(`{}`), Verdict: "polymerizes", Result: json.RawMessage(`{}`), EngineVersion: "x"})
 	if err != nil || r.MonomerVersion != 1 || r.MonomerSMILES != a.SMILES {
 		t.Errorf("saved result: %+v %v", r, err)
+	}
+}
+
+// TestSharedRateLimit: on PostgreSQL the per-key bucket is one for every process on the
+// database: two stores (two replicas) draw from the same tokens; a refused request takes none.
+func TestSharedRateLimit(t *testing.T) {
+	ctx := context.Background()
+	a, dsn := engines[1].open(t)
+	b, err := Open(ctx, dsn)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer b.Close()
+	if !a.SharedRateLimits() || engines[0].name != "sqlite" {
+		t.Fatal("PostgreSQL should share rate limits")
+	}
+	var got []bool
+	for i, s := range []*Store{a, b, a, b, a} {
+		ok, err := s.TakeToken(ctx, "key_1", 0.001, 3) // a bucket of 3, practically no refill
+		if err != nil {
+			t.Fatalf("request %d: %v", i, err)
+		}
+		got = append(got, ok)
+	}
+	if fmt.Sprint(got) != "[true true true false false]" {
+		t.Errorf("allowed %v, want the first three only", got)
+	}
+	if ok, _ := a.TakeToken(ctx, "key_2", 0.001, 3); !ok {
+		t.Error("another key has its own bucket")
+	}
+	// refill: a fast bucket allows again after a pause
+	for i := 0; i < 3; i++ {
+		a.TakeToken(ctx, "key_3", 50, 2)
+	}
+	time.Sleep(60 * time.Millisecond)
+	if ok, _ := b.TakeToken(ctx, "key_3", 50, 2); !ok {
+		t.Error("the bucket did not refill")
 	}
 }

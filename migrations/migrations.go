@@ -11,8 +11,14 @@ import (
 //go:embed sqlite/*.sql
 var sqliteFS embed.FS
 
+//go:embed postgres/*.sql
+var postgresFS embed.FS
+
 // SQLite holds the migrations of the embedded SQLite store.
 var SQLite = sub(sqliteFS, "sqlite")
+
+// Postgres holds the migrations of the PostgreSQL store (scale-out).
+var Postgres = sub(postgresFS, "postgres")
 
 func sub(f embed.FS, dir string) fs.FS {
 	s, err := fs.Sub(f, dir)

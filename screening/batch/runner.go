@@ -25,6 +25,9 @@ type Runner struct {
 	Log     *slog.Logger
 	// Observe, when set, is called once per stored chunk with its outcomes (metrics).
 	Observe func(outs []Outcome)
+	// OnClaim and OnLeaseLost, when set, are called for every claimed chunk and for every chunk
+	// given up because its lease passed to another worker (metrics).
+	OnClaim, OnLeaseLost func()
 	// Retry is how failed result writes are retried (zero fields: the defaults below).
 	Retry RetryPolicy
 
@@ -96,6 +99,9 @@ func (r *Runner) Run(ctx context.Context) {
 	for ctx.Err() == nil {
 		c, err := r.Store.ClaimChunk(ctx, r.Owner, r.Lease)
 		if err == nil {
+			if r.OnClaim != nil {
+				r.OnClaim()
+			}
 			r.process(ctx, c)
 			continue
 		}
@@ -141,6 +147,9 @@ func (r *Runner) process(ctx context.Context, c Chunk) {
 				st, err := r.Store.RenewLease(work, c, r.Lease)
 				if errors.Is(err, ErrLeaseLost) || st == JobCanceled || st == JobFailed {
 					log.Info("chunk given up", "status", st, "err", err)
+					if errors.Is(err, ErrLeaseLost) {
+						r.leaseLost()
+					}
 					stop()
 					return
 				}
@@ -174,6 +183,7 @@ func (r *Runner) store(ctx context.Context, log *slog.Logger, c Chunk, outs []Ou
 			return
 		case errors.Is(err, ErrLeaseLost):
 			log.Warn("lease lost before the chunk was stored; another worker redoes it")
+			r.leaseLost()
 			return
 		case ctx.Err() != nil:
 			r.release(log, c)
@@ -192,9 +202,16 @@ func (r *Runner) store(ctx context.Context, log *slog.Logger, c Chunk, outs []Ou
 		}
 		if _, err := r.Store.RenewLease(ctx, c, r.Lease); errors.Is(err, ErrLeaseLost) {
 			log.Warn("lease lost while retrying the write; another worker redoes the chunk")
+			r.leaseLost()
 			return
 		}
 		wait = min(2*wait, r.Retry.Max)
+	}
+}
+
+func (r *Runner) leaseLost() {
+	if r.OnLeaseLost != nil {
+		r.OnLeaseLost()
 	}
 }
 

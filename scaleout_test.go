@@ -1,0 +1,161 @@
+package main
+
+import (
+	"bufio"
+	"bytes"
+	"database/sql"
+	"encoding/json"
+	"errors"
+	"mime/multipart"
+	"os"
+	"os/exec"
+	"path/filepath"
+	"strings"
+	"syscall"
+	"testing"
+	"time"
+
+	"ringsieve/data/pgtest"
+)
+
+// startWorker runs `ringsieve worker` on db and waits until it has started.
+func startWorker(t *testing.T, db, name string, extra ...string) *exec.Cmd {
+	t.Helper()
+	args := append([]string{"worker", "--db", db, "--name", name}, extra...)
+	cmd := exec.Command(binPath, args...)
+	stderr, _ := cmd.StderrPipe()
+	if err := cmd.Start(); err != nil {
+		t.Fatal(err)
+	}
+	started := make(chan struct{})
+	go func() {
+		sc := bufio.NewScanner(stderr)
+		once := false
+		for sc.Scan() {
+			var rec map[string]any
+			if json.Unmarshal(sc.Bytes(), &rec) == nil && rec["msg"] == "ringsieve worker started" && !once {
+				once = true
+				close(started)
+			}
+		}
+	}()
+	select {
+	case <-started:
+	case <-time.After(20 * time.Second):
+		cmd.Process.Kill()
+		t.Fatalf("worker %s did not start", name)
+	}
+	t.Cleanup(func() {
+		if cmd.ProcessState == nil {
+			cmd.Process.Signal(syscall.SIGTERM)
+			cmd.Wait()
+		}
+	})
+	return cmd
+}
+
+// TestScaleOutOnPostgres: two serve replicas (serving only) and two workers on one PostgreSQL
+// database. A 20,000-item job is submitted to one replica; one worker is killed with SIGKILL
+// mid-way; the job is followed on the other replica to done. Its 20,000 results equal the
+// offline screen of the same file, none twice; replicas share idempotency keys.
+func TestScaleOutOnPostgres(t *testing.T) {
+	if testing.Short() {
+		t.Skip("end-to-end")
+	}
+	db := pgtest.NewDatabase(t)
+	dir := t.TempDir()
+	file := jobFile(t)
+	path := filepath.Join(dir, "list.smi")
+	os.WriteFile(path, file, 0o644)
+
+	a := startService(t, db, "--workers", "0")
+	b := startService(t, db, "--workers", "0")
+	w1 := startWorker(t, db, "w1", "--workers", "1", "--lease", "3s")
+	startWorker(t, db, "w2", "--workers", "1", "--lease", "3s")
+
+	body := func() (*bytes.Buffer, string) {
+		var buf bytes.Buffer
+		w := multipart.NewWriter(&buf)
+		fw, _ := w.CreateFormFile("file", "list.smi")
+		fw.Write(file)
+		w.WriteField("thermo_method", "table")
+		w.Close()
+		return &buf, w.FormDataContentType()
+	}
+	buf, ct := body()
+	st, res, _ := call(t, "POST", a.base+"/v1/jobs", ct, buf, "Idempotency-Key", "scale-1")
+	if st != 202 {
+		t.Fatalf("submit: %d %s", st, res)
+	}
+	var jc struct {
+		ID    string `json:"id"`
+		Total int    `json:"total"`
+	}
+	json.Unmarshal(res, &jc)
+	// the same key on the other replica is the same job
+	buf, ct = body()
+	if _, res, _ := call(t, "POST", b.base+"/v1/jobs", ct, buf, "Idempotency-Key", "scale-1"); !strings.Contains(string(res), jc.ID) {
+		t.Errorf("same Idempotency-Key on the other replica gave another job: %.200s", res)
+	}
+	// kill worker 1 without warning once the job is under way
+	deadline := time.Now().Add(2 * time.Minute)
+	for {
+		_, res, _ := call(t, "GET", b.base+"/v1/jobs/"+jc.ID, "", nil)
+		var js struct {
+			Done   int    `json:"done"`
+			Status string `json:"status"`
+		}
+		json.Unmarshal(res, &js)
+		if js.Done > 0 && js.Done < jc.Total {
+			t.Logf("killing worker 1 at %d of %d", js.Done, jc.Total)
+			break
+		}
+		if js.Status == "done" || time.Now().After(deadline) {
+			t.Fatalf("job finished before a worker could be killed (%d of %d)", js.Done, jc.Total)
+		}
+		time.Sleep(20 * time.Millisecond)
+	}
+	w1.Process.Kill()
+	w1.Wait()
+
+	final := waitDone(t, b.base, jc.ID, 5*time.Minute)
+	if final["status"] != "done" || int(final["done"].(float64)) != jc.Total || int(final["failed"].(float64)) != 2 {
+		t.Fatalf("job on the other replica: %v", final)
+	}
+	_, got, _ := call(t, "GET", a.base+"/v1/jobs/"+jc.ID+"/results?format=csv", "", nil)
+	want, err := exec.Command(binPath, "screen", "--thermo-method", "table", "--format", "csv", path).Output()
+	var ee *exec.ExitError
+	if !errors.As(err, &ee) || ee.ExitCode() != 2 {
+		t.Fatalf("offline screen: %v, want exit status 2 (two malformed rows)", err)
+	}
+	gl := strings.Split(strings.TrimSpace(string(got)), "\n")
+	wl := strings.Split(strings.TrimSpace(string(want)), "\n")
+	if len(gl) != jc.Total+1 || len(wl) != len(gl) {
+		t.Fatalf("job CSV %d rows, offline %d, want %d", len(gl)-1, len(wl)-1, jc.Total)
+	}
+	ids := map[string]bool{}
+	for i := range gl {
+		if i > 0 {
+			id := strings.Split(gl[i], ",")[1]
+			if ids[id] {
+				t.Fatalf("id %s appears twice", id)
+			}
+			ids[id] = true
+		}
+		if gl[i] != wl[i] {
+			t.Fatalf("line %d differs:\njob:     %s\noffline: %s", i+1, gl[i], wl[i])
+		}
+	}
+	// every item stored exactly once in the results table, every chunk done
+	conn, err := sql.Open("pgx", db)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer conn.Close()
+	var rows, distinct, open int
+	conn.QueryRow(`SELECT count(*), count(DISTINCT seq) FROM job_results WHERE job_id = $1`, jc.ID).Scan(&rows, &distinct)
+	conn.QueryRow(`SELECT count(*) FROM job_chunks WHERE job_id = $1 AND state <> 'done'`, jc.ID).Scan(&open)
+	if rows != jc.Total || distinct != jc.Total || open != 0 {
+		t.Errorf("stored results %d (%d distinct items), open chunks %d; want %d, %d, 0", rows, distinct, open, jc.Total, jc.Total)
+	}
+}
