@@ -115,25 +115,41 @@ func TestBrowserPage(t *testing.T) {
 			os.WriteFile("testdata/screenshots/ranked-table.png", png, 0o644)
 		}
 	}
-	// detail view of the first row (norbornene): the plot's T_c marker equals the API value
-	var marker string
-	var markers int
+	// every row shows a drawing of its structure (GET /v1/depict, inline SVG)
+	var drawn int
 	err = chromedp.Run(ctx,
-		chromedp.Click(`#ranked tbody tr:first-child .id-link`, chromedp.ByQuery),
+		chromedp.Poll(`document.querySelectorAll('#ranked tbody td.structure svg').length === 3`, nil, chromedp.WithPollingTimeout(20*time.Second)),
+		chromedp.Evaluate(`document.querySelectorAll('#ranked tbody td.structure svg line').length`, &drawn),
+	)
+	if err != nil || drawn < 3*5 {
+		t.Fatalf("drawings in the table: %v (%d bond lines)", err, drawn)
+	}
+	// detail view of the second row (cyclopentene, whose ceiling lies in the working window):
+	// a large drawing with the opening ring olefin highlighted, and the plots' T_c marker in °C
+	// equal to the API value
+	var marker string
+	var markers, highlighted int
+	err = chromedp.Run(ctx,
+		chromedp.Click(`#ranked tbody tr:nth-child(2) .id-link`, chromedp.ByQuery),
 		chromedp.WaitVisible(`#plot-dg [data-role="tc-marker"]`, chromedp.ByQuery),
 		chromedp.AttributeValue(`#plot-dg [data-role="tc-marker"]`, "data-value", &marker, nil, chromedp.ByQuery),
 		chromedp.Evaluate(`document.querySelectorAll('#plots svg [data-role="tc-marker"]').length`, &markers),
+		chromedp.Poll(`document.querySelectorAll('#detail-drawing svg').length === 1`, nil, chromedp.WithPollingTimeout(20*time.Second)),
+		chromedp.Evaluate(`document.querySelectorAll('#detail-drawing svg g[stroke="#f2c94c"] line').length`, &highlighted),
 	)
 	if err != nil {
 		t.Fatalf("detail view: %v", err)
 	}
 	got, _ := strconv.ParseFloat(marker, 64)
-	want := *api.Results[0].Thermo.CeilingTempK
+	want := *api.Results[1].Thermo.CeilingTempK - 273.15
 	if math.Abs(got-want) > 1e-6 {
-		t.Errorf("plot T_c marker %v, API ceiling_temp_k %v", got, want)
+		t.Errorf("plot T_c marker %v °C, API ceiling_temp_k %v K", got, want+273.15)
 	}
 	if markers != 3 {
 		t.Errorf("%d plots carry the T_c marker, want 3", markers)
+	}
+	if highlighted != 1 {
+		t.Errorf("%d highlighted bonds in the detail drawing, want the one ring olefin", highlighted)
 	}
 	if *screenshots {
 		var png []byte

@@ -20,6 +20,6 @@ func run(ctx context.Context, args []string, getenv func(string) string, stdin i
 	root.SetIn(stdin)
 	root.SetOut(stdout)
 	root.SetErr(stderr)
-	root.AddCommand(serveCmd(getenv), workerCmd(getenv), screenCmd(), keysCmd(getenv), submitCmd(getenv), forcefieldCmd(), planCmd())
+	root.AddCommand(serveCmd(getenv), workerCmd(getenv), screenCmd(), keysCmd(getenv), submitCmd(getenv), forcefieldCmd(), planCmd(), depictCmd())
 	return root.ExecuteContext(ctx)
 }

@@ -9,7 +9,9 @@ import (
 	"mime/multipart"
 	"net/http"
 	"net/http/httptest"
+	"net/url"
 	"path/filepath"
+	"regexp"
 	"strings"
 	"testing"
 	"time"
@@ -599,6 +601,43 @@ func TestBatchBodiesDecodedAsStreams(t *testing.T) {
 			if p.Field != tc.field {
 				t.Errorf("%s: field %q, want %q (%s)", tc.name, p.Field, tc.field, p.Detail)
 			}
+		}
+	}
+}
+
+// TestDepictEndpoint: SVG and molfile drawings, the opening ring olefin marked, cacheable
+// (ETag → 304), and problems with the position for a bad SMILES.
+func TestDepictEndpoint(t *testing.T) {
+	ts, _ := newTestServer(t, Config{})
+	r := do(t, ts, "GET", "/v1/depict?smiles="+url.QueryEscape("CN1C(=O)[C@H]2[C@@H](C1=O)[C@@H]1C=C[C@H]2C1"), "")
+	if r.status != 200 || r.header.Get("Content-Type") != "image/svg+xml" || !bytes.HasPrefix(r.body, []byte("<svg")) ||
+		!bytes.Contains(r.body, []byte(`stroke="#f2c94c"`)) || !bytes.Contains(r.body, []byte("<polygon")) {
+		t.Fatalf("svg: %d %s %.200s", r.status, r.header.Get("Content-Type"), r.body)
+	}
+	tag := r.header.Get("ETag")
+	if r2 := do(t, ts, "GET", "/v1/depict?smiles="+url.QueryEscape("CN1C(=O)[C@H]2[C@@H](C1=O)[C@@H]1C=C[C@H]2C1"), "", "If-None-Match", tag); tag == "" || r2.status != 304 {
+		t.Errorf("conditional request: %d (ETag %q)", r2.status, tag)
+	}
+	m := do(t, ts, "GET", "/v1/depict?format=molfile&smiles="+url.QueryEscape("N[C@@H](C)C(=O)O"), "")
+	wedge := regexp.MustCompile(`(?m)^ *\d+ +\d+ +1 +[16]$`) // a single bond marked wedge (1) or hash (6)
+	if m.status != 200 || !bytes.Contains(m.body, []byte("V2000")) || !wedge.Match(m.body) {
+		t.Errorf("molfile: %d %s", m.status, m.body)
+	}
+	for _, tc := range []struct {
+		query, field string
+		status, pos  int
+	}{
+		{"smiles=" + url.QueryEscape("C1=CC(C"), "smiles", 422, 5},
+		{"", "smiles", 422, -1},
+		{"smiles=C1CC1&format=png", "format", 422, -1},
+		{"smiles=C1CC1&width=5", "width", 422, -1},
+		{"smiles=C1CC1&colour=red", "colour", 400, -1},
+	} {
+		r := do(t, ts, "GET", "/v1/depict?"+tc.query, "")
+		var p Problem
+		r.json(t, &p)
+		if r.status != tc.status || p.Field != tc.field || (tc.pos >= 0 && (p.Position == nil || *p.Position != tc.pos)) {
+			t.Errorf("%s: %d %+v", tc.query, r.status, p)
 		}
 	}
 }

@@ -197,6 +197,7 @@ func (s *Server) Handler() http.Handler {
 	v1.POST("/plan", json, s.idempotent, s.plan)
 	v1.POST("/conformers", json, s.idempotent, s.conformers)
 	v1.GET("/tables/ring-systems", s.ringTable)
+	v1.GET("/depict", s.depictImage)
 	v1.POST("/monomers", json, s.idempotent, s.createMonomer)
 	v1.GET("/monomers", s.listMonomers)
 	v1.GET("/monomers/:id", s.getMonomer)

@@ -14,6 +14,7 @@ import (
 	"strings"
 	"time"
 
+	"ringsieve/screening/depict"
 	"ringsieve/screening/describe"
 	"ringsieve/screening/judge"
 	"ringsieve/screening/molfile"
@@ -203,32 +204,11 @@ func ScreenStructureContext(ctx context.Context, s *Structure, c Conditions) (Re
 		r.Reasons[0].Detail += s.WhyNoOlefin()
 		return r, nil
 	}
-	type cand struct {
-		o *describe.Olefin
-		r Result
-		e thermo.Estimate
-	}
-	cands := make([]cand, 0, len(s.Olefins))
-	meas, measNote := thermo.MeasuredFor(s)
-	var measOlefin *describe.Olefin
-	if meas != nil {
-		measOlefin = thermo.MeasuredOlefin(s)
-	}
-	for _, o := range s.Olefins {
-		e := thermo.EstimateFor(ctx, s, o, c.ThermoMethod)
-		if o == measOlefin {
-			e.Measured, e.MeasuredNote = meas, measNote
-		}
-		d := o.Desc
-		d.MergeMolecule(&base)
-		r := judge.Judge(&d, &e, c)
-		cands = append(cands, cand{o, r, e})
-	}
-	sort.SliceStable(cands, func(i, j int) bool { return judge.MoreReactive(&cands[i].r, &cands[j].r) })
+	cands := rankOlefins(ctx, s, &base, c)
 	best := cands[0].r
 	best.Descriptors.RingOlefins = len(cands)
 	// equivalent olefins (same ring, substitution, core and estimate) are listed once, counted
-	same := func(a, b cand) bool {
+	same := func(a, b olefinCand) bool {
 		return a.o.Desc.RingSize == b.o.Desc.RingSize && a.o.Desc.OlefinSubstitution == b.o.Desc.OlefinSubstitution &&
 			a.o.Desc.CoreKey == b.o.Desc.CoreKey && a.r.Verdict == b.r.Verdict && math.Abs(a.e.DHkJmol-b.e.DHkJmol) < 0.01
 	}
@@ -275,6 +255,61 @@ func ScreenStructureContext(ctx context.Context, s *Structure, c Conditions) (Re
 			Detail: "salt: screened the largest organic component; other components: " + strings.Join(s.CounterIons, "; ")})
 	}
 	return best, nil
+}
+
+// olefinCand is one ring olefin of a structure with its estimate and verdict.
+type olefinCand struct {
+	o *describe.Olefin
+	r Result
+	e thermo.Estimate
+}
+
+// rankOlefins judges every analysed ring olefin of s (base: the molecule's descriptors) and
+// returns them most reactive first: the first is the one that opens.
+func rankOlefins(ctx context.Context, s *Structure, base *Descriptors, c Conditions) []olefinCand {
+	cands := make([]olefinCand, 0, len(s.Olefins))
+	meas, measNote := thermo.MeasuredFor(s)
+	var measOlefin *describe.Olefin
+	if meas != nil {
+		measOlefin = thermo.MeasuredOlefin(s)
+	}
+	for _, o := range s.Olefins {
+		e := thermo.EstimateFor(ctx, s, o, c.ThermoMethod)
+		if o == measOlefin {
+			e.Measured, e.MeasuredNote = meas, measNote
+		}
+		d := o.Desc
+		d.MergeMolecule(base)
+		r := judge.Judge(&d, &e, c)
+		cands = append(cands, olefinCand{o, r, e})
+	}
+	sort.SliceStable(cands, func(i, j int) bool { return judge.MoreReactive(&cands[i].r, &cands[j].r) })
+	return cands
+}
+
+// Drawing is a 2-D depiction of a structure and the bond of the ring olefin that opens (−1 when
+// it has none).
+type Drawing struct {
+	*depict.Layout
+	OpeningBond int
+}
+
+// Depict lays out a SMILES in 2-D (every component, counter-ions included) and marks the ring
+// olefin that would open under default conditions (the fast tier decides which, as screening
+// does). Errors: *SMILESError, or ErrTooComplex for structures over the work bound.
+func Depict(text string) (*Drawing, error) {
+	s, err := describe.Describe(text)
+	if err != nil {
+		return nil, err
+	}
+	d := &Drawing{Layout: depict.Compute(s.Mol, s.Rings), OpeningBond: -1}
+	if len(s.Olefins) > 0 && checkWork(s) == nil {
+		c := DefaultConditions()
+		c.ThermoMethod = units.ThermoTable
+		base := s.MoleculeDescriptors()
+		d.OpeningBond = rankOlefins(context.Background(), s, &base, c)[0].o.Bond
+	}
+	return d, nil
 }
 
 // ScreenDescriptors screens a caller's descriptor record.

@@ -72,6 +72,28 @@
     });
   }
 
+  // drawing fetches the 2-D drawing of a SMILES (GET /v1/depict) and shows it inline; the SVG
+  // uses presentation attributes only, so it passes the page's content security policy.
+  function drawing(smiles, w, h, cls) {
+    var box = el("span", { class: "drawing " + (cls || ""), "data-role": "drawing", "data-smiles": smiles || "" });
+    if (!smiles) return box;
+    var path = "/v1/depict?smiles=" + encodeURIComponent(smiles) + "&width=" + w + "&height=" + h;
+    var opts = { headers: {} };
+    var key = $("apikey").value.trim();
+    if (key) opts.headers["X-API-Key"] = key;
+    fetch(path, opts).then(function (r) { return r.ok ? r.text() : ""; }).then(function (t) {
+      if (!t) { box.textContent = "(no drawing)"; return; }
+      var doc = new DOMParser().parseFromString(t, "image/svg+xml");
+      var svg = doc.documentElement;
+      if (svg && svg.nodeName === "svg") box.appendChild(document.importNode(svg, true));
+    }).catch(function () { box.textContent = "(no drawing)"; });
+    return box;
+  }
+
+  function rowSmiles(row) {
+    return row.smiles || (row.result && row.result.descriptors && row.result.descriptors.smiles) || "";
+  }
+
   function setApiCall(text) {
     var pre = $("api-call");
     pre.textContent = text;
@@ -181,6 +203,9 @@
       b.addEventListener("click", function () { showDetail(row); });
       idCell.appendChild(b);
       tr.appendChild(idCell);
+      var sc = el("td", { class: "structure" });
+      sc.appendChild(drawing(rowSmiles(row), 150, 90));
+      tr.appendChild(sc);
       if (r) {
         tr.appendChild(el("td", { class: "verdict v-" + r.verdict, "data-verdict": r.verdict }, VERDICT_TEXT[r.verdict]));
         tr.appendChild(el("td", { class: "num" }, fmt(r.score, 3)));
@@ -301,8 +326,14 @@
     var r = row.result, t = r.thermo, d = r.descriptors;
     var summary = el("p");
     summary.appendChild(el("strong", { class: "verdict v-" + r.verdict }, VERDICT_TEXT[r.verdict]));
-    summary.appendChild(document.createTextNode(" — score " + fmt(r.score, 3) + (row.smiles ? " — " + row.smiles : "")));
+    summary.appendChild(document.createTextNode(" — score " + fmt(r.score, 3) + (rowSmiles(row) ? " — " + rowSmiles(row) : "")));
     body.appendChild(summary);
+    if (rowSmiles(row)) {
+      var big = drawing(rowSmiles(row), 420, 280, "drawing-large");
+      big.id = "detail-drawing";
+      body.appendChild(big);
+      body.appendChild(el("p", { class: "note" }, "The highlighted double bond is the ring olefin that opens."));
+    }
     // say first why a monomer is blocked or unfavorable, before any number
     var why = (r.reasons || []).filter(function (x) { return x.effect === "blocks"; });
     if (!why.length && r.verdict !== "polymerizes") why = (r.reasons || []).filter(function (x) { return x.effect === "penalizes"; });
@@ -348,22 +379,28 @@
       body.appendChild(el("h3", null, "Thermodynamics against temperature"));
       body.appendChild(plots);
       plots.appendChild(el("p", null, "Loading curves…"));
-      var tcK = t.ceiling_temp_k;
-      var toC = Math.min(1200, Math.max(150, tcK !== null ? tcK - 273.15 + 40 : 150));
+      // a working window of −80 to 150 °C, widened when T_c lies just outside it (up to 400 °C,
+      // down to −150 °C); a formal, extrapolated T_c is marked only when it falls inside
+      var tcK = t.ceiling_temp_k, tcC = tcK === null ? null : tcK - 273.15;
+      var fromC = -80, toC = 150;
+      if (tcC !== null && !t.ceiling_temp_extrapolated) {
+        if (tcC > 130 && tcC <= 400) toC = Math.ceil((tcC + 30) / 10) * 10;
+        if (tcC < -60 && tcC >= -150) fromC = Math.floor((tcC - 20) / 10) * 10;
+      }
       var sweepBody = { descriptors: { ring_size: d.ring_size || 5, ring_system: d.ring_system || "monocyclic", dh_kj_mol: t.dh_kj_mol, ds_j_mol_k: t.ds_j_mol_k },
         conditions: { temperature_k: t.temperature_k, monomer_conc_mol_l: t.monomer_conc_mol_l, catalyst: r.conditions.catalyst },
-        sweep: { from_c: -50, to_c: toC, step_c: Math.max(1, Math.round((toC + 50) / 150)) } };
+        sweep: { from_c: fromC, to_c: toC, step_c: Math.max(1, Math.round((toC - fromC) / 150)) } };
       var curl = curlFor("/v1/sweep", sweepBody);
       api("POST", "/v1/sweep", sweepBody).then(function (sw) {
         plots.textContent = "";
-        var xs = sw.points.map(function (p) { return p.temperature_k; });
-        var markers = [{ x: t.temperature_k, label: "working T " + fmt(t.temperature_k, 0) + " K", role: "work-marker" }];
-        if (tcK !== null) markers.unshift({ x: tcK, label: "T_c " + fmt(tcK, 1) + " K", role: "tc-marker" });
-        var f1 = el("figure"); f1.appendChild(plot({ id: "plot-dg", title: "ΔG_p against temperature", xs: xs, ys: sw.points.map(function (p) { return p.dg_kj_mol; }), xLabel: "T / K", yLabel: "ΔG_p / kJ mol⁻¹", markers: markers, yZero: true }));
+        var xs = sw.points.map(function (p) { return p.temperature_k - 273.15; });
+        var markers = [{ x: t.temperature_k - 273.15, label: "working " + fmt(t.temperature_k - 273.15, 0) + " °C", role: "work-marker" }];
+        if (tcC !== null) markers.unshift({ x: tcC, label: "T_c " + fmt(tcC, 0) + " °C", role: "tc-marker" });
+        var f1 = el("figure"); f1.appendChild(plot({ id: "plot-dg", title: "ΔG_p against temperature", xs: xs, ys: sw.points.map(function (p) { return p.dg_kj_mol; }), xLabel: "T / °C", yLabel: "ΔG_p / kJ mol⁻¹", markers: markers, yZero: true }));
         f1.appendChild(el("figcaption", null, "ΔG_p at " + t.monomer_conc_mol_l + " mol/L; the dashed vertical line is the ceiling temperature, the dotted one the working temperature."));
-        var f2 = el("figure"); f2.appendChild(plot({ id: "plot-conv", title: "Equilibrium conversion against temperature", xs: xs, ys: sw.points.map(function (p) { return p.eq_conversion; }), xLabel: "T / K", yLabel: "equilibrium conversion X_eq", markers: markers, yRange: [0, 1] }));
+        var f2 = el("figure"); f2.appendChild(plot({ id: "plot-conv", title: "Equilibrium conversion against temperature", xs: xs, ys: sw.points.map(function (p) { return p.eq_conversion; }), xLabel: "T / °C", yLabel: "equilibrium conversion X_eq", markers: markers, yRange: [0, 1] }));
         f2.appendChild(el("figcaption", null, "Equilibrium conversion 1 − [M]eq/[M]0."));
-        var f3 = el("figure"); f3.appendChild(plot({ id: "plot-meq", title: "Equilibrium monomer concentration against temperature (log scale)", xs: xs, ys: sw.points.map(function (p) { return p.eq_monomer_mol_l; }), xLabel: "T / K", yLabel: "[M]eq / mol L⁻¹ (log)", log: true, markers: markers }));
+        var f3 = el("figure"); f3.appendChild(plot({ id: "plot-meq", title: "Equilibrium monomer concentration against temperature (log scale)", xs: xs, ys: sw.points.map(function (p) { return p.eq_monomer_mol_l; }), xLabel: "T / °C", yLabel: "[M]eq / mol L⁻¹ (log)", log: true, markers: markers }));
         f3.appendChild(el("figcaption", null, "[M]eq = exp(ΔH_p/RT − ΔS_p°/R), log axis."));
         plots.appendChild(f1); plots.appendChild(f2); plots.appendChild(f3);
         var callBox = el("div", { class: "curve-call" });

@@ -17,6 +17,13 @@ type Written struct {
 	// Coords holds 3 coordinates per atom in Å (nil writes zeros); ThreeD marks them as 3-D.
 	Coords []float64
 	ThreeD bool
+	// Wedge marks bonds of a 2-D drawing: +1 wedge (towards the viewer), -1 hash (away), 0
+	// plain; the bond is written starting at WedgeFrom (its narrow end). Nil: no marks.
+	Wedge     []int8
+	WedgeFrom []int
+	// Either marks double bonds whose geometry is not specified (written "either", so that a
+	// reader does not take it from the drawing's coordinates). Nil: none.
+	Either []bool
 }
 
 // chargeCodes maps a formal charge to the atom-block charge field of a V2000 molfile.
@@ -53,15 +60,28 @@ func Write(w io.Writer, m *mol.Molecule, o Written) error {
 	line(fmt.Sprintf("%3d%3d  0  0  0  0  0  0  0  0999 V2000", na, nb))
 	var chg, iso [][2]int
 	for i, a := range m.Atoms {
-		e := mol.ElementByZ(a.Z)
-		if e == nil {
-			return fmt.Errorf("atom %d has no element (Z %d)", i+1, a.Z)
+		sym := "*" // a wildcard atom of the SMILES
+		if a.Z != 0 {
+			e := mol.ElementByZ(a.Z)
+			if e == nil {
+				return fmt.Errorf("atom %d has no element (Z %d)", i+1, a.Z)
+			}
+			sym = e.Symbol
 		}
 		var x, y, z float64
 		if o.Coords != nil {
 			x, y, z = o.Coords[3*i], o.Coords[3*i+1], o.Coords[3*i+2]
 		}
-		line(fmt.Sprintf("%10.4f%10.4f%10.4f %-3s 0%3d  0  0  0  0  0  0  0  0  0  0", x, y, z, e.Symbol, chargeCodes[a.Charge]))
+		// a bracket atom's hydrogens are as written, not the reader's valence default: say so
+		// with the valence field (total bond order plus hydrogens; 15 means zero)
+		val := 0
+		if a.Bracket && a.Z != 1 {
+			val = m.BondOrderSum(i) + a.HCount
+			if val == 0 {
+				val = 15
+			}
+		}
+		line(fmt.Sprintf("%10.4f%10.4f%10.4f %-3s 0%3d  0  0  0%3d  0  0  0  0  0  0", x, y, z, sym, chargeCodes[a.Charge], val))
 		if a.Charge != 0 {
 			chg = append(chg, [2]int{i + 1, a.Charge})
 		}
@@ -69,12 +89,25 @@ func Write(w io.Writer, m *mol.Molecule, o Written) error {
 			iso = append(iso, [2]int{i + 1, a.Isotope})
 		}
 	}
-	for _, bd := range m.Bonds {
+	for bi, bd := range m.Bonds {
 		order := bd.Order
 		if order < 1 || order > 3 {
 			order = 1
 		}
-		line(fmt.Sprintf("%3d%3d%3d  0", bd.A+1, bd.B+1, order))
+		a, b, stereo := bd.A, bd.B, 0
+		if o.Wedge != nil && o.Wedge[bi] != 0 {
+			stereo = 1 // wedge
+			if o.Wedge[bi] < 0 {
+				stereo = 6 // hash
+			}
+			if o.WedgeFrom != nil && o.WedgeFrom[bi] == b {
+				a, b = b, a
+			}
+		}
+		if o.Either != nil && o.Either[bi] && order == 2 {
+			stereo = 3
+		}
+		line(fmt.Sprintf("%3d%3d%3d%3d", a+1, b+1, order, stereo))
 	}
 	for _, group := range []struct {
 		tag  string
