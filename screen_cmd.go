@@ -14,7 +14,6 @@ import (
 
 	"ringsieve/screening"
 	"ringsieve/screening/batch"
-	"ringsieve/screening/judge"
 	"ringsieve/screening/units"
 )
 
@@ -127,6 +126,28 @@ func screenCmd() *cobra.Command {
 				return err
 			}
 			defer f.Close()
+			if !compare {
+				// streamed: read, screen and render overlap; memory holds compact rows only
+				var bar *progressbar.ProgressBar
+				if isTerminal(cmd.ErrOrStderr()) {
+					bar = progressbar.NewOptions(-1, progressbar.OptionSetWriter(cmd.ErrOrStderr()),
+						progressbar.OptionSetDescription("screening"), progressbar.OptionShowCount(), progressbar.OptionThrottle(100*1e6),
+						progressbar.OptionClearOnFinish())
+				}
+				st, err := screenStream(cmd.Context(), f, inFormat, idField, cond, format, filter, out, bar)
+				if err != nil {
+					return err
+				}
+				for _, e := range st.inputErrors {
+					fmt.Fprintf(cmd.ErrOrStderr(), "skipped line %d: %s\n", e.Line, e.Msg)
+				}
+				failed := len(st.inputErrors) + st.failed
+				fmt.Fprintf(cmd.ErrOrStderr(), "screened %d, failed %d\n", st.screened, failed)
+				if failed > 0 {
+					return rowsFailed
+				}
+				return nil
+			}
 			in, err := batch.ReadInput(f, inFormat, idField, 0)
 			if err != nil {
 				return err
@@ -134,20 +155,9 @@ func screenCmd() *cobra.Command {
 			for _, e := range in.Errors {
 				fmt.Fprintf(cmd.ErrOrStderr(), "skipped line %d: %s\n", e.Line, e.Msg)
 			}
-			var bar *progressbar.ProgressBar
-			if isTerminal(cmd.ErrOrStderr()) && len(in.Items) > 200 {
-				bar = progressbar.NewOptions(len(in.Items), progressbar.OptionSetWriter(cmd.ErrOrStderr()),
-					progressbar.OptionSetDescription("screening"), progressbar.OptionShowCount(), progressbar.OptionThrottle(100*1e6),
-					progressbar.OptionClearOnFinish())
-			}
-			rs := screenAll(cmd, in.Items, cond, bar)
-			if compare {
-				rb := screenAll(cmd, in.Items, condB, nil)
-				err = writeCompared(out, format, in.Items, rs, rb, cond, condB)
-			} else {
-				err = writeRanked(out, format, in.Items, rs, in.ExtraColumns, filter)
-			}
-			if err != nil {
+			rs := screenAll(cmd, in.Items, cond, nil)
+			rb := screenAll(cmd, in.Items, condB, nil)
+			if err := writeCompared(out, format, in.Items, rs, rb, cond, condB); err != nil {
 				return err
 			}
 			failed := len(in.Errors)
@@ -192,80 +202,6 @@ func screenAll(cmd *cobra.Command, items []batch.InputItem, cond screening.Condi
 	}
 	batch.Rank(rows)
 	return rows
-}
-
-func writeRanked(out io.Writer, format string, items []batch.InputItem, rs []batch.Row, extraCols []string, f batch.ResultFilter) error {
-	skip := func(r batch.Row) bool { return f.Active() && (r.Result == nil || !f.Keeps(r.Result)) }
-	switch format {
-	case "csv":
-		w := csv.NewWriter(out)
-		w.Write(batch.CSVHeader(extraCols))
-		for i, r := range rs {
-			if skip(r) {
-				continue
-			}
-			msg := ""
-			if r.Err != nil {
-				msg = r.Err.Error()
-			}
-			it := items[r.Seq]
-			w.Write(batch.CSVRow(i+1, it.ID, it.Line, r.Result, msg, it.Extra))
-		}
-		w.Flush()
-		return w.Error()
-	case "jsonl":
-		enc := json.NewEncoder(out)
-		for i, r := range rs {
-			if skip(r) {
-				continue
-			}
-			it := items[r.Seq]
-			row := map[string]any{"rank": i + 1, "id": it.ID, "line": it.Line}
-			if r.Err != nil {
-				row["error"] = r.Err.Error()
-			} else {
-				row["result"] = r.Result
-			}
-			if len(extraCols) > 0 {
-				ex := map[string]string{}
-				for k, c := range extraCols {
-					if k < len(it.Extra) {
-						ex[c] = it.Extra[k]
-					}
-				}
-				row["extra"] = ex
-			}
-			if err := enc.Encode(row); err != nil {
-				return err
-			}
-		}
-		return nil
-	default:
-		tw := tabwriter.NewWriter(out, 2, 4, 2, ' ', 0)
-		fmt.Fprintln(tw, "RANK\tID\tVERDICT\tSCORE\tΔH_p kJ/mol\tT_c K\tX_eq\tMAIN REASONS")
-		for i, r := range rs {
-			if skip(r) {
-				continue
-			}
-			id := items[r.Seq].ID
-			if r.Err != nil {
-				fmt.Fprintf(tw, "%d\t%s\terror\t\t\t\t\t%s\n", i+1, id, r.Err)
-				continue
-			}
-			dh, tc, x := "", "", ""
-			if t := r.Result.Thermo; t != nil {
-				dh = fmt.Sprintf("%.1f ± %.1f", t.DHkJmol, t.DHUncertaintyKJmol)
-				tc = ceilingText(t)
-				x = fmt.Sprintf("%.3f", t.EqConversion)
-			}
-			fmt.Fprintf(tw, "%d\t%s\t%s\t%.3f\t%s\t%s\t%s\t%s\n", i+1, id, r.Result.Verdict, r.Result.Score, dh, tc, x, judge.MainReasons(r.Result))
-		}
-		if err := tw.Flush(); err != nil {
-			return err
-		}
-		_, err := fmt.Fprintln(out, "* extrapolated: far outside any measured ceiling temperature (200–500 K)")
-		return err
-	}
 }
 
 // ceilingText shows a ceiling temperature for the table, extrapolated ones as bounds.

@@ -390,12 +390,28 @@ func (s *Server) jobResults(c *gin.Context) {
 		fail(c, err)
 		return
 	}
+	cond, err := batch.ConditionsOf(j.Conditions)
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	// fill gives a done item its result (fast-tier results are screened again, not stored)
+	fill := func(it *data.RankedItem) error {
+		if it.State != batch.ItemDone {
+			return nil
+		}
+		_, err := it.ResultOf(ctx, cond)
+		return err
+	}
 	// skip reports an item the filter removes
-	skip := func(it data.RankedItem) (bool, error) {
+	skip := func(it *data.RankedItem) (bool, error) {
 		if !f.Active() {
 			return false, nil
 		}
-		keep, err := keepsItem(f, it)
+		if err := fill(it); err != nil {
+			return false, err
+		}
+		keep, err := keepsItem(f, *it)
 		return !keep, err
 	}
 	switch format := c.DefaultQuery("format", "json"); format {
@@ -408,6 +424,9 @@ func (s *Server) jobResults(c *gin.Context) {
 		out := JobResults{Job: jobStatus(j), Results: []JobResultRow{}, Offset: offset, Limit: limit}
 		if !f.Active() {
 			err = s.store.RankedItems(ctx, j.ID, offset, limit, func(rank int, it data.RankedItem) error {
+				if err := fill(&it); err != nil {
+					return err
+				}
 				out.Results = append(out.Results, resultRow(rank, it, j.ExtraColumns))
 				return nil
 			})
@@ -418,11 +437,14 @@ func (s *Server) jobResults(c *gin.Context) {
 		} else {
 			pos := 0
 			err = s.store.RankedItems(ctx, j.ID, 0, 0, func(rank int, it data.RankedItem) error {
-				if drop, err := skip(it); drop || err != nil {
+				if drop, err := skip(&it); drop || err != nil {
 					return err
 				}
 				pos++
 				if pos > offset && len(out.Results) < limit {
+					if err := fill(&it); err != nil {
+						return err
+					}
 					out.Results = append(out.Results, resultRow(rank, it, j.ExtraColumns))
 				} else if len(out.Results) == limit && out.NextOffset == nil {
 					n := offset + limit
@@ -441,12 +463,43 @@ func (s *Server) jobResults(c *gin.Context) {
 		c.Header("Content-Disposition", fmt.Sprintf(`attachment; filename="%s.jsonl"`, j.ID))
 		c.Status(http.StatusOK)
 		enc := json.NewEncoder(c.Writer)
-		err := s.store.RankedItems(ctx, j.ID, 0, 0, func(rank int, it data.RankedItem) error {
-			if drop, err := skip(it); drop || err != nil {
-				return err
+		// items are taken in windows whose results are screened again in parallel, then
+		// written in rank order
+		type ranked struct {
+			rank int
+			it   data.RankedItem
+		}
+		var window []ranked
+		flush := func() error {
+			errs := make([]error, len(window))
+			batch.Map(ctx, len(window), 0, func(i int) { errs[i] = fill(&window[i].it) })
+			for i, w := range window {
+				if errs[i] != nil {
+					return errs[i]
+				}
+				if drop, err := skip(&w.it); drop || err != nil {
+					if err != nil {
+						return err
+					}
+					continue
+				}
+				if err := enc.Encode(resultRow(w.rank, w.it, j.ExtraColumns)); err != nil {
+					return err
+				}
 			}
-			return enc.Encode(resultRow(rank, it, j.ExtraColumns))
+			window = window[:0]
+			return ctx.Err()
+		}
+		err := s.store.RankedItems(ctx, j.ID, 0, 0, func(rank int, it data.RankedItem) error {
+			window = append(window, ranked{rank, it})
+			if len(window) == 512 {
+				return flush()
+			}
+			return nil
 		})
+		if err == nil {
+			err = flush()
+		}
 		s.streamError(c, err)
 	case "csv":
 		c.Header("Content-Type", "text/csv; charset=utf-8")
@@ -455,18 +508,23 @@ func (s *Server) jobResults(c *gin.Context) {
 		w := csv.NewWriter(c.Writer)
 		w.Write(batch.CSVHeader(j.ExtraColumns))
 		err := s.store.RankedItems(ctx, j.ID, 0, 0, func(rank int, it data.RankedItem) error {
-			if drop, err := skip(it); drop || err != nil {
+			if drop, err := skip(&it); drop || err != nil {
 				return err
 			}
 			var row []string
-			switch it.State {
-			case batch.ItemDone:
+			switch {
+			case it.State == batch.ItemDone && it.Summary != "":
+				row = batch.CSVRowFromSummary(rank, it.ItemID, it.Line, it.Summary, it.Extra)
+			case it.State == batch.ItemDone:
+				if err := fill(&it); err != nil {
+					return err
+				}
 				var r screening.Result
 				if err := json.Unmarshal(it.Result, &r); err != nil {
 					return fmt.Errorf("stored result of item %d: %w", it.Seq, err)
 				}
 				row = batch.CSVRow(rank, it.ItemID, it.Line, &r, "", it.Extra)
-			case batch.ItemFailed:
+			case it.State == batch.ItemFailed:
 				var ie batch.ItemError
 				if err := json.Unmarshal(it.Result, &ie); err != nil {
 					return fmt.Errorf("stored error of item %d: %w", it.Seq, err)

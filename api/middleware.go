@@ -3,13 +3,13 @@ package api
 import (
 	"bytes"
 	"context"
-	"crypto/rand"
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
 	"errors"
 	"fmt"
 	"io"
+	"log/slog"
 	"mime"
 	"mime/multipart"
 	"net/http"
@@ -17,6 +17,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"sync"
 	"time"
 
 	"github.com/gin-gonic/gin"
@@ -34,12 +35,12 @@ const ctxKeyID = "api_key_id"
 var validRequestID = regexp.MustCompile(`^[A-Za-z0-9._-]{1,64}$`)
 
 // requestID takes a well-formed X-Request-ID from the caller or makes one, and echoes it.
+// Made ids are a per-process random prefix and a counter: unique, cheap (no system call per
+// request), and they sort in arrival order within one process.
 func (s *Server) requestID(c *gin.Context) {
 	id := c.GetHeader("X-Request-ID")
 	if !validRequestID.MatchString(id) {
-		var b [8]byte
-		rand.Read(b[:])
-		id = hex.EncodeToString(b[:])
+		id = s.idPrefix + strconv.FormatUint(s.idCounter.Add(1), 36)
 	}
 	c.Set(ctxRequestID, id)
 	c.Header("X-Request-ID", id)
@@ -62,15 +63,21 @@ func (s *Server) recoverer(c *gin.Context) {
 func (s *Server) logRequests(c *gin.Context) {
 	start := time.Now()
 	c.Next()
+	level := slog.LevelDebug
+	if len(c.Errors) > 0 || c.Writer.Status() >= 500 {
+		level = slog.LevelError
+	}
+	if !s.log.Enabled(c.Request.Context(), level) {
+		return // no attributes built for a record nobody reads
+	}
 	attrs := []any{"request_id", c.GetString(ctxRequestID), "method", c.Request.Method, "path", c.Request.URL.Path,
 		"status", c.Writer.Status(), "bytes", c.Writer.Size(), "duration_ms", float64(time.Since(start).Microseconds()) / 1000}
-	if len(c.Errors) > 0 {
+	switch {
+	case len(c.Errors) > 0:
 		s.log.Error("request failed", append(attrs, "err", c.Errors.String())...)
-		return
-	}
-	if c.Writer.Status() >= 500 {
+	case level == slog.LevelError:
 		s.log.Error("request", attrs...)
-	} else {
+	default:
 		s.log.Debug("request", attrs...)
 	}
 }
@@ -177,8 +184,10 @@ type metrics struct {
 	shed       prometheus.Counter
 	claims     prometheus.Counter
 	inFlight   prometheus.Gauge
-	leaseLost  prometheus.Counter
-	storeUp    prometheus.Gauge
+	// bound label handles (request, latencyOf)
+	counters, observers sync.Map
+	leaseLost           prometheus.Counter
+	storeUp             prometheus.Gauge
 }
 
 func newMetrics() *metrics {
@@ -206,8 +215,29 @@ func (s *Server) countRequests(c *gin.Context) {
 	if route == "" {
 		route = "unmatched"
 	}
-	s.metrics.requests.WithLabelValues(route, c.Request.Method, strconv.Itoa(c.Writer.Status())).Inc()
-	s.metrics.latency.WithLabelValues(route, c.Request.Method).Observe(time.Since(start).Seconds())
+	s.metrics.request(route, c.Request.Method, c.Writer.Status()).Inc()
+	s.metrics.latencyOf(route, c.Request.Method).Observe(time.Since(start).Seconds())
+}
+
+// request returns the request counter of a route, method and status, looked up once and then
+// kept (the label lookup hashes three strings on every request otherwise).
+func (m *metrics) request(route, method string, status int) prometheus.Counter {
+	key := route + "\x00" + method + "\x00" + strconv.Itoa(status)
+	if c, ok := m.counters.Load(key); ok {
+		return c.(prometheus.Counter)
+	}
+	c, _ := m.counters.LoadOrStore(key, m.requests.WithLabelValues(route, method, strconv.Itoa(status)))
+	return c.(prometheus.Counter)
+}
+
+// latencyOf returns the latency histogram of a route and method, kept after the first lookup.
+func (m *metrics) latencyOf(route, method string) prometheus.Observer {
+	key := route + "\x00" + method
+	if o, ok := m.observers.Load(key); ok {
+		return o.(prometheus.Observer)
+	}
+	o, _ := m.observers.LoadOrStore(key, m.latency.WithLabelValues(route, method))
+	return o.(prometheus.Observer)
 }
 
 func (s *Server) metricsHandler() gin.HandlerFunc {

@@ -2,6 +2,8 @@ package api
 
 import (
 	"context"
+	"crypto/rand"
+	"encoding/hex"
 	"log/slog"
 	"net/http"
 	"runtime"
@@ -61,6 +63,9 @@ type Server struct {
 	compute computeSlots
 	// inFlight and uploads shed load (Config.MaxInFlight, MaxUploads).
 	inFlight, uploads slots
+	// idPrefix and idCounter make request ids (requestID).
+	idPrefix  string
+	idCounter atomic.Uint64
 	// degraded remembers the store's last reported state (for logging changes).
 	degraded atomic.Bool
 	// limiters holds one token bucket per API key id (*rate.Limiter).
@@ -104,7 +109,9 @@ func New(cfg Config, store *data.Store, log *slog.Logger) *Server {
 	if cfg.ComputeSlots <= 0 {
 		cfg.ComputeSlots = runtime.NumCPU()
 	}
-	s := &Server{cfg: cfg, store: store, log: log, metrics: newMetrics(), compute: make(computeSlots, cfg.ComputeSlots),
+	var rb [4]byte
+	rand.Read(rb[:])
+	s := &Server{cfg: cfg, store: store, log: log, metrics: newMetrics(), compute: make(computeSlots, cfg.ComputeSlots), idPrefix: hex.EncodeToString(rb[:]) + "-",
 		inFlight: make(slots, cfg.MaxInFlight), uploads: make(slots, cfg.MaxUploads)}
 	if cfg.Workers <= 0 {
 		cfg.Workers = runtime.NumCPU()

@@ -204,6 +204,27 @@ type RankedItem struct {
 	Extra  []string
 	State  string // batch.ItemPending, ItemDone or ItemFailed
 	Result json.RawMessage
+	// Summary is the stored CSV fields of a done item (batch.Summary); empty for items stored by
+	// earlier versions, whose CSV row is then rendered from Result.
+	Summary string
+	// Recompute marks a done item whose result is not stored (batch.Recomputable): Result is
+	// nil and Source is what to screen again (ResultOf does it).
+	Recompute bool
+	Source    batch.ItemSource
+}
+
+// ResultOf returns the JSON result of a done item, screening it again under the job's
+// conditions when it was not stored.
+func (it *RankedItem) ResultOf(ctx context.Context, c screening.Conditions) (json.RawMessage, error) {
+	if !it.Recompute {
+		return it.Result, nil
+	}
+	b, err := batch.Recompute(ctx, it.Source, c)
+	if err != nil {
+		return nil, fmt.Errorf("item %d screened again: %w", it.Seq, err)
+	}
+	it.Result, it.Recompute = b, false
+	return b, nil
 }
 
 // RankedItems streams a job's items in rank order (the rank key of batch, then submission
@@ -218,7 +239,7 @@ func (s *Store) RankedItems(ctx context.Context, jobID string, offset, limit int
 		}
 	}
 	last := batch.FailedKey()
-	rows, err := s.db.QueryContext(ctx, s.q(`SELECT i.seq, i.item_id, i.line, i.extra, r.failed, r.result
+	rows, err := s.db.QueryContext(ctx, s.q(`SELECT i.seq, i.item_id, i.line, i.extra, i.source, r.failed, r.result, COALESCE(r.summary, '')
 		FROM job_items i LEFT JOIN job_results r ON r.job_id = i.job_id AND r.seq = i.seq
 		WHERE i.job_id = ? ORDER BY COALESCE(r.rank_key, ?), i.seq LIMIT ? OFFSET ?`), jobID, last[:], limit, offset)
 	if err != nil {
@@ -228,11 +249,19 @@ func (s *Store) RankedItems(ctx context.Context, jobID string, offset, limit int
 	rank := offset
 	for rows.Next() {
 		var it RankedItem
-		var ex string
+		var ex, src string
 		var failed sql.NullInt64
 		var res []byte
-		if err := rows.Scan(&it.Seq, &it.ItemID, &it.Line, &ex, &failed, &res); err != nil {
+		if err := rows.Scan(&it.Seq, &it.ItemID, &it.Line, &ex, &src, &failed, &res, &it.Summary); err != nil {
 			return fmt.Errorf("ranked items: %w", err)
+		}
+		if batch.IsRecomputeMark(res) {
+			it.Recompute, res = true, nil
+			if err := json.Unmarshal([]byte(src), &it.Source); err != nil {
+				return fmt.Errorf("ranked items: item %d source: %w", it.Seq, err)
+			}
+		} else if res, err = batch.DecodeResult(res); err != nil {
+			return fmt.Errorf("ranked items: item %d: %w", it.Seq, err)
 		}
 		if err := json.Unmarshal([]byte(ex), &it.Extra); err != nil {
 			return fmt.Errorf("ranked items: item %d extra columns: %w", it.Seq, err)
@@ -352,7 +381,7 @@ func (s *Store) CompleteChunk(ctx context.Context, c batch.Chunk, outs []batch.O
 		} else if n == 0 {
 			return batch.ErrLeaseLost
 		}
-		stmt, err := tx.PrepareContext(ctx, s.q(`INSERT INTO job_results (job_id, seq, rank_key, verdict, failed, result) VALUES (?, ?, ?, ?, ?, ?) ON CONFLICT DO NOTHING`))
+		stmt, err := tx.PrepareContext(ctx, s.q(`INSERT INTO job_results (job_id, seq, rank_key, verdict, failed, result, summary) VALUES (?, ?, ?, ?, ?, ?, ?) ON CONFLICT DO NOTHING`))
 		if err != nil {
 			return err
 		}
@@ -363,7 +392,7 @@ func (s *Store) CompleteChunk(ctx context.Context, c batch.Chunk, outs []batch.O
 			if o.Failed {
 				f = 1
 			}
-			r, err := stmt.ExecContext(ctx, c.JobID, o.Seq, o.Key[:], o.Verdict, f, o.Result)
+			r, err := stmt.ExecContext(ctx, c.JobID, o.Seq, o.Key[:], o.Verdict, f, o.Result, o.Summary)
 			if err != nil {
 				return err
 			}

@@ -20,7 +20,7 @@ import (
 // (testdata/corpus/candidates.smi). Targets and measured numbers are in the README's
 // performance section; run: go test ./screening -run '^$' -bench . -benchmem
 
-func loadCorpus(b *testing.B) []string {
+func loadCorpus(b testing.TB) []string {
 	f, err := os.Open(reftest.Path(b, "corpus/candidates.smi"))
 	if err != nil {
 		b.Fatal(err)
@@ -115,6 +115,47 @@ func BenchmarkScreenForceField(b *testing.B) {
 		}
 		if _, err := ScreenSMILES(c[i%len(c)], cond); err != nil {
 			b.Fatal(err)
+		}
+	}
+}
+
+// TestAllocationGuard keeps the allocations per structure from creeping up (a guard on the
+// steady state, not a timing): parsing, perception and full table-tier screening of 500 corpus
+// structures with warm caches, averaged. Bounds are today's counts plus a small margin
+// (design choice); lower them as the molecular core sheds allocations.
+func TestAllocationGuard(t *testing.T) {
+	if testing.Short() {
+		t.Skip("allocation guard")
+	}
+	c := loadCorpus(t)[:500]
+	cond := DefaultConditions()
+	cond.ThermoMethod = units.ThermoTable
+	for _, s := range c { // warm the caches
+		ScreenSMILES(s, cond)
+	}
+	per := func(fn func(s string)) float64 {
+		return testing.AllocsPerRun(3, func() {
+			for _, s := range c {
+				fn(s)
+			}
+		}) / float64(len(c))
+	}
+	for _, g := range []struct {
+		name   string
+		max    float64
+		allocs float64
+	}{
+		{"parse", 28, per(func(s string) { smiles.Parse(s) })},
+		{"parse and perceive", 64, per(func(s string) {
+			if m, err := smiles.Parse(s); err == nil {
+				rings.Perceive(m)
+			}
+		})},
+		{"screen (table tier)", 160, per(func(s string) { ScreenSMILES(s, cond) })},
+	} {
+		t.Logf("%s: %.1f allocations per structure (guard %.0f)", g.name, g.allocs, g.max)
+		if g.allocs > g.max {
+			t.Errorf("%s: %.1f allocations per structure, more than the guard of %.0f", g.name, g.allocs, g.max)
 		}
 	}
 }

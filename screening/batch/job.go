@@ -145,8 +145,10 @@ type Outcome struct {
 	Seq     int
 	Verdict string
 	Key     Key
-	Result  []byte // JSON screen result, or JSON ItemError when Failed
+	Result  []byte // screen result in its stored form (EncodeResult), or JSON ItemError when Failed
 	Failed  bool
+	// Summary is the result's CSV fields (see batch.Summary); empty for a failed item.
+	Summary string
 }
 
 // Chunk is a run of items of one job, claimed by one worker under a lease.

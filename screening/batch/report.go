@@ -2,6 +2,7 @@ package batch
 
 import (
 	"strconv"
+	"strings"
 
 	"ringsieve/screening"
 	"ringsieve/screening/judge"
@@ -19,6 +20,28 @@ func CSVHeader(extra []string) []string {
 }
 
 func fnum(x float64, prec int) string { return strconv.FormatFloat(x, 'g', prec, 64) }
+
+// SummarySep separates the fields of a stored result summary (the ASCII unit separator, which
+// no field contains).
+const SummarySep = "\x1f"
+
+// Summary returns the result's CSV fields (verdict to error, without rank, id, line and extra
+// columns) joined by SummarySep: what a job stores to write its CSV without decoding results.
+func Summary(r *screening.Result, errMsg string) string {
+	return strings.Join(CSVRow(0, "", 0, r, errMsg, nil)[3:], SummarySep)
+}
+
+// CSVRowFromSummary builds a CSV row from a stored summary (see Summary).
+func CSVRowFromSummary(rank int, id string, line int, summary string, extra []string) []string {
+	ln := ""
+	if line > 0 {
+		ln = strconv.Itoa(line)
+	}
+	row := make([]string, 0, 19+len(extra))
+	row = append(row, strconv.Itoa(rank), id, ln)
+	row = append(row, strings.Split(summary, SummarySep)...)
+	return append(row, extra...)
+}
 
 // CSVRow renders one ranked row; r is nil for an item that failed with errMsg.
 func CSVRow(rank int, id string, line int, r *screening.Result, errMsg string, extra []string) []string {

@@ -96,13 +96,25 @@ func (r *Runner) Run(ctx context.Context) {
 	r.init()
 	tick := time.NewTicker(idlePoll)
 	defer tick.Stop()
+	// screening and storage overlap: while one chunk's outcomes are written (a goroutine, at
+	// most one at a time), the next chunk is claimed and screened
+	writer := make(chan struct{}, 1)
+	writer <- struct{}{}
+	defer func() { <-writer }() // the last write has finished
 	for ctx.Err() == nil {
 		c, err := r.Store.ClaimChunk(ctx, r.Owner, r.Lease)
 		if err == nil {
 			if r.OnClaim != nil {
 				r.OnClaim()
 			}
-			r.process(ctx, c)
+			outs, ok := r.screenChunk(ctx, c)
+			if ok {
+				<-writer
+				go func() {
+					defer func() { writer <- struct{}{} }()
+					r.store(ctx, r.Log.With("job", c.JobID, "chunk", c.No), c, outs)
+				}()
+			}
 			continue
 		}
 		if !errors.Is(err, ErrNotFound) && ctx.Err() == nil {
@@ -116,13 +128,14 @@ func (r *Runner) Run(ctx context.Context) {
 	}
 }
 
-// process screens one claimed chunk and stores its outcomes.
-func (r *Runner) process(ctx context.Context, c Chunk) {
+// screenChunk screens one claimed chunk; ok is false when there is nothing to store (the chunk
+// failed, was given back or given up).
+func (r *Runner) screenChunk(ctx context.Context, c Chunk) (outs []Outcome, ok bool) {
 	log := r.Log.With("job", c.JobID, "chunk", c.No)
 	cond, err := ConditionsOf(c.Conditions)
 	if err != nil {
 		r.fail(ctx, log, c, "stored conditions are invalid: "+err.Error())
-		return
+		return nil, false
 	}
 	items, err := r.Store.ChunkItems(ctx, c)
 	if err != nil {
@@ -130,7 +143,7 @@ func (r *Runner) process(ctx context.Context, c Chunk) {
 			log.Error("read chunk items", "err", err)
 		}
 		r.release(log, c)
-		return
+		return nil, false
 	}
 	work, stop := context.WithCancel(ctx)
 	defer stop()
@@ -156,7 +169,7 @@ func (r *Runner) process(ctx context.Context, c Chunk) {
 			}
 		}
 	}()
-	outs := make([]Outcome, len(items))
+	outs = make([]Outcome, len(items))
 	err = Map(work, len(items), r.Workers, func(i int) { outs[i] = r.screenOne(work, items[i], cond) })
 	stop()
 	<-renewed
@@ -164,9 +177,9 @@ func (r *Runner) process(ctx context.Context, c Chunk) {
 		if ctx.Err() != nil {
 			r.release(log, c) // shutting down: redone by the next claim
 		}
-		return
+		return nil, false
 	}
-	r.store(ctx, log, c, outs)
+	return outs, true
 }
 
 // store writes a chunk's outcomes, retrying storage faults with back-off; after the last
@@ -252,11 +265,14 @@ func (r *Runner) screenOne(ctx context.Context, it Item, cond screening.Conditio
 	if err != nil {
 		return failed(it.Seq, NewItemError(err))
 	}
+	if Recomputable(it.Source, cond) {
+		return Outcome{Seq: it.Seq, Verdict: res.Verdict, Key: KeyOf(&res), Result: RecomputeMark(), Summary: Summary(&res, "")}
+	}
 	b, err := json.Marshal(res)
 	if err != nil {
 		return failed(it.Seq, NewItemError(err))
 	}
-	return Outcome{Seq: it.Seq, Verdict: res.Verdict, Key: KeyOf(&res), Result: b}
+	return Outcome{Seq: it.Seq, Verdict: res.Verdict, Key: KeyOf(&res), Result: EncodeResult(b), Summary: Summary(&res, "")}
 }
 
 func failed(seq int, e *ItemError) Outcome {

@@ -1,0 +1,289 @@
+package main
+
+import (
+	"bufio"
+	"bytes"
+	"context"
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"io"
+	"runtime"
+	"sort"
+	"strconv"
+	"sync"
+	"text/tabwriter"
+
+	"github.com/schollz/progressbar/v3"
+
+	"ringsieve/screening"
+	"ringsieve/screening/batch"
+	"ringsieve/screening/judge"
+)
+
+// Streaming offline screening: the input is read as a stream, items are screened on every
+// core as they arrive, and each result is kept only as a compact row — its rank key and its
+// output already rendered — so memory grows by a few hundred bytes per item instead of a whole
+// result, and reading, screening and rendering overlap. Ranking sorts the compact rows.
+
+// compactRow is one screened item as the output needs it.
+type compactRow struct {
+	key    batch.Key
+	seq    int
+	failed bool
+	keep   bool   // passes the output filter
+	text   []byte // the rendered row without its rank (format-specific, see renderRow)
+}
+
+// streamStats is what the summary line reports.
+type streamStats struct {
+	screened, failed int
+	inputErrors      []batch.InputError
+	extraColumns     []string
+}
+
+// screenStream screens the input read from r and writes the ranked output.
+func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, cond screening.Conditions, format string,
+	filter batch.ResultFilter, out io.Writer, bar *progressbar.ProgressBar) (streamStats, error) {
+	const batchSize = 256
+	work := make(chan []batch.InputItem, 2*runtime.NumCPU())
+	type part struct{ rows []compactRow }
+	parts := make(chan part, runtime.NumCPU())
+	var wg sync.WaitGroup
+	for w := 0; w < runtime.NumCPU(); w++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			var rows []compactRow
+			var buf bytes.Buffer
+			for items := range work {
+				for _, it := range items {
+					if ctx.Err() != nil {
+						break
+					}
+					res, err := batch.ScreenItemContext(ctx, it, cond)
+					rows = append(rows, renderRow(&buf, format, it, res, err, filter))
+				}
+				if bar != nil {
+					bar.Add(len(items))
+				}
+			}
+			parts <- part{rows}
+		}()
+	}
+	var seq int
+	pending := make([]batch.InputItem, 0, batchSize)
+	var in *batch.Input
+	var readErr error
+	go func() {
+		in, readErr = batch.ScanInput(r, inFormat, idField, 0, func(it batch.InputItem) error {
+			if ctx.Err() != nil {
+				return ctx.Err()
+			}
+			it.Line = encodeSeq(it.Line, seq) // carried through; see renderRow
+			seq++
+			pending = append(pending, it)
+			if len(pending) == batchSize {
+				work <- pending
+				pending = make([]batch.InputItem, 0, batchSize)
+			}
+			return nil
+		})
+		if len(pending) > 0 {
+			work <- pending
+		}
+		close(work)
+		wg.Wait()
+		close(parts)
+	}()
+	var rows []compactRow
+	for p := range parts {
+		rows = append(rows, p.rows...)
+	}
+	if bar != nil {
+		bar.Finish()
+	}
+	if readErr != nil {
+		return streamStats{}, readErr
+	}
+	if err := ctx.Err(); err != nil {
+		return streamStats{}, err
+	}
+	sort.Slice(rows, func(i, j int) bool {
+		if c := bytes.Compare(rows[i].key[:], rows[j].key[:]); c != 0 {
+			return c < 0
+		}
+		return rows[i].seq < rows[j].seq
+	})
+	st := streamStats{inputErrors: in.Errors, extraColumns: in.ExtraColumns}
+	for _, r := range rows {
+		if r.failed {
+			st.failed++
+		} else {
+			st.screened++
+		}
+	}
+	return st, writeCompact(out, format, rows, in.ExtraColumns)
+}
+
+// Items carry their submission sequence in the high bits of Line while they travel (the input
+// line stays in the low 32 bits), so that the reader needs no second channel.
+func encodeSeq(line, seq int) int     { return seq<<32 | line }
+func decodeSeq(v int) (line, seq int) { return v & (1<<32 - 1), v >> 32 }
+
+// renderRow screens nothing: it renders one outcome for the output format.
+//
+//	csv:   the CSV record with rank 0 (the rank is put in front when writing)
+//	jsonl: the JSON object's members after "rank" — {"error"|"extra","id","line" before it and
+//	       "result" after it, in the order encoding/json writes a map}; stored as
+//	       prefix \x00 suffix
+//	table: the tab-separated cells after the rank
+func renderRow(buf *bytes.Buffer, format string, it batch.InputItem, res screening.Result, err error, f batch.ResultFilter) compactRow {
+	line, seq := decodeSeq(it.Line)
+	row := batch.NewRow(seq, res, err)
+	cr := compactRow{key: row.Key, seq: seq, failed: err != nil, keep: !f.Active() || (row.Result != nil && f.Keeps(row.Result))}
+	buf.Reset()
+	msg := ""
+	if err != nil {
+		msg = err.Error()
+	}
+	switch format {
+	case "csv":
+		w := csv.NewWriter(buf)
+		w.Write(batch.CSVRow(0, it.ID, line, row.Result, msg, it.Extra))
+		w.Flush()
+	case "jsonl":
+		// members before "rank": error?, extra?, id, line; after: result?
+		if err != nil {
+			buf.WriteString(`"error":`)
+			writeJSON(buf, msg)
+			buf.WriteByte(',')
+		}
+		buf.WriteString("\x01") // the extra columns, filled in when their names are known
+		for _, v := range it.Extra {
+			writeJSON(buf, v)
+			buf.WriteByte('\x02')
+		}
+		buf.WriteString("\x01")
+		buf.WriteString(`"id":`)
+		writeJSON(buf, it.ID)
+		buf.WriteString(`,"line":`)
+		buf.WriteString(strconv.Itoa(line))
+		buf.WriteByte(0)
+		if err == nil {
+			buf.WriteString(`,"result":`)
+			writeJSON(buf, row.Result)
+		}
+	default:
+		buf.WriteString(tableCells(it.ID, row.Result, err))
+	}
+	cr.text = bytes.Clone(buf.Bytes())
+	return cr
+}
+
+func bufioWriter(w io.Writer) *bufio.Writer { return bufio.NewWriterSize(w, 64<<10) }
+
+// tableCells renders the table columns after the rank (tab-separated).
+func tableCells(id string, r *screening.Result, err error) string {
+	if err != nil {
+		return fmt.Sprintf("%s\terror\t\t\t\t\t%s", id, err)
+	}
+	dh, tc, x := "", "", ""
+	if t := r.Thermo; t != nil {
+		dh = fmt.Sprintf("%.1f ± %.1f", t.DHkJmol, t.DHUncertaintyKJmol)
+		tc = ceilingText(t)
+		x = fmt.Sprintf("%.3f", t.EqConversion)
+	}
+	return fmt.Sprintf("%s\t%s\t%.3f\t%s\t%s\t%s\t%s", id, r.Verdict, r.Score, dh, tc, x, judge.MainReasons(r))
+}
+
+// writeJSON appends v as encoding/json writes it (HTML characters escaped, no newline).
+func writeJSON(buf *bytes.Buffer, v any) {
+	b, err := json.Marshal(v)
+	if err != nil {
+		b = []byte("null")
+	}
+	buf.Write(b)
+}
+
+// writeCompact writes the ranked compact rows.
+func writeCompact(out io.Writer, format string, rows []compactRow, extraCols []string) error {
+	switch format {
+	case "csv":
+		bw := bufioWriter(out)
+		w := csv.NewWriter(bw)
+		w.Write(batch.CSVHeader(extraCols))
+		w.Flush()
+		rank := 0
+		for _, r := range rows {
+			rank++
+			if !r.keep {
+				continue
+			}
+			bw.WriteString(strconv.Itoa(rank))
+			bw.Write(r.text[1:]) // the record after its "0"
+		}
+		return bw.Flush()
+	case "jsonl":
+		bw := bufioWriter(out)
+		rank := 0
+		for _, r := range rows {
+			rank++
+			if !r.keep {
+				continue
+			}
+			pre, post, _ := bytes.Cut(r.text, []byte{0})
+			bw.WriteByte('{')
+			a, rest, _ := bytes.Cut(pre, []byte{1})
+			vals, b, _ := bytes.Cut(rest, []byte{1})
+			bw.Write(a)
+			if len(extraCols) > 0 {
+				bw.WriteString(`"extra":{`)
+				var parts [][]byte
+				if len(vals) > 0 {
+					parts = bytes.Split(bytes.TrimSuffix(vals, []byte{2}), []byte{2})
+				}
+				// a map is written with its keys sorted
+				idx := make([]int, 0, len(extraCols))
+				for k := range extraCols {
+					if k < len(parts) {
+						idx = append(idx, k)
+					}
+				}
+				sort.Slice(idx, func(i, j int) bool { return extraCols[idx[i]] < extraCols[idx[j]] })
+				for n, k := range idx {
+					if n > 0 {
+						bw.WriteByte(',')
+					}
+					kb, _ := json.Marshal(extraCols[k])
+					bw.Write(kb)
+					bw.WriteByte(':')
+					bw.Write(parts[k])
+				}
+				bw.WriteString("},")
+			}
+			bw.Write(b)
+			bw.WriteString(`,"rank":`)
+			bw.WriteString(strconv.Itoa(rank))
+			bw.Write(post)
+			bw.WriteString("}\n")
+		}
+		return bw.Flush()
+	default:
+		tw := tabwriter.NewWriter(out, 2, 4, 2, ' ', 0)
+		fmt.Fprintln(tw, "RANK\tID\tVERDICT\tSCORE\tΔH_p kJ/mol\tT_c K\tX_eq\tMAIN REASONS")
+		rank := 0
+		for _, r := range rows {
+			rank++
+			if !r.keep {
+				continue
+			}
+			fmt.Fprintf(tw, "%d\t%s\n", rank, r.text)
+		}
+		if err := tw.Flush(); err != nil {
+			return err
+		}
+		_, err := fmt.Fprintln(out, "* extrapolated: far outside any measured ceiling temperature (200–500 K)")
+		return err
+	}
+}

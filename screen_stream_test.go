@@ -1,0 +1,123 @@
+package main
+
+import (
+	"bytes"
+	"context"
+	"encoding/csv"
+	"encoding/json"
+	"fmt"
+	"io"
+	"os"
+	"strings"
+	"testing"
+	"text/tabwriter"
+
+	"ringsieve/screening"
+	"ringsieve/screening/batch"
+)
+
+// TestStreamedOutputUnchanged: the streamed offline screen writes byte for byte what the
+// earlier whole-list writer (kept here as the reference) wrote, for every format, with extra
+// CSV columns, unreadable rows and an output filter.
+func TestStreamedOutputUnchanged(t *testing.T) {
+	b, err := os.ReadFile("testdata/demo/membrane_candidates.csv")
+	if err != nil {
+		t.Fatal(err)
+	}
+	input := string(b) + "MEM-98,C1=CC(C,broken\nMEM-99,C1CC1,cyclopropane\n"
+	cond := screening.DefaultConditions()
+	cond.ThermoMethod = "table" // the rendering is what is compared; the fast tier keeps the test quick
+	keepAll := batch.ResultFilter{}
+	someVerdicts, err := batch.ParseFilter("polymerizes,equilibrium_limited", "", "")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, format := range []string{"csv", "jsonl", "table"} {
+		for _, f := range []batch.ResultFilter{keepAll, someVerdicts} {
+			in, err := batch.ReadInput(strings.NewReader(input), "", "", 0)
+			if err != nil {
+				t.Fatal(err)
+			}
+			rows := make([]batch.Row, len(in.Items))
+			for i, it := range in.Items {
+				r, err := batch.ScreenItemContext(context.Background(), it, cond)
+				rows[i] = batch.NewRow(i, r, err)
+			}
+			batch.Rank(rows)
+			var want, got bytes.Buffer
+			if err := writeRanked(&want, format, in.Items, rows, in.ExtraColumns, f); err != nil {
+				t.Fatal(err)
+			}
+			if _, err := screenStream(context.Background(), strings.NewReader(input), "", "", cond, format, f, &got, nil); err != nil {
+				t.Fatal(err)
+			}
+			if got.String() != want.String() {
+				t.Errorf("%s (filter %v): streamed output differs\n got: %.600s\nwant: %.600s", format, f.Active(), got.String(), want.String())
+			}
+		}
+	}
+}
+
+// writeRanked is the earlier writer of a whole ranked list (the reference for the streamed one).
+func writeRanked(out io.Writer, format string, items []batch.InputItem, rs []batch.Row, extraCols []string, f batch.ResultFilter) error {
+	skip := func(r batch.Row) bool { return f.Active() && (r.Result == nil || !f.Keeps(r.Result)) }
+	switch format {
+	case "csv":
+		w := csv.NewWriter(out)
+		w.Write(batch.CSVHeader(extraCols))
+		for i, r := range rs {
+			if skip(r) {
+				continue
+			}
+			msg := ""
+			if r.Err != nil {
+				msg = r.Err.Error()
+			}
+			it := items[r.Seq]
+			w.Write(batch.CSVRow(i+1, it.ID, it.Line, r.Result, msg, it.Extra))
+		}
+		w.Flush()
+		return w.Error()
+	case "jsonl":
+		enc := json.NewEncoder(out)
+		for i, r := range rs {
+			if skip(r) {
+				continue
+			}
+			it := items[r.Seq]
+			row := map[string]any{"rank": i + 1, "id": it.ID, "line": it.Line}
+			if r.Err != nil {
+				row["error"] = r.Err.Error()
+			} else {
+				row["result"] = r.Result
+			}
+			if len(extraCols) > 0 {
+				ex := map[string]string{}
+				for k, c := range extraCols {
+					if k < len(it.Extra) {
+						ex[c] = it.Extra[k]
+					}
+				}
+				row["extra"] = ex
+			}
+			if err := enc.Encode(row); err != nil {
+				return err
+			}
+		}
+		return nil
+	default:
+		tw := tabwriter.NewWriter(out, 2, 4, 2, ' ', 0)
+		fmt.Fprintln(tw, "RANK\tID\tVERDICT\tSCORE\tΔH_p kJ/mol\tT_c K\tX_eq\tMAIN REASONS")
+		for i, r := range rs {
+			if skip(r) {
+				continue
+			}
+			fmt.Fprintf(tw, "%d\t%s\n", i+1, tableCells(items[r.Seq].ID, r.Result, r.Err))
+		}
+		if err := tw.Flush(); err != nil {
+			return err
+		}
+		_, err := fmt.Fprintln(out, "* extrapolated: far outside any measured ceiling temperature (200–500 K)")
+		return err
+	}
+}

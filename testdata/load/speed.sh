@@ -1,0 +1,82 @@
+#!/usr/bin/env bash
+# Speed figures of the README's performance table (run from the repository root):
+#   bash testdata/load/speed.sh
+# Needs RDKit from Debian (python3-rdkit) for the reference, wrk for the HTTP part, GNU time.
+#   1. offline screening of 100,000 SMILES (the corpus ten times, distinct ids), whole process:
+#      ringsieve's fast tier against RDKit parsing, ring perception, aromaticity, formula and
+#      substructure counts (testdata/load/rdkit_reference_screen.py);
+#   2. the same file as a job: upload, screen and store, CSV and JSON Lines downloads;
+#   3. POST /v1/screen against GET /healthz on one server (wrk, 2 threads, 16 connections, 10 s);
+#   4. the force-field tier on one core: 40 substituted norbornenes, oxanorbornenes, imides and
+#      cyclooctenes.
+set -euo pipefail
+work=$(mktemp -d)
+pid=""
+trap '[ -n "$pid" ] && kill "$pid" 2>/dev/null; rm -rf "$work"' EXIT
+go build -o "$work/ringsieve" .
+for i in 0 1 2 3 4 5 6 7 8 9; do awk -v p=$i '!/^#/ && NF>=2 {print $1, $2"-r"p}' testdata/corpus/candidates.smi; done > "$work/100k.smi"
+
+echo "== 1. offline, 100,000 SMILES, whole process"
+/usr/bin/time -f "ringsieve screen (fast tier, all cores): %e s wall, %U s user, %S s sys, peak %M kB" \
+  "$work/ringsieve" screen --thermo-method table --format csv "$work/100k.smi" > "$work/out.csv" 2>"$work/err" || true
+tail -1 "$work/err"
+GOMAXPROCS=1 /usr/bin/time -f "ringsieve screen (fast tier, one core): %e s wall, %U s user, %S s sys, peak %M kB" \
+  "$work/ringsieve" screen --thermo-method table --format csv "$work/100k.smi" > /dev/null 2>"$work/err" || true
+tail -1 "$work/err"
+/usr/bin/time -f "RDKit reference (one core): %e s wall, %U s user, %S s sys, peak %M kB" \
+  /usr/bin/python3 testdata/load/rdkit_reference_screen.py "$work/100k.smi"
+
+echo "== 2. the same file as a job (SQLite store)"
+port=$(python3 -c 'import socket; s=socket.socket(); s.bind(("127.0.0.1",0)); print(s.getsockname()[1]); s.close()')
+base="http://127.0.0.1:$port"
+"$work/ringsieve" serve --addr "127.0.0.1:$port" --db "$work/jobs.db" --log-level warn 2>"$work/serve.log" &
+pid=$!
+for _ in $(seq 100); do curl -sf "$base/healthz" >/dev/null && break; sleep 0.1; done
+t0=$(date +%s.%N)
+id=$(curl -sf -F "file=@$work/100k.smi" -F thermo_method=table "$base/v1/jobs" | python3 -c 'import json,sys; print(json.load(sys.stdin)["id"])')
+while :; do
+  s=$(curl -sf "$base/v1/jobs/$id" | python3 -c 'import json,sys; print(json.load(sys.stdin)["status"])')
+  [ "$s" = done ] && break
+  sleep 0.1
+done
+t1=$(date +%s.%N)
+curl -sf "$base/v1/jobs/$id/results?format=csv" > "$work/job.csv"
+t2=$(date +%s.%N)
+curl -sf "$base/v1/jobs/$id/results?format=jsonl" > /dev/null
+t3=$(date +%s.%N)
+python3 -c "import sys; a,b,c,d=map(float,sys.argv[1:5]); print(f'job: submitted to done {b-a:.2f} s; CSV download {c-b:.2f} s; JSON Lines download {d-c:.2f} s')" "$t0" "$t1" "$t2" "$t3"
+ls -l "$work/jobs.db" | awk '{printf "database file: %.0f MB\n", $5/1e6}'
+cmp -s "$work/job.csv" "$work/out.csv" && echo "job CSV identical to the offline screen" || echo "job CSV DIFFERS from the offline screen"
+
+echo "== 3. POST /v1/screen against GET /healthz (wrk -t2 -c16 -d10s)"
+cat > "$work/screen.lua" <<'LUA'
+wrk.method = "POST"
+wrk.headers["Content-Type"] = "application/json"
+local smiles = {"CN1C(=O)C2C3C=CC(C3)C2C1=O", "C1=CC2CCC1C2", "COC(=O)C1CC2C=CC1C2", "C1=CCCC1", "C1=C\\\\CCCCCC/1", "OCC1CC2C=CC1C2"}
+local i = 0
+request = function()
+  i = i + 1
+  return wrk.format(nil, "/v1/screen", nil, '{"smiles":"' .. smiles[(i % #smiles) + 1] .. '","conditions":{"thermo_method":"table"}}')
+end
+LUA
+h=$(wrk -t2 -c16 -d10s "$base/healthz" | awk '/Requests\/sec/ {print $2}')
+sres=$(wrk -t2 -c16 -d10s --latency -s "$work/screen.lua" "$base")
+sr=$(echo "$sres" | awk '/Requests\/sec/ {print $2}')
+p99=$(echo "$sres" | awk '$1=="99%" {print $2}')
+python3 -c "import sys; h,s=float(sys.argv[1]),float(sys.argv[2]); print(f'/healthz {h:.0f}/s, /v1/screen {s:.0f}/s (ratio {s/h:.2f}), /v1/screen p99 {sys.argv[3]} at saturation')" "$h" "$sr" "$p99"
+kill "$pid"; pid=""
+
+echo "== 4. force-field tier on one core"
+python3 - "$work/ff.smi" <<'PY'
+import sys
+subs = ["C", "O", "OC", "CC", "C(=O)OC", "CO", "N(C)C", "C#N", "F", "Cl"]
+rings = ("C1=CCC({})CCCC1", "C1=CC2CC1C({})C2", "C1=CC2OC1C({})C2", "O=C1N({})C(=O)C2C3C=CC(C3)C12")
+with open(sys.argv[1], "w") as f:
+    i = 0
+    for ring in rings:
+        for s in subs:
+            f.write(ring.format(s) + f" ff-{i}\n")
+            i += 1
+PY
+GOMAXPROCS=1 /usr/bin/time -f "%e %U" -o "$work/fftime" "$work/ringsieve" screen --thermo-method forcefield --format csv "$work/ff.smi" > /dev/null 2>&1 || true
+python3 -c "import sys; w,u=open(sys.argv[1]).read().split()[:2]; print(f'40 candidates in {float(w):.1f} s on one core: {40/float(w):.1f} candidates/s')" "$work/fftime"
