@@ -148,9 +148,9 @@ func (t *ringTable) lookupKey(sub *mol.Molecule, atoms []int, trans bool) string
 func (t *ringTable) fallback(sub *mol.Molecule, p *rings.Rings, core []int, key string) strainTerm {
 	term := strainTerm{Key: key, Name: "estimate for " + key}
 	catoms := rings.Atoms(p.SSSR, core)
-	if len(catoms) > t.maxAtoms {
-		// no row can match: skip the all-carbon analogue's key
-	} else if row, ok := t.byKey[carbonAnalogueKey(sub, catoms)]; ok && len(core) > 1 {
+	if len(core) < 2 || len(catoms) > t.maxAtoms {
+		// a single ring, or larger than every row: no analogue to look up (its key is costly)
+	} else if row, ok := t.byKey[carbonAnalogueKey(sub, catoms)]; ok {
 		term.Name = "all-carbon analogue " + row.Name
 		term.H, term.S = row.RSCH, row.RSCS
 		term.UH, term.US = math.Hypot(row.UH, 8), math.Hypot(row.US, 15)

@@ -221,3 +221,15 @@ func TestSweep(t *testing.T) {
 		t.Error("too many points accepted")
 	}
 }
+
+// TestOxaBridgeConstant: the kept oxa-bridge difference is what the force field computes
+// today (within 0.05 kJ/mol, room for floating-point differences between machines).
+func TestOxaBridgeConstant(t *testing.T) {
+	v, err := computeOxaBridgeTerm()
+	if err != nil {
+		t.Fatal(err)
+	}
+	if math.Abs(v-oxaBridgeKJmol) > 0.05 {
+		t.Errorf("force field gives %.6f kJ/mol, the constant is %.6f: update oxaBridgeKJmol", v, oxaBridgeKJmol)
+	}
+}
