@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"strings"
 	"time"
 
 	"ringsieve/screening"
@@ -28,12 +29,13 @@ type JobMeta struct {
 }
 
 // DefaultChunkSize is the number of items a worker claims at a time in the fast tier (design
-// choice: about 20 ms of screening per item-thousand on one core, so a chunk is claimed,
-// screened and stored a few times a second). ForceFieldChunkSize is the chunk of jobs whose
+// choice: about 0.1 s of screening per chunk on one core, so claims, lease renewals and the
+// transaction that stores a chunk stay small next to the screening, and a crash redoes at
+// most a fraction of a second of work). ForceFieldChunkSize is the chunk of jobs whose
 // thermodynamics may use the force field (auto, forcefield): tens of milliseconds to a second
 // per item, so small chunks let several workers share even a short list.
 const (
-	DefaultChunkSize    = 1024
+	DefaultChunkSize    = 4096
 	ForceFieldChunkSize = 32
 )
 
@@ -58,11 +60,7 @@ func (s *Store) CreateJob(ctx context.Context, chunkSize int, fill func(add func
 		if _, err := s.exec(ctx, tx, `INSERT INTO jobs (id, status, conditions, total, source_format, created_at) VALUES (?, 'queued', '{}', 0, '', ?)`, j.ID, ts); err != nil {
 			return err
 		}
-		stmt, err := tx.PrepareContext(ctx, s.q(`INSERT INTO job_items (job_id, seq, item_id, line, source, extra) VALUES (?, ?, ?, ?, ?, ?)`))
-		if err != nil {
-			return err
-		}
-		defer stmt.Close()
+		ins := newBulkInsert(s, tx, `INSERT INTO job_items (job_id, seq, item_id, line, source, extra) VALUES `, 6, ``)
 		n := 0
 		add := func(it JobInput) error {
 			src, err := json.Marshal(it.Source)
@@ -75,7 +73,7 @@ func (s *Store) CreateJob(ctx context.Context, chunkSize int, fill func(add func
 					return err
 				}
 			}
-			if _, err := stmt.ExecContext(ctx, j.ID, n, it.ItemID, it.Line, string(src), string(ex)); err != nil {
+			if err := ins.add(ctx, j.ID, n, it.ItemID, it.Line, string(src), string(ex)); err != nil {
 				return err
 			}
 			n++
@@ -83,6 +81,9 @@ func (s *Store) CreateJob(ctx context.Context, chunkSize int, fill func(add func
 		}
 		meta, err := fill(add)
 		if err != nil {
+			return err
+		}
+		if err := ins.flush(ctx); err != nil {
 			return err
 		}
 		if err := s.notifyJob(ctx, tx, "new:"+j.ID); err != nil {
@@ -381,27 +382,30 @@ func (s *Store) CompleteChunk(ctx context.Context, c batch.Chunk, outs []batch.O
 		} else if n == 0 {
 			return batch.ErrLeaseLost
 		}
-		stmt, err := tx.PrepareContext(ctx, s.q(`INSERT INTO job_results (job_id, seq, rank_key, verdict, failed, result, summary) VALUES (?, ?, ?, ?, ?, ?, ?) ON CONFLICT DO NOTHING`))
+		// items of a redone chunk that were stored before are skipped (so never counted twice);
+		// the rest go in multi-row statements (one call per rows of a statement, not per item)
+		stored, err := s.storedSeqs(ctx, tx, c)
 		if err != nil {
 			return err
 		}
-		defer stmt.Close()
 		done, failed := 0, 0
+		ins := newBulkInsert(s, tx, `INSERT INTO job_results (job_id, seq, rank_key, verdict, failed, result, summary) VALUES `, 7, ` ON CONFLICT DO NOTHING`)
 		for _, o := range outs {
+			if stored[o.Seq] {
+				continue
+			}
 			f := 0
 			if o.Failed {
 				f = 1
 			}
-			r, err := stmt.ExecContext(ctx, c.JobID, o.Seq, o.Key[:], o.Verdict, f, o.Result, o.Summary)
-			if err != nil {
+			if err := ins.add(ctx, c.JobID, o.Seq, o.Key[:], o.Verdict, f, o.Result, o.Summary); err != nil {
 				return err
 			}
-			if n, err := r.RowsAffected(); err != nil {
-				return err
-			} else if n == 1 {
-				done++
-				failed += f
-			}
+			done++
+			failed += f
+		}
+		if err := ins.flush(ctx); err != nil {
+			return err
 		}
 		if _, err := s.exec(ctx, tx, `UPDATE jobs SET done = done + ?, failed = failed + ? WHERE id = ?`, done, failed, c.JobID); err != nil {
 			return err
@@ -413,6 +417,89 @@ func (s *Store) CompleteChunk(ctx context.Context, c batch.Chunk, outs []batch.O
 		return s.queryRow(ctx, tx, `SELECT status FROM jobs WHERE id = ?`, c.JobID).Scan(&status)
 	})
 	return status, err
+}
+
+// storedSeqs returns the sequence numbers of a chunk's items that already have a result.
+func (s *Store) storedSeqs(ctx context.Context, tx *sql.Tx, c batch.Chunk) (map[int]bool, error) {
+	rows, err := tx.QueryContext(ctx, s.q(`SELECT seq FROM job_results WHERE job_id = ? AND seq BETWEEN ? AND ?`), c.JobID, c.FirstSeq, c.LastSeq)
+	if err != nil {
+		return nil, err
+	}
+	defer rows.Close()
+	out := map[int]bool{}
+	for rows.Next() {
+		var q int
+		if err := rows.Scan(&q); err != nil {
+			return nil, err
+		}
+		out[q] = true
+	}
+	return out, rows.Err()
+}
+
+// bulkInsert gathers rows and writes them bulkRows at a time in one multi-row INSERT.
+type bulkInsert struct {
+	s          *Store
+	tx         *sql.Tx
+	head, tail string
+	cols, n    int
+	args       []any
+	stmt       *sql.Stmt // the prepared full-size statement
+}
+
+// bulkRows is the rows per statement (design choice: well under both engines' parameter limits).
+const bulkRows = 64
+
+func newBulkInsert(s *Store, tx *sql.Tx, head string, cols int, tail string) *bulkInsert {
+	return &bulkInsert{s: s, tx: tx, head: head, tail: tail, cols: cols}
+}
+
+func (b *bulkInsert) query(rows int) string {
+	var q strings.Builder
+	q.WriteString(b.head)
+	row := "(" + strings.TrimSuffix(strings.Repeat("?, ", b.cols), ", ") + ")"
+	for i := 0; i < rows; i++ {
+		if i > 0 {
+			q.WriteString(", ")
+		}
+		q.WriteString(row)
+	}
+	q.WriteString(b.tail)
+	return b.s.q(q.String())
+}
+
+func (b *bulkInsert) add(ctx context.Context, vals ...any) error {
+	b.args = append(b.args, vals...)
+	b.n++
+	if b.n < bulkRows {
+		return nil
+	}
+	if b.stmt == nil {
+		st, err := b.tx.PrepareContext(ctx, b.query(bulkRows))
+		if err != nil {
+			return err
+		}
+		b.stmt = st
+	}
+	_, err := b.stmt.ExecContext(ctx, b.args...)
+	b.args, b.n = b.args[:0], 0
+	return err
+}
+
+// flush writes the rows gathered since the last full statement and closes the statement.
+func (b *bulkInsert) flush(ctx context.Context) error {
+	defer func() {
+		if b.stmt != nil {
+			b.stmt.Close()
+			b.stmt = nil
+		}
+	}()
+	if b.n == 0 {
+		return nil
+	}
+	_, err := b.tx.ExecContext(ctx, b.query(b.n), b.args...)
+	b.args, b.n = b.args[:0], 0
+	return err
 }
 
 // ReleaseChunk implements batch.Store.

@@ -75,6 +75,13 @@ func openSQLite(ctx context.Context, path string) (*Store, error) {
 		}
 		return nil, fmt.Errorf("migrate %s: %w", path, err)
 	}
+	// this process holds the file alone: chunks still claimed were claimed by a process that
+	// ended without giving them back (a crash), so they are free now rather than when their
+	// leases run out
+	if _, err := db.ExecContext(ctx, `UPDATE job_chunks SET state = 'pending', owner = '', lease_until_ms = 0 WHERE state = 'claimed'`); err != nil {
+		db.Close()
+		return nil, fmt.Errorf("open %s: release claims of an earlier process: %w", path, err)
+	}
 	return s, nil
 }
 

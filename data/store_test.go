@@ -514,3 +514,29 @@ func TestSharedRateLimit(t *testing.T) {
 		t.Error("the bucket did not refill")
 	}
 }
+
+// TestRestartFreesClaimsOfTheCrashedProcess: an SQLite store serves one process, so chunks
+// still claimed when it opens belong to a process that crashed: they are claimable at once,
+// not a lease later.
+func TestRestartFreesClaimsOfTheCrashedProcess(t *testing.T) {
+	ctx := context.Background()
+	s, path := openTemp(t)
+	newJob(t, s, 1, "C1=CCCC1", "C1=CC2CCC1C2")
+	if _, err := s.ClaimChunk(ctx, "crashed", time.Hour); err != nil {
+		t.Fatal(err)
+	}
+	s.Close() // the process ends without giving the chunk back
+	s2, err := Open(ctx, path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s2.Close()
+	a, err := s2.ClaimChunk(ctx, "restarted", time.Hour)
+	if err != nil {
+		t.Fatalf("first claim after the restart: %v", err)
+	}
+	b, err := s2.ClaimChunk(ctx, "restarted", time.Hour)
+	if err != nil || a.No == b.No {
+		t.Fatalf("both chunks should be claimable after the restart: %+v %+v %v", a, b, err)
+	}
+}
