@@ -87,6 +87,8 @@ type Molecule struct {
 	heavy      []int
 	compStart  []int // per component: start of its atoms in compAtom (len components+1)
 	compAtom   []int
+	// indexBuf backs all the index arrays above (one allocation per molecule, reused by Reset)
+	indexBuf []int
 }
 
 // Reset empties the molecule, keeping its storage for reuse.
@@ -99,8 +101,25 @@ func (m *Molecule) Reset() {
 // the connected components. Call it after the atoms and bonds are in place and again after any
 // bond is added or removed.
 func (m *Molecule) Index() {
-	n := len(m.Atoms)
-	m.adjStart = grow(m.adjStart, n+1)
+	n, nb := len(m.Atoms), len(m.Bonds)
+	// one backing array for every index (adjacency, heavy neighbours, components, scratch)
+	need := 5*n + 3 + 4*nb
+	if cap(m.indexBuf) < need {
+		m.indexBuf = make([]int, need)
+	}
+	buf := m.indexBuf[:need]
+	carve := func(size int) []int {
+		s := buf[:size:size]
+		buf = buf[size:]
+		return s
+	}
+	m.adjStart = carve(n + 1)
+	m.adjBond = carve(2 * nb)
+	fill := carve(n + 1) // scratch: next free slot per atom; then the heavy-neighbour starts
+	m.heavy = carve(2 * nb)[:0]
+	m.compStart = carve(n + 1)[:0]
+	m.compAtom = carve(n)[:0]
+	seen := carve(n)
 	for i := range m.adjStart {
 		m.adjStart[i] = 0
 	}
@@ -111,9 +130,6 @@ func (m *Molecule) Index() {
 	for i := 1; i <= n; i++ {
 		m.adjStart[i] += m.adjStart[i-1]
 	}
-	m.adjBond = grow(m.adjBond, 2*len(m.Bonds))
-	fill := m.heavyStart // scratch: next free slot per atom
-	fill = grow(fill, n+1)
 	copy(fill, m.adjStart)
 	for i, b := range m.Bonds {
 		m.adjBond[fill[b.A]] = i
@@ -122,7 +138,6 @@ func (m *Molecule) Index() {
 		fill[b.B]++
 	}
 	m.heavyStart = fill
-	m.heavy = m.heavy[:0]
 	for a := 0; a < n; a++ {
 		m.heavyStart[a] = len(m.heavy)
 		for _, bi := range m.adjBond[m.adjStart[a]:m.adjStart[a+1]] {
@@ -132,36 +147,29 @@ func (m *Molecule) Index() {
 		}
 	}
 	m.heavyStart[n] = len(m.heavy)
-	m.indexComponents()
-}
-
-func grow(s []int, n int) []int {
-	if cap(s) < n {
-		return make([]int, n)
-	}
-	return s[:n]
+	m.indexComponents(seen)
 }
 
 // indexComponents lists the connected components, each in breadth-first order from its
 // lowest-numbered atom.
-func (m *Molecule) indexComponents() {
+func (m *Molecule) indexComponents(seen []int) {
 	n := len(m.Atoms)
-	m.compAtom = grow(m.compAtom, n)[:0]
-	m.compStart = m.compStart[:0]
-	seen := make([]bool, n)
+	for i := range seen {
+		seen[i] = 0
+	}
 	for i := 0; i < n; i++ {
-		if seen[i] {
+		if seen[i] != 0 {
 			continue
 		}
 		start := len(m.compAtom)
 		m.compStart = append(m.compStart, start)
 		m.compAtom = append(m.compAtom, i)
-		seen[i] = true
+		seen[i] = 1
 		for k := start; k < len(m.compAtom); k++ {
 			x := m.compAtom[k]
 			for _, bi := range m.Neighbors(x) {
-				if o := m.Other(bi, x); !seen[o] {
-					seen[o] = true
+				if o := m.Other(bi, x); seen[o] == 0 {
+					seen[o] = 1
 					m.compAtom = append(m.compAtom, o)
 				}
 			}

@@ -65,6 +65,12 @@ func ParseInto(m *mol.Molecule, s string) error {
 		return smilesErr(0, "this is an InChI, not a SMILES: convert it to SMILES first")
 	}
 	m.Reset()
+	// size the atom and bond lists once: at most one atom per letter, at most one bond per atom
+	// plus one per ring-closure digit
+	if letters, digits := countLettersDigits(s); cap(m.Atoms) < letters {
+		m.Atoms = make([]mol.Atom, 0, letters)
+		m.Bonds = make([]mol.Bond, 0, letters+digits)
+	}
 	r := &smilesReader{s: s, m: m}
 	if err := r.read(); err != nil {
 		if hint := nameHint(s); hint != "" {
@@ -548,4 +554,17 @@ func nameHint(s string) string {
 		return "this looks like a name, not a SMILES: give the structure as SMILES (e.g. norbornene is C1=CC2CCC1C2)"
 	}
 	return ""
+}
+
+// countLettersDigits counts the ASCII letters and digits of s.
+func countLettersDigits(s string) (letters, digits int) {
+	for i := 0; i < len(s); i++ {
+		switch c := s[i]; {
+		case c >= 'A' && c <= 'Z', c >= 'a' && c <= 'z':
+			letters++
+		case c >= '0' && c <= '9':
+			digits++
+		}
+	}
+	return letters, digits
 }
