@@ -69,8 +69,11 @@ func (e *ValenceError) Is(target error) bool { return target == units.ErrInvalid
 
 // DescribeMolecule analyses a molecule already read (from SMILES or a molfile); text is the
 // SMILES it came from, or "" when there is none. The molecule is not changed. Errors are
-// *ValenceError values.
+// *ValenceError values, or one matching units.ErrInvalid for a molecule without atoms.
 func DescribeMolecule(m *mol.Molecule, text string) (*Structure, error) {
+	if len(m.Atoms) == 0 {
+		return nil, fmt.Errorf("the structure has no atoms: %w", units.ErrInvalid)
+	}
 	if err := checkValence(m); err != nil {
 		return nil, err
 	}

@@ -93,6 +93,9 @@ func parseText(text string) (*mol.Molecule, string, [][3]float64, bool, error) {
 	if na > mol.MaxAtoms {
 		return nil, name, nil, false, mfErr(4, "more than %d atoms", mol.MaxAtoms)
 	}
+	if na == 0 {
+		return nil, name, nil, false, mfErr(4, "the counts line announces no atoms: there is no structure to read")
+	}
 	if len(lines) < 4+na+nb {
 		return nil, name, nil, false, mfErr(len(lines), "record ends before the %d atoms and %d bonds the counts line announces", na, nb)
 	}
