@@ -252,6 +252,86 @@ func jobFile(t *testing.T) []byte {
 	return out.Bytes()
 }
 
+// jobUpload is a multipart job submission of file (SMILES lines) in the fast tier.
+func jobUpload(file []byte) (*bytes.Buffer, string) {
+	var buf bytes.Buffer
+	w := multipart.NewWriter(&buf)
+	fw, _ := w.CreateFormFile("file", "list.smi")
+	fw.Write(file)
+	w.WriteField("thermo_method", "table") // the fast tier for a large list
+	w.Close()
+	return &buf, w.FormDataContentType()
+}
+
+// submitJob posts file as a fast-tier job with an Idempotency-Key and returns the job's id and
+// item count.
+func submitJob(t *testing.T, base string, file []byte, key string) (string, int) {
+	t.Helper()
+	buf, ct := jobUpload(file)
+	st, b, _ := call(t, "POST", base+"/v1/jobs", ct, buf, "Idempotency-Key", key)
+	if st != 202 {
+		t.Fatalf("submit: %d %s", st, b)
+	}
+	var jc struct {
+		ID    string `json:"id"`
+		Total int    `json:"total"`
+	}
+	json.Unmarshal(b, &jc)
+	return jc.ID, jc.Total
+}
+
+// waitMidway polls a job on base until some but not all of its total items are done, so that
+// the caller can kill a process mid-job; it fails when the job ends first.
+func waitMidway(t *testing.T, base, id string, total int) int {
+	t.Helper()
+	deadline := time.Now().Add(2 * time.Minute)
+	for {
+		_, b, _ := call(t, "GET", base+"/v1/jobs/"+id, "", nil)
+		var js struct {
+			Done   int    `json:"done"`
+			Status string `json:"status"`
+		}
+		json.Unmarshal(b, &js)
+		if js.Done > 0 && js.Done < total {
+			return js.Done
+		}
+		if js.Status == "done" || time.Now().After(deadline) {
+			t.Fatalf("job finished before it could be interrupted (%d of %d); use a larger file", js.Done, total)
+		}
+		time.Sleep(20 * time.Millisecond)
+	}
+}
+
+// sameAsOffline checks a job's ranked CSV against the offline `ringsieve screen` of the same file
+// (which holds two malformed rows, so the offline screen exits 2 — contract v1.1): every item
+// once, every line equal.
+func sameAsOffline(t *testing.T, got []byte, path string, total int) {
+	t.Helper()
+	want, err := exec.Command(binPath, "screen", "--thermo-method", "table", "--format", "csv", path).Output()
+	var ee *exec.ExitError
+	if !errors.As(err, &ee) || ee.ExitCode() != 2 {
+		t.Fatalf("offline screen of a file with bad rows: %v, want exit status 2", err)
+	}
+	gl := strings.Split(strings.TrimSpace(string(got)), "\n")
+	wl := strings.Split(strings.TrimSpace(string(want)), "\n")
+	if len(gl) != total+1 || len(wl) != len(gl) {
+		t.Fatalf("job CSV has %d rows, offline %d, want %d", len(gl)-1, len(wl)-1, total)
+	}
+	ids := map[string]bool{}
+	for i := range gl {
+		if i > 0 {
+			id := strings.Split(gl[i], ",")[1]
+			if ids[id] {
+				t.Fatalf("id %s appears twice", id)
+			}
+			ids[id] = true
+		}
+		if gl[i] != wl[i] {
+			t.Fatalf("line %d differs:\njob:     %s\noffline: %s", i+1, gl[i], wl[i])
+		}
+	}
+}
+
 // TestLargeJobSurvivesKill: a 20,000-structure job is killed (SIGKILL) mid-way and the service
 // restarted on the same database; the job resumes, nothing is lost or counted twice, and its
 // ranked CSV equals the offline `ringsieve screen` output for the same file.
@@ -266,39 +346,13 @@ func TestLargeJobSurvivesKill(t *testing.T) {
 	os.WriteFile(path, file, 0o644)
 
 	s := startService(t, db, "--workers", "2")
-	var buf bytes.Buffer
-	w := multipart.NewWriter(&buf)
-	fw, _ := w.CreateFormFile("file", "list.smi")
-	fw.Write(file)
-	w.WriteField("thermo_method", "table") // the fast tier for a large list
-	w.Close()
-	st, b, _ := call(t, "POST", s.base+"/v1/jobs", w.FormDataContentType(), &buf, "Idempotency-Key", "big-1")
-	if st != 202 {
-		t.Fatalf("submit: %d %s", st, b)
-	}
 	var jc struct {
-		ID    string `json:"id"`
-		Total int    `json:"total"`
+		ID    string
+		Total int
 	}
-	json.Unmarshal(b, &jc)
+	jc.ID, jc.Total = submitJob(t, s.base, file, "big-1")
 	// wait until some but not all items are done, then kill without warning
-	deadline := time.Now().Add(60 * time.Second)
-	for {
-		_, b, _ := call(t, "GET", s.base+"/v1/jobs/"+jc.ID, "", nil)
-		var js struct {
-			Done   int    `json:"done"`
-			Status string `json:"status"`
-		}
-		json.Unmarshal(b, &js)
-		if js.Done > 0 && js.Done < jc.Total {
-			t.Logf("killing the service at %d of %d", js.Done, jc.Total)
-			break
-		}
-		if js.Status == "done" || time.Now().After(deadline) {
-			t.Fatalf("job finished before it could be interrupted (%d of %d); use a larger file", js.Done, jc.Total)
-		}
-		time.Sleep(20 * time.Millisecond)
-	}
+	t.Logf("killing the service at %d of %d", waitMidway(t, s.base, jc.ID, jc.Total), jc.Total)
 	s.kill()
 
 	s2 := startService(t, db, "--workers", "2")
@@ -312,45 +366,12 @@ func TestLargeJobSurvivesKill(t *testing.T) {
 	_, got, _ := call(t, "GET", s2.base+"/v1/jobs/"+jc.ID+"/results?format=csv", "", nil)
 
 	// resubmitting with the same key returns the same job
-	var buf2 bytes.Buffer
-	w2 := multipart.NewWriter(&buf2)
-	fw2, _ := w2.CreateFormFile("file", "list.smi")
-	fw2.Write(file)
-	w2.WriteField("thermo_method", "table")
-	w2.Close()
-	_, b, _ = call(t, "POST", s2.base+"/v1/jobs", w2.FormDataContentType(), &buf2, "Idempotency-Key", "big-1")
+	buf2, ct2 := jobUpload(file)
+	_, b, _ := call(t, "POST", s2.base+"/v1/jobs", ct2, buf2, "Idempotency-Key", "big-1")
 	if !strings.Contains(string(b), jc.ID) {
 		t.Errorf("same Idempotency-Key after restart gave another job: %s", b)
 	}
-
-	// the file holds rows that cannot be screened: the offline screen writes every row and exits 2
-	// (contract v1.1: non-zero when any row failed)
-	want, err := exec.Command(binPath, "screen", "--thermo-method", "table", "--format", "csv", path).Output()
-	var ee *exec.ExitError
-	if !errors.As(err, &ee) || ee.ExitCode() != 2 {
-		t.Fatalf("offline screen of a file with bad rows: %v, want exit status 2", err)
-	}
-	gl := strings.Split(strings.TrimSpace(string(got)), "\n")
-	wl := strings.Split(strings.TrimSpace(string(want)), "\n")
-	if len(gl) != jc.Total+1 {
-		t.Fatalf("job CSV has %d rows, want %d", len(gl)-1, jc.Total)
-	}
-	ids := map[string]bool{}
-	for _, l := range gl[1:] {
-		id := strings.Split(l, ",")[1]
-		if ids[id] {
-			t.Fatalf("id %s appears twice", id)
-		}
-		ids[id] = true
-	}
-	if len(gl) != len(wl) {
-		t.Fatalf("job CSV %d lines, offline %d", len(gl), len(wl))
-	}
-	for i := range gl {
-		if gl[i] != wl[i] {
-			t.Fatalf("line %d differs:\njob:     %s\noffline: %s", i+1, gl[i], wl[i])
-		}
-	}
+	sameAsOffline(t, got, path, jc.Total)
 }
 
 func TestCLIScreenAndSubmit(t *testing.T) {

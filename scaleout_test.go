@@ -2,11 +2,8 @@ package main
 
 import (
 	"bufio"
-	"bytes"
 	"database/sql"
 	"encoding/json"
-	"errors"
-	"mime/multipart"
 	"os"
 	"os/exec"
 	"path/filepath"
@@ -73,48 +70,18 @@ func TestScaleOutOnPostgres(t *testing.T) {
 	w1 := startWorker(t, db, "w1", "--workers", "1", "--lease", "3s")
 	startWorker(t, db, "w2", "--workers", "1", "--lease", "3s")
 
-	body := func() (*bytes.Buffer, string) {
-		var buf bytes.Buffer
-		w := multipart.NewWriter(&buf)
-		fw, _ := w.CreateFormFile("file", "list.smi")
-		fw.Write(file)
-		w.WriteField("thermo_method", "table")
-		w.Close()
-		return &buf, w.FormDataContentType()
-	}
-	buf, ct := body()
-	st, res, _ := call(t, "POST", a.base+"/v1/jobs", ct, buf, "Idempotency-Key", "scale-1")
-	if st != 202 {
-		t.Fatalf("submit: %d %s", st, res)
-	}
 	var jc struct {
-		ID    string `json:"id"`
-		Total int    `json:"total"`
+		ID    string
+		Total int
 	}
-	json.Unmarshal(res, &jc)
+	jc.ID, jc.Total = submitJob(t, a.base, file, "scale-1")
 	// the same key on the other replica is the same job
-	buf, ct = body()
+	buf, ct := jobUpload(file)
 	if _, res, _ := call(t, "POST", b.base+"/v1/jobs", ct, buf, "Idempotency-Key", "scale-1"); !strings.Contains(string(res), jc.ID) {
 		t.Errorf("same Idempotency-Key on the other replica gave another job: %.200s", res)
 	}
 	// kill worker 1 without warning once the job is under way
-	deadline := time.Now().Add(2 * time.Minute)
-	for {
-		_, res, _ := call(t, "GET", b.base+"/v1/jobs/"+jc.ID, "", nil)
-		var js struct {
-			Done   int    `json:"done"`
-			Status string `json:"status"`
-		}
-		json.Unmarshal(res, &js)
-		if js.Done > 0 && js.Done < jc.Total {
-			t.Logf("killing worker 1 at %d of %d", js.Done, jc.Total)
-			break
-		}
-		if js.Status == "done" || time.Now().After(deadline) {
-			t.Fatalf("job finished before a worker could be killed (%d of %d)", js.Done, jc.Total)
-		}
-		time.Sleep(20 * time.Millisecond)
-	}
+	t.Logf("killing worker 1 at %d of %d", waitMidway(t, b.base, jc.ID, jc.Total), jc.Total)
 	w1.Process.Kill()
 	w1.Wait()
 
@@ -123,29 +90,7 @@ func TestScaleOutOnPostgres(t *testing.T) {
 		t.Fatalf("job on the other replica: %v", final)
 	}
 	_, got, _ := call(t, "GET", a.base+"/v1/jobs/"+jc.ID+"/results?format=csv", "", nil)
-	want, err := exec.Command(binPath, "screen", "--thermo-method", "table", "--format", "csv", path).Output()
-	var ee *exec.ExitError
-	if !errors.As(err, &ee) || ee.ExitCode() != 2 {
-		t.Fatalf("offline screen: %v, want exit status 2 (two malformed rows)", err)
-	}
-	gl := strings.Split(strings.TrimSpace(string(got)), "\n")
-	wl := strings.Split(strings.TrimSpace(string(want)), "\n")
-	if len(gl) != jc.Total+1 || len(wl) != len(gl) {
-		t.Fatalf("job CSV %d rows, offline %d, want %d", len(gl)-1, len(wl)-1, jc.Total)
-	}
-	ids := map[string]bool{}
-	for i := range gl {
-		if i > 0 {
-			id := strings.Split(gl[i], ",")[1]
-			if ids[id] {
-				t.Fatalf("id %s appears twice", id)
-			}
-			ids[id] = true
-		}
-		if gl[i] != wl[i] {
-			t.Fatalf("line %d differs:\njob:     %s\noffline: %s", i+1, gl[i], wl[i])
-		}
-	}
+	sameAsOffline(t, got, path, jc.Total)
 	// every item stored exactly once in the results table, every chunk done
 	conn, err := sql.Open("pgx", db)
 	if err != nil {

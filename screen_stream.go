@@ -46,7 +46,12 @@ type streamStats struct {
 func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, cond screening.Conditions, format string,
 	filter batch.ResultFilter, out io.Writer, bar *progressbar.ProgressBar) (streamStats, error) {
 	const batchSize = 256
-	work := make(chan []batch.InputItem, 2*runtime.NumCPU())
+	// a batch of items read in a row: the first one's submission sequence and the items
+	type run struct {
+		first int
+		items []batch.InputItem
+	}
+	work := make(chan run, 2*runtime.NumCPU())
 	type part struct{ rows []compactRow }
 	parts := make(chan part, runtime.NumCPU())
 	var wg sync.WaitGroup
@@ -56,13 +61,14 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 			defer wg.Done()
 			var rows []compactRow
 			var buf bytes.Buffer
-			for items := range work {
-				for _, it := range items {
+			for w := range work {
+				items := w.items
+				for k, it := range items {
 					if ctx.Err() != nil {
 						break
 					}
 					res, err := batch.ScreenItemContext(ctx, it, cond)
-					rows = append(rows, renderRow(&buf, format, it, res, err, filter))
+					rows = append(rows, renderRow(&buf, format, w.first+k, it, res, err, filter))
 				}
 				if bar != nil {
 					bar.Add(len(items))
@@ -72,7 +78,7 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 		}()
 	}
 	var seq int
-	pending := make([]batch.InputItem, 0, batchSize)
+	pending := run{items: make([]batch.InputItem, 0, batchSize)}
 	var in *batch.Input
 	var readErr error
 	go func() {
@@ -80,16 +86,15 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 			if ctx.Err() != nil {
 				return ctx.Err()
 			}
-			it.Line = encodeSeq(it.Line, seq) // carried through; see renderRow
+			pending.items = append(pending.items, it)
 			seq++
-			pending = append(pending, it)
-			if len(pending) == batchSize {
+			if len(pending.items) == batchSize {
 				work <- pending
-				pending = make([]batch.InputItem, 0, batchSize)
+				pending = run{first: seq, items: make([]batch.InputItem, 0, batchSize)}
 			}
 			return nil
 		})
-		if len(pending) > 0 {
+		if len(pending.items) > 0 {
 			work <- pending
 		}
 		close(work)
@@ -126,11 +131,6 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 	return st, writeCompact(out, format, rows, in.ExtraColumns)
 }
 
-// Items carry their submission sequence in the high bits of Line while they travel (the input
-// line stays in the low 32 bits), so that the reader needs no second channel.
-func encodeSeq(line, seq int) int     { return seq<<32 | line }
-func decodeSeq(v int) (line, seq int) { return v & (1<<32 - 1), v >> 32 }
-
 // renderRow screens nothing: it renders one outcome for the output format.
 //
 //	csv:   the CSV record with rank 0 (the rank is put in front when writing)
@@ -138,8 +138,8 @@ func decodeSeq(v int) (line, seq int) { return v & (1<<32 - 1), v >> 32 }
 //	       "result" after it, in the order encoding/json writes a map}; stored as
 //	       prefix \x00 suffix
 //	table: the tab-separated cells after the rank
-func renderRow(buf *bytes.Buffer, format string, it batch.InputItem, res screening.Result, err error, f batch.ResultFilter) compactRow {
-	line, seq := decodeSeq(it.Line)
+func renderRow(buf *bytes.Buffer, format string, seq int, it batch.InputItem, res screening.Result, err error, f batch.ResultFilter) compactRow {
+	line := it.Line
 	row := batch.NewRow(seq, res, err)
 	cr := compactRow{key: row.Key, seq: seq, failed: err != nil, keep: !f.Active() || (row.Result != nil && f.Keeps(row.Result))}
 	buf.Reset()

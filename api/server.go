@@ -73,39 +73,26 @@ type Server struct {
 	wg       sync.WaitGroup
 }
 
+// orDefault sets a zero or negative setting to its default.
+func orDefault[T int | int64 | float64 | time.Duration](v *T, def T) {
+	if *v <= 0 {
+		*v = def
+	}
+}
+
 // New builds a server over an open store. Start background work with Start.
 func New(cfg Config, store *data.Store, log *slog.Logger) *Server {
 	def := DefaultConfig()
-	if cfg.MaxBodyBytes <= 0 {
-		cfg.MaxBodyBytes = def.MaxBodyBytes
-	}
-	if cfg.MaxFileBytes <= 0 {
-		cfg.MaxFileBytes = def.MaxFileBytes
-	}
-	if cfg.BatchLimit <= 0 {
-		cfg.BatchLimit = def.BatchLimit
-	}
-	if cfg.JobLimit <= 0 {
-		cfg.JobLimit = def.JobLimit
-	}
-	if cfg.RatePerKey <= 0 {
-		cfg.RatePerKey = def.RatePerKey
-	}
-	if cfg.RateBurst <= 0 {
-		cfg.RateBurst = def.RateBurst
-	}
-	if cfg.SyncForceField <= 0 {
-		cfg.SyncForceField = def.SyncForceField
-	}
-	if cfg.ComputeTimeout <= 0 {
-		cfg.ComputeTimeout = def.ComputeTimeout
-	}
-	if cfg.MaxInFlight <= 0 {
-		cfg.MaxInFlight = def.MaxInFlight
-	}
-	if cfg.MaxUploads <= 0 {
-		cfg.MaxUploads = def.MaxUploads
-	}
+	orDefault(&cfg.MaxBodyBytes, def.MaxBodyBytes)
+	orDefault(&cfg.MaxFileBytes, def.MaxFileBytes)
+	orDefault(&cfg.BatchLimit, def.BatchLimit)
+	orDefault(&cfg.JobLimit, def.JobLimit)
+	orDefault(&cfg.RatePerKey, def.RatePerKey)
+	orDefault(&cfg.RateBurst, def.RateBurst)
+	orDefault(&cfg.SyncForceField, def.SyncForceField)
+	orDefault(&cfg.ComputeTimeout, def.ComputeTimeout)
+	orDefault(&cfg.MaxInFlight, def.MaxInFlight)
+	orDefault(&cfg.MaxUploads, def.MaxUploads)
 	if cfg.ComputeSlots <= 0 {
 		cfg.ComputeSlots = runtime.NumCPU()
 	}

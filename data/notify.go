@@ -32,11 +32,12 @@ func (s *Store) ListenJobs(ctx context.Context, fn func(payload string)) {
 	}
 	wait := time.Second
 	for ctx.Err() == nil {
-		err := s.listen(ctx, fn)
+		// listen returns when the connection drops or cannot be made; meanwhile the runner's
+		// poll still finds the work, so connecting again shortly is all there is to do
+		s.listen(ctx, fn)
 		if ctx.Err() != nil {
 			return
 		}
-		_ = err // the caller's poll still finds the work; try again shortly
 		select {
 		case <-ctx.Done():
 			return
@@ -46,20 +47,21 @@ func (s *Store) ListenJobs(ctx context.Context, fn func(payload string)) {
 	}
 }
 
-func (s *Store) listen(ctx context.Context, fn func(string)) error {
+// listen delivers notifications to fn until the connection drops or cannot be made.
+func (s *Store) listen(ctx context.Context, fn func(string)) {
 	conn, err := pgx.Connect(ctx, s.dsn)
 	if err != nil {
-		return err
+		return
 	}
 	defer conn.Close(context.WithoutCancel(ctx))
 	if _, err := conn.Exec(ctx, "LISTEN "+jobsChannel); err != nil {
-		return err
+		return
 	}
 	fn("listening") // events may have been missed while disconnected: look for work now
 	for {
 		n, err := conn.WaitForNotification(ctx)
 		if err != nil {
-			return err
+			return
 		}
 		fn(n.Payload)
 	}

@@ -83,9 +83,6 @@ func (s *Store) q(query string) string {
 // Close closes the database.
 func (s *Store) Close() error { return s.db.Close() }
 
-// Ping checks the database answers.
-func (s *Store) Ping(ctx context.Context) error { return s.db.PingContext(ctx) }
-
 // DB exposes the handle for tests and maintenance.
 func (s *Store) DB() *sql.DB { return s.db }
 

@@ -185,9 +185,6 @@ func (t *templater) place(atoms []int) {
 	start := -1
 	bestSize := 0
 	for si, sys := range t.systems {
-		if t.system[t.r.SSSR[sys[0]].Atoms[0]] != si {
-			continue
-		}
 		a := t.r.SSSR[sys[0]].Atoms[0]
 		if !inList(atoms, a) {
 			continue
@@ -218,7 +215,7 @@ func (t *templater) place(atoms []int) {
 		a := queue[0]
 		queue = queue[1:]
 		var todo []int
-		for _, x := range nbrs(t.m, a) {
+		for _, x := range t.m.NeighborAtoms(a) {
 			if !t.placed[x] {
 				todo = append(todo, x)
 			}
@@ -265,7 +262,7 @@ func (t *templater) place(atoms []int) {
 func (t *templater) freeDirections(a int, todo []int) []Point {
 	var used []float64
 	var placedNbr []int
-	for _, x := range nbrs(t.m, a) {
+	for _, x := range t.m.NeighborAtoms(a) {
 		if t.placed[x] {
 			used = append(used, t.pts[x].sub(t.pts[a]).angle())
 			placedNbr = append(placedNbr, x)
@@ -345,7 +342,7 @@ func (t *templater) crowd(q Point) float64 {
 // double bonds as in an allene or a cumulene).
 func linear(m *mol.Molecule, a int) bool {
 	doubles := 0
-	for _, x := range nbrs(m, a) {
+	for _, x := range m.NeighborAtoms(a) {
 		switch m.Bonds[m.BondBetween(a, x)].Order {
 		case mol.BondTriple:
 			return true
@@ -684,7 +681,7 @@ func centreAtom(m *mol.Molecule, atoms []int) int {
 			a := q[0]
 			q = q[1:]
 			last = a
-			for _, x := range nbrs(m, a) {
+			for _, x := range m.NeighborAtoms(a) {
 				if _, ok := prev[x]; !ok {
 					prev[x] = a
 					q = append(q, x)
@@ -700,14 +697,4 @@ func centreAtom(m *mol.Molecule, atoms []int) int {
 	e, _ := far(atoms[0])
 	_, path := far(e)
 	return path[len(path)/2]
-}
-
-// nbrs returns the atoms bonded to a (a new slice).
-func nbrs(m *mol.Molecule, a int) []int {
-	bs := m.Neighbors(a)
-	out := make([]int, len(bs))
-	for i, bi := range bs {
-		out[i] = m.Other(bi, a)
-	}
-	return out
 }

@@ -178,7 +178,7 @@ func newTargets(m *mol.Molecule, r *rings.Rings, ringsOf [][]int, atoms []int) *
 		for len(q) > 0 {
 			x := q[0]
 			q = q[1:]
-			for _, y := range nbrs(m, x) {
+			for _, y := range m.NeighborAtoms(x) {
 				if j := local[y]; g[j] < 0 {
 					g[j] = g[local[x]] + 1
 					q = append(q, y)
@@ -218,7 +218,6 @@ func newTargets(m *mol.Molecule, r *rings.Rings, ringsOf [][]int, atoms []int) *
 // stress moves the atoms towards the target distances (localized stress majorization with
 // weights d⁻²), iters sweeps.
 func (t *targets) stress(p []Point, iters int) {
-	n := len(t.atoms)
 	for it := 0; it < iters; it++ {
 		for i, a := range t.atoms {
 			var sx, sy, sw float64
@@ -246,7 +245,6 @@ func (t *targets) stress(p []Point, iters int) {
 				p[a] = Point{sx / sw, sy / sw}
 			}
 		}
-		_ = n
 	}
 }
 
@@ -308,7 +306,7 @@ func fixDoubleBonds(m *mol.Molecule, r *rings.Rings, p []Point, atoms []int) {
 // marked returns the neighbour of a (not other) whose bond carries a '/' or '\' mark and its
 // side sign, or -1.
 func marked(m *mol.Molecule, a, other int) (int, int) {
-	for _, x := range nbrs(m, a) {
+	for _, x := range m.NeighborAtoms(a) {
 		if x == other {
 			continue
 		}
@@ -338,7 +336,7 @@ func reach(m *mol.Molecule, a, skip int) []int {
 	for len(q) > 0 {
 		x := q[0]
 		q = q[1:]
-		for _, y := range nbrs(m, x) {
+		for _, y := range m.NeighborAtoms(x) {
 			if m.BondBetween(x, y) == skip || seen[y] {
 				continue
 			}

@@ -35,7 +35,7 @@ func assignWedges(l *Layout, r *rings.Rings) {
 			nb, bond, rank int
 		}
 		var cands []cand
-		for _, x := range nbrs(m, a) {
+		for _, x := range m.NeighborAtoms(a) {
 			bi := m.BondBetween(a, x)
 			if l.Wedge[bi] != 0 || m.Bonds[bi].Order != 1 {
 				continue
@@ -97,7 +97,7 @@ func volume(l *Layout, a int, order []int, up int, hBehind bool) float64 {
 			}
 			// on the free side of the centre, below
 			s := Point{}
-			for _, y := range nbrs(m, a) {
+			for _, y := range m.NeighborAtoms(a) {
 				s = s.add(l.P[y].sub(c).norm())
 			}
 			h := c
@@ -159,7 +159,7 @@ func StereoSignature(l *Layout) string {
 
 func firstOther(m *mol.Molecule, a, other int) int {
 	best := -1
-	for _, x := range nbrs(m, a) {
+	for _, x := range m.NeighborAtoms(a) {
 		if x != other && (best < 0 || x < best) {
 			best = x
 		}

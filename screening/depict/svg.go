@@ -172,7 +172,7 @@ func (l *Layout) ringSide(bi int) (float64, bool) {
 	// the ring lies on the side of the neighbours of A and B that are ring atoms
 	sum := 0.0
 	for _, end := range []int{bd.A, bd.B} {
-		for _, x := range nbrs(m, end) {
+		for _, x := range m.NeighborAtoms(end) {
 			if x == bd.A || x == bd.B {
 				continue
 			}
@@ -196,7 +196,7 @@ func (l *Layout) ringSide(bi int) (float64, bool) {
 // point right).
 func (l *Layout) hLeft(a int) bool {
 	sx := 0.0
-	for _, x := range nbrs(l.Mol, a) {
+	for _, x := range l.Mol.NeighborAtoms(a) {
 		sx += l.P[x].X - l.P[a].X
 	}
 	return sx > 0.3

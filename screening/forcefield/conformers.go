@@ -419,7 +419,7 @@ func openCentres(m *mol.Molecule, st Stereo) [][3]int {
 		if fixed[a] || m.Degree(a) != 4 || m.Atoms[a].Z == 1 {
 			continue
 		}
-		nb := nbrs(m, a)
+		nb := m.NeighborAtoms(a)
 		var pend []int
 		heavyPend := false
 		for _, n := range nb {
@@ -492,7 +492,7 @@ func (sr *searcher) setDihedral(x []float64, bd [2]int, target float64) {
 // flatAtom reports an atom with a double bond or an oxygen or nitrogen next to one (conjugated
 // ester oxygen, amide nitrogen): the end of a bond whose turning minima are not staggered.
 func flatAtom(m *mol.Molecule, a int) bool {
-	for _, n := range nbrs(m, a) {
+	for _, n := range m.NeighborAtoms(a) {
 		if m.Bonds[m.BondBetween(a, n)].Order == mol.BondDouble {
 			return true
 		}
@@ -501,8 +501,8 @@ func flatAtom(m *mol.Molecule, a int) bool {
 	if z != 7 && z != 8 {
 		return false
 	}
-	for _, n := range nbrs(m, a) {
-		for _, o := range nbrs(m, n) {
+	for _, n := range m.NeighborAtoms(a) {
+		for _, o := range m.NeighborAtoms(n) {
 			if o != a && m.Bonds[m.BondBetween(n, o)].Order == mol.BondDouble {
 				return true
 			}
@@ -525,7 +525,7 @@ func angleDiff(a, b float64) float64 {
 // refNbr returns a neighbour of a other than b, a heavy atom when there is one, or −1.
 func refNbr(m *mol.Molecule, a, b int) int {
 	best := -1
-	for _, n := range nbrs(m, a) {
+	for _, n := range m.NeighborAtoms(a) {
 		if n == b {
 			continue
 		}
@@ -573,7 +573,7 @@ func (sr *searcher) kickRing(x []float64) {
 	for _, a := range ring {
 		d := vec{0.8 * (2*sr.rng.Float64() - 1), 0.8 * (2*sr.rng.Float64() - 1), 0.8 * (2*sr.rng.Float64() - 1)}
 		move := []int{a}
-		for _, h := range nbrs(m, a) {
+		for _, h := range m.NeighborAtoms(a) {
 			if m.Atoms[h].Z == 1 {
 				move = append(move, h)
 			}
@@ -600,7 +600,7 @@ func segmentSide(m *mol.Molecule, seg []int, hingeA, hingeB int) ([]int, bool) {
 		}
 	}
 	for q := 0; q < len(out); q++ {
-		for _, v := range nbrs(m, out[q]) {
+		for _, v := range m.NeighborAtoms(out[q]) {
 			if seen[v] {
 				continue
 			}
@@ -611,7 +611,7 @@ func segmentSide(m *mol.Molecule, seg []int, hingeA, hingeB int) ([]int, bool) {
 	// the moving side must not contain the hinges' other neighbours (it would if a second path
 	// links the segment to the rest of the ring)
 	for _, h := range [2]int{hingeA, hingeB} {
-		for _, v := range nbrs(m, h) {
+		for _, v := range m.NeighborAtoms(h) {
 			if slices.Contains(seg, v) {
 				continue
 			}
@@ -646,7 +646,7 @@ func sideOf(m *mol.Molecule, j, k int) []int {
 	seen[j], seen[k] = true, true
 	out := []int{k}
 	for q := 0; q < len(out); q++ {
-		for _, v := range nbrs(m, out[q]) {
+		for _, v := range m.NeighborAtoms(out[q]) {
 			if !seen[v] {
 				seen[v] = true
 				out = append(out, v)
@@ -674,7 +674,7 @@ func rotatableBonds(m *mol.Molecule) [][2]int {
 				break
 			}
 			hs, triple := 0, false
-			for _, n := range nbrs(m, a) {
+			for _, n := range m.NeighborAtoms(a) {
 				if m.Atoms[n].Z == 1 {
 					hs++
 				}
@@ -770,7 +770,7 @@ func smallestRingThrough(m *mol.Molecule, bi int) []int {
 	for len(queue) > 0 {
 		u := queue[0]
 		queue = queue[1:]
-		for _, v := range nbrs(m, u) {
+		for _, v := range m.NeighborAtoms(u) {
 			if (u == a && v == b) || prev[v] != -2 {
 				continue
 			}

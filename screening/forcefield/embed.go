@@ -71,11 +71,11 @@ func newEmbedder(s *System, st Stereo) *embedder {
 	angle := func(a, b, c int) float64 { return th0[[3]int{min(a, c), b, max(a, c)}] }
 	// 1,4 distances across double bonds with a fixed geometry
 	for _, o := range st.Olefins {
-		for _, x := range nbrs(m, o.A) {
+		for _, x := range m.NeighborAtoms(o.A) {
 			if x == o.B {
 				continue
 			}
-			for _, y := range nbrs(m, o.B) {
+			for _, y := range m.NeighborAtoms(o.B) {
 				if y == o.A {
 					continue
 				}

@@ -79,7 +79,7 @@ func StereoFromGraph(m *mol.Molecule) Stereo {
 // markedNbr returns a neighbour x of a (other than other) whose bond carries a '/' or '\' mark,
 // with the side it stands on, or −1.
 func markedNbr(m *mol.Molecule, a, other int) (int, int) {
-	for _, x := range nbrs(m, a) {
+	for _, x := range m.NeighborAtoms(a) {
 		if x == other {
 			continue
 		}
@@ -167,7 +167,7 @@ func StereoFromCoords(m *mol.Molecule, x []float64) Stereo {
 		if m.Degree(a) != 4 || m.Atoms[a].Z == 1 {
 			continue
 		}
-		nb := nbrs(m, a)
+		nb := m.NeighborAtoms(a)
 		c := Centre{Atom: a, Nbrs: [4]int{nb[0], nb[1], nb[2], nb[3]}}
 		c.Sign = centreSign(x, c)
 		if c.Sign != 0 {
@@ -179,13 +179,13 @@ func StereoFromCoords(m *mol.Molecule, x []float64) Stereo {
 			continue
 		}
 		xa, yb := -1, -1
-		for _, n := range nbrs(m, b.A) {
+		for _, n := range m.NeighborAtoms(b.A) {
 			if n != b.B {
 				xa = n
 				break
 			}
 		}
-		for _, n := range nbrs(m, b.B) {
+		for _, n := range m.NeighborAtoms(b.B) {
 			if n != b.A {
 				yb = n
 				break
@@ -198,14 +198,4 @@ func StereoFromCoords(m *mol.Molecule, x []float64) Stereo {
 		st.Olefins = append(st.Olefins, OlefinGeometry{X: xa, A: b.A, B: b.B, Y: yb, Trans: d > 90, Written: true})
 	}
 	return st
-}
-
-// nbrs returns the atoms bonded to a (a new slice).
-func nbrs(m *mol.Molecule, a int) []int {
-	bs := m.Neighbors(a)
-	out := make([]int, len(bs))
-	for k, bi := range bs {
-		out[k] = m.Other(bi, a)
-	}
-	return out
 }

@@ -670,7 +670,6 @@ func (t *typer) sulfur(a int) (int, int) {
 	if t.arom[a] {
 		return 44, hNone
 	}
-	heavy := m.HeavyNbrs(a)
 	termO := t.terminal(a, 8)
 	double, _, partner := t.multiple(a)
 	switch {
@@ -696,7 +695,6 @@ func (t *typer) sulfur(a int) (int, int) {
 	case termO == 1 && deg == 3:
 		return 17, hNone
 	}
-	_ = heavy
 	return 15, hHS
 }
 

@@ -193,6 +193,16 @@ func (m *Molecule) Neighbors(a int) []int {
 	return m.adjBond[m.adjStart[a]:m.adjStart[a+1]:m.adjStart[a+1]]
 }
 
+// NeighborAtoms returns the atoms bonded to a, hydrogens included, in bond order (a new slice).
+func (m *Molecule) NeighborAtoms(a int) []int {
+	bs := m.Neighbors(a)
+	out := make([]int, len(bs))
+	for i, bi := range bs {
+		out[i] = m.Other(bi, a)
+	}
+	return out
+}
+
 // Degree returns the number of bonds at atom a.
 func (m *Molecule) Degree(a int) int { return m.adjStart[a+1] - m.adjStart[a] }
 

@@ -222,8 +222,7 @@ func openInPlace(ringH *mol.Molecule, x []float64, m *mol.Molecule, bi int, st f
 		set(c2, p2)
 		set(h, add(p1, unit(diff(u, w)), 1.09))
 		h++
-		for j, d := range [3][3]float64{{1, 0.3, 0}, {-0.5, 0.9, 0.2}, {-0.5, -0.9, -0.2}} {
-			_ = j
+		for _, d := range [3][3]float64{{1, 0.3, 0}, {-0.5, 0.9, 0.2}, {-0.5, -0.9, -0.2}} {
 			set(h, add(p2, unit(add(d, u, 0.5)), 1.09))
 			h++
 		}
