@@ -2,7 +2,10 @@ package main
 
 import (
 	"context"
+	"fmt"
 	"io"
+	"os"
+	"runtime/pprof"
 
 	"github.com/spf13/cobra"
 )
@@ -16,6 +19,27 @@ func run(ctx context.Context, args []string, getenv func(string) string, stdin i
 		SilenceUsage:  true,
 		SilenceErrors: true,
 	}
+	// --cpu-profile writes a CPU profile of the whole command (for the speed work: go tool pprof)
+	var profile string
+	var profFile *os.File
+	root.PersistentFlags().StringVar(&profile, "cpu-profile", "", "write a CPU profile of the command to this file (go tool pprof reads it)")
+	root.PersistentPreRunE = func(cmd *cobra.Command, _ []string) error {
+		if profile == "" {
+			return nil
+		}
+		f, err := os.Create(profile)
+		if err != nil {
+			return fmt.Errorf("cpu profile: %w", err)
+		}
+		profFile = f
+		return pprof.StartCPUProfile(f)
+	}
+	defer func() {
+		if profFile != nil {
+			pprof.StopCPUProfile()
+			profFile.Close()
+		}
+	}()
 	root.SetArgs(args)
 	root.SetIn(stdin)
 	root.SetOut(stdout)

@@ -67,7 +67,7 @@ func openSQLite(ctx context.Context, path string) (*Store, error) {
 		}
 		return nil, fmt.Errorf("open %s: %w", path, err)
 	}
-	s := &Store{db: db, dialect: sqliteDialect, path: path}
+	s := &Store{db: db, dialect: sqliteDialect, path: path, writeSlot: make(chan struct{}, 1)}
 	if err := s.migrate(ctx, goose.DialectSQLite3, migrations.SQLite); err != nil {
 		db.Close()
 		if inUse(err) {

@@ -43,6 +43,11 @@ type Store struct {
 	faults  faultState
 	// degraded is set while writes fail with storage faults (fast check for recovered)
 	degraded atomic.Bool
+	// writeSlot serializes this process's SQLite write transactions (a channel of one, so
+	// that waiting honours the context); nil for PostgreSQL. The file is held exclusively by
+	// this process (unix-excl), so a writer that queues here instead of in SQLite's busy
+	// handler starts the moment the previous commit ends rather than after a back-off sleep.
+	writeSlot chan struct{}
 }
 
 // dialect holds what differs between the engines the SQL runs on.
@@ -126,6 +131,14 @@ func (s *Store) tx(ctx context.Context, fn func(*sql.Tx) error) error {
 }
 
 func (s *Store) tx1(ctx context.Context, fn func(*sql.Tx) error) error {
+	if s.writeSlot != nil {
+		select {
+		case s.writeSlot <- struct{}{}:
+			defer func() { <-s.writeSlot }()
+		case <-ctx.Done():
+			return ctx.Err()
+		}
+	}
 	t, err := s.db.BeginTx(ctx, nil)
 	if err != nil {
 		return s.fault(err)

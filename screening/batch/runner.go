@@ -92,50 +92,113 @@ func (r *Runner) init() {
 
 // Run works jobs until ctx ends. A chunk in progress at shutdown is given back unrecorded and
 // redone by the next claim; nothing is recorded twice.
+//
+// Three stages overlap: a claimer claims the next chunk and reads its items while the current
+// one is screened (it holds at most one chunk ready, renewing its lease while it waits), the
+// workers screen, and a writer stores the previous chunk's outcomes (at most one write at a
+// time). On a machine of two cores a chunk's claim, read and write would otherwise leave a core
+// idle for a tenth of the job.
 func (r *Runner) Run(ctx context.Context) {
 	r.init()
-	tick := time.NewTicker(idlePoll)
-	defer tick.Stop()
-	// screening and storage overlap: while one chunk's outcomes are written (a goroutine, at
-	// most one at a time), the next chunk is claimed and screened
+	ready := make(chan claimedChunk)
+	claimerDone := make(chan struct{})
+	go func() {
+		defer close(claimerDone)
+		r.claimer(ctx, ready)
+	}()
+	defer func() { <-claimerDone }()
 	writer := make(chan struct{}, 1)
 	writer <- struct{}{}
 	defer func() { <-writer }() // the last write has finished
+	for {
+		var cc claimedChunk
+		select {
+		case <-ctx.Done():
+			return
+		case cc = <-ready:
+		}
+		outs, ok := r.screenChunk(ctx, cc)
+		if !ok {
+			continue
+		}
+		<-writer
+		go func() {
+			defer func() { writer <- struct{}{} }()
+			r.store(ctx, r.Log.With("job", cc.c.JobID, "chunk", cc.c.No), cc.c, outs)
+		}()
+	}
+}
+
+// claimedChunk is a claimed chunk with its items and conditions, ready to screen.
+type claimedChunk struct {
+	c     Chunk
+	cond  screening.Conditions
+	items []Item
+}
+
+// claimer claims chunks and reads their items, handing each to ready; it waits for work
+// (Notify, or a poll every idlePoll) when there is none. A chunk it holds when ctx ends is
+// given back.
+func (r *Runner) claimer(ctx context.Context, ready chan<- claimedChunk) {
+	tick := time.NewTicker(idlePoll)
+	defer tick.Stop()
 	for ctx.Err() == nil {
 		c, err := r.Store.ClaimChunk(ctx, r.Owner, r.Lease)
-		if err == nil {
-			if r.OnClaim != nil {
-				r.OnClaim()
+		if err != nil {
+			if !errors.Is(err, ErrNotFound) && ctx.Err() == nil {
+				r.Log.Error("claim a job chunk", "err", err)
 			}
-			outs, ok := r.screenChunk(ctx, c)
-			if ok {
-				<-writer
-				go func() {
-					defer func() { writer <- struct{}{} }()
-					r.store(ctx, r.Log.With("job", c.JobID, "chunk", c.No), c, outs)
-				}()
+			select {
+			case <-ctx.Done():
+			case <-r.wake:
+			case <-tick.C:
 			}
 			continue
 		}
-		if !errors.Is(err, ErrNotFound) && ctx.Err() == nil {
-			r.Log.Error("claim a job chunk", "err", err)
+		if r.OnClaim != nil {
+			r.OnClaim()
 		}
+		cc, ok := r.prepare(ctx, c)
+		if !ok {
+			continue
+		}
+		r.hand(ctx, cc, ready)
+	}
+}
+
+// hand gives a prepared chunk to the screening loop, renewing its lease while the loop is busy
+// with the one before; the chunk is given back at shutdown and dropped when its lease is lost
+// or its job ended meanwhile.
+func (r *Runner) hand(ctx context.Context, cc claimedChunk, ready chan<- claimedChunk) {
+	renew := time.NewTicker(r.Lease / 3)
+	defer renew.Stop()
+	for {
 		select {
+		case ready <- cc:
+			return
 		case <-ctx.Done():
-		case <-r.wake:
-		case <-tick.C:
+			r.release(r.Log, cc.c)
+			return
+		case <-renew.C:
+			st, err := r.Store.RenewLease(ctx, cc.c, r.Lease)
+			if errors.Is(err, ErrLeaseLost) || st == JobCanceled || st == JobFailed {
+				if errors.Is(err, ErrLeaseLost) {
+					r.leaseLost()
+				}
+				return
+			}
 		}
 	}
 }
 
-// screenChunk screens one claimed chunk; ok is false when there is nothing to store (the chunk
-// failed, was given back or given up).
-func (r *Runner) screenChunk(ctx context.Context, c Chunk) (outs []Outcome, ok bool) {
+// prepare reads a claimed chunk's conditions and items; ok is false when the chunk cannot be
+// worked (its job failed, or it was given back).
+func (r *Runner) prepare(ctx context.Context, c Chunk) (cc claimedChunk, ok bool) {
 	log := r.Log.With("job", c.JobID, "chunk", c.No)
 	cond, err := ConditionsOf(c.Conditions)
 	if err != nil {
 		r.fail(ctx, log, c, "stored conditions are invalid: "+err.Error())
-		return nil, false
+		return cc, false
 	}
 	items, err := r.Store.ChunkItems(ctx, c)
 	if err != nil {
@@ -143,8 +206,16 @@ func (r *Runner) screenChunk(ctx context.Context, c Chunk) (outs []Outcome, ok b
 			log.Error("read chunk items", "err", err)
 		}
 		r.release(log, c)
-		return nil, false
+		return cc, false
 	}
+	return claimedChunk{c: c, cond: cond, items: items}, true
+}
+
+// screenChunk screens one prepared chunk; ok is false when there is nothing to store (the
+// chunk was given back or given up).
+func (r *Runner) screenChunk(ctx context.Context, cc claimedChunk) (outs []Outcome, ok bool) {
+	c, items, cond := cc.c, cc.items, cc.cond
+	log := r.Log.With("job", c.JobID, "chunk", c.No)
 	work, stop := context.WithCancel(ctx)
 	defer stop()
 	renewed := make(chan struct{})
@@ -170,7 +241,7 @@ func (r *Runner) screenChunk(ctx context.Context, c Chunk) (outs []Outcome, ok b
 		}
 	}()
 	outs = make([]Outcome, len(items))
-	err = Map(work, len(items), r.Workers, func(i int) { outs[i] = r.screenOne(work, items[i], cond) })
+	err := Map(work, len(items), r.Workers, func(i int) { outs[i] = r.screenOne(work, items[i], cond) })
 	stop()
 	<-renewed
 	if err != nil {

@@ -99,3 +99,75 @@ func TestRunnerBacksOffThenFailsTheJob(t *testing.T) {
 	}
 	t.Logf("job failed with %q", st.failed)
 }
+
+// trackingStore hands out chunks of two items and records which were completed and which
+// were given back; it ends the run (cancel) after the third stored chunk.
+type trackingStore struct {
+	memStore
+	claimed, completed, released map[int]bool
+	cancel                       context.CancelFunc
+}
+
+func (t *trackingStore) ClaimChunk(ctx context.Context, owner string, lease time.Duration) (Chunk, error) {
+	c, err := t.memStore.ClaimChunk(ctx, owner, lease)
+	if err == nil {
+		t.mu.Lock()
+		t.claimed[c.No] = true
+		t.mu.Unlock()
+	}
+	return c, err
+}
+
+func (t *trackingStore) CompleteChunk(ctx context.Context, c Chunk, outs []Outcome) (string, error) {
+	t.mu.Lock()
+	defer t.mu.Unlock()
+	t.completed[c.No] = true
+	if len(t.completed) == 3 {
+		t.cancel()
+	}
+	return JobRunning, nil
+}
+
+func (t *trackingStore) ReleaseChunk(ctx context.Context, c Chunk) error {
+	t.mu.Lock()
+	t.released[c.No] = true
+	t.mu.Unlock()
+	return nil
+}
+
+// TestRunnerLeavesNoChunkClaimed: the runner claims the next chunk while it screens the
+// current one; when it stops, every chunk it claimed was stored or given back, so no chunk
+// waits for its lease to expire (design choice).
+func TestRunnerLeavesNoChunkClaimed(t *testing.T) {
+	var items []Item
+	for i := 0; i < 40; i++ {
+		items = append(items, Item{Seq: i, ItemID: "x", Source: ItemSource{SMILES: "C1=CC2CCC1C2"}})
+	}
+	ctx, cancel := context.WithCancel(context.Background())
+	defer cancel()
+	st := &trackingStore{memStore: memStore{items: items, size: 2, cond: EffectiveConditions(screening.DefaultConditions())},
+		claimed: map[int]bool{}, completed: map[int]bool{}, released: map[int]bool{}, cancel: cancel}
+	r := &Runner{Store: st, Workers: 2}
+	done := make(chan struct{})
+	go func() { r.Run(ctx); close(done) }()
+	select {
+	case <-done:
+	case <-time.After(30 * time.Second):
+		t.Fatal("the runner did not stop")
+	}
+	st.mu.Lock()
+	defer st.mu.Unlock()
+	if len(st.completed) < 3 {
+		t.Fatalf("%d chunks stored before the stop, want at least 3", len(st.completed))
+	}
+	for no := range st.claimed {
+		if !st.completed[no] && !st.released[no] {
+			t.Errorf("chunk %d was claimed but neither stored nor given back", no)
+		}
+	}
+	for no := range st.completed {
+		if st.released[no] {
+			t.Errorf("chunk %d was stored and given back", no)
+		}
+	}
+}

@@ -4,6 +4,7 @@
 package canon
 
 import (
+	"bytes"
 	"sort"
 	"strconv"
 	"strings"
@@ -98,25 +99,70 @@ func newSubgraph(m *mol.Molecule, r *rings.Rings, atoms []int, skipBond int, ful
 }
 
 // refine runs colour refinement from the given colours until the partition is stable and returns
-// dense ranks (0 = smallest).
+// dense ranks (0 = smallest). Each round gives atom i the signature
+// "colour|c1/o1,c2/o2,…" (its colour, then its neighbours' colours with the bond orders, the
+// pieces in byte order) and ranks the signatures in byte order; the signatures are built in one
+// reused buffer and compared as bytes, so a round allocates nothing per atom.
 func (g *subgraph) refine(col []int) []int {
 	n := len(col)
 	cur := append([]int(nil), col...)
+	var (
+		buf    []byte
+		off    = make([]int, n+1)
+		idx    = make([]int, n)
+		next   = make([]int, n)
+		parts  []byte
+		pOff   []int
+		pOrder []int
+	)
+	sig := func(i int) []byte { return buf[off[i]:off[i+1]] }
+	distinct := countDistinct(cur)
 	for iter := 0; iter < n+1; iter++ {
-		sigs := make([]string, n)
+		buf = buf[:0]
 		for i := 0; i < n; i++ {
-			parts := make([]string, len(g.nbr[i]))
+			off[i] = len(buf)
+			buf = strconv.AppendInt(buf, int64(cur[i]), 10)
+			buf = append(buf, '|')
+			// the neighbour pieces, then sorted in byte order
+			parts, pOff, pOrder = parts[:0], pOff[:0], pOrder[:0]
 			for k, j := range g.nbr[i] {
-				parts[k] = strconv.Itoa(cur[j]) + "/" + strconv.Itoa(g.ord[i][k])
+				pOff = append(pOff, len(parts))
+				pOrder = append(pOrder, k)
+				parts = strconv.AppendInt(parts, int64(cur[j]), 10)
+				parts = append(parts, '/')
+				parts = strconv.AppendInt(parts, int64(g.ord[i][k]), 10)
 			}
-			sort.Strings(parts)
-			sigs[i] = strconv.Itoa(cur[i]) + "|" + strings.Join(parts, ",")
+			pOff = append(pOff, len(parts))
+			piece := func(k int) []byte { return parts[pOff[k]:pOff[k+1]] }
+			for x := 1; x < len(pOrder); x++ { // insertion sort: a handful of neighbours
+				for y := x; y > 0 && bytes.Compare(piece(pOrder[y]), piece(pOrder[y-1])) < 0; y-- {
+					pOrder[y], pOrder[y-1] = pOrder[y-1], pOrder[y]
+				}
+			}
+			for x, k := range pOrder {
+				if x > 0 {
+					buf = append(buf, ',')
+				}
+				buf = append(buf, piece(k)...)
+			}
 		}
-		next := denseRanks(sigs)
-		if countDistinct(next) == countDistinct(cur) {
+		off[n] = len(buf)
+		for i := range idx {
+			idx[i] = i
+		}
+		sort.Slice(idx, func(a, b int) bool { return bytes.Compare(sig(idx[a]), sig(idx[b])) < 0 })
+		rank := 0
+		for k, i := range idx {
+			if k > 0 && !bytes.Equal(sig(i), sig(idx[k-1])) {
+				rank++
+			}
+			next[i] = rank
+		}
+		if rank+1 == distinct {
 			return next
 		}
-		cur = next
+		distinct = rank + 1
+		cur, next = next, cur
 	}
 	return cur
 }
@@ -137,12 +183,21 @@ func denseRanks(sigs []string) []int {
 	return out
 }
 
+// countDistinct counts the distinct values of x (non-negative colours).
 func countDistinct(x []int) int {
-	seen := map[int]bool{}
+	hi := 0
 	for _, v := range x {
-		seen[v] = true
+		hi = max(hi, v)
 	}
-	return len(seen)
+	seen := make([]bool, hi+1)
+	d := 0
+	for _, v := range x {
+		if !seen[v] {
+			seen[v] = true
+			d++
+		}
+	}
+	return d
 }
 
 // canonicalKey returns the canonical string of the subgraph.
@@ -194,7 +249,7 @@ func (g *subgraph) canonical() (string, []int) {
 			return
 		}
 		// first tied class with the smallest rank
-		counts := map[int]int{}
+		counts := make([]int, n)
 		for _, c := range col {
 			counts[c]++
 		}
