@@ -61,6 +61,7 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 			defer wg.Done()
 			var rows []compactRow
 			var buf bytes.Buffer
+			cw := csv.NewWriter(&buf) // one writer per worker: its buffer is not re-made per row
 			for w := range work {
 				items := w.items
 				for k, it := range items {
@@ -68,7 +69,7 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 						break
 					}
 					res, err := batch.ScreenItemContext(ctx, it, cond)
-					rows = append(rows, renderRow(&buf, format, w.first+k, it, res, err, filter))
+					rows = append(rows, renderRow(&buf, cw, format, w.first+k, it, res, err, filter))
 				}
 				if bar != nil {
 					bar.Add(len(items))
@@ -131,14 +132,15 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 	return st, writeCompact(out, format, rows, in.ExtraColumns)
 }
 
-// renderRow screens nothing: it renders one outcome for the output format.
+// renderRow screens nothing: it renders one outcome for the output format into buf (cw writes
+// CSV into buf).
 //
 //	csv:   the CSV record with rank 0 (the rank is put in front when writing)
 //	jsonl: the JSON object's members after "rank" — {"error"|"extra","id","line" before it and
 //	       "result" after it, in the order encoding/json writes a map}; stored as
 //	       prefix \x00 suffix
 //	table: the tab-separated cells after the rank
-func renderRow(buf *bytes.Buffer, format string, seq int, it batch.InputItem, res screening.Result, err error, f batch.ResultFilter) compactRow {
+func renderRow(buf *bytes.Buffer, cw *csv.Writer, format string, seq int, it batch.InputItem, res screening.Result, err error, f batch.ResultFilter) compactRow {
 	line := it.Line
 	row := batch.NewRow(seq, res, err)
 	cr := compactRow{key: row.Key, seq: seq, failed: err != nil, keep: !f.Active() || (row.Result != nil && f.Keeps(row.Result))}
@@ -149,9 +151,8 @@ func renderRow(buf *bytes.Buffer, format string, seq int, it batch.InputItem, re
 	}
 	switch format {
 	case "csv":
-		w := csv.NewWriter(buf)
-		w.Write(batch.CSVRow(0, it.ID, line, row.Result, msg, it.Extra))
-		w.Flush()
+		cw.Write(batch.CSVRow(0, it.ID, line, row.Result, msg, it.Extra))
+		cw.Flush()
 	case "jsonl":
 		// members before "rank": error?, extra?, id, line; after: result?
 		if err != nil {

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"sort"
 	"strings"
+	"sync"
 
 	"ringsieve/screening/canon"
 	"ringsieve/screening/mol"
@@ -26,6 +27,26 @@ type Structure struct {
 	ringSystem  []int   // per SSSR ring: index of its ring system
 	systems     [][]int // SSSR ring indices per ring system
 	sysAtoms    [][]int // sorted atoms per ring system, computed on first use
+
+	derivedMu sync.Mutex
+	derived   map[string]string // see Derived
+}
+
+// Derived returns the value a later step derives from the whole structure under name,
+// computing it with fn on first use (later steps ask for the same key for the structure and for
+// each of its olefins; it is computed once per structure). Safe for concurrent use.
+func (s *Structure) Derived(name string, fn func() string) string {
+	s.derivedMu.Lock()
+	defer s.derivedMu.Unlock()
+	if v, ok := s.derived[name]; ok {
+		return v
+	}
+	v := fn()
+	if s.derived == nil {
+		s.derived = make(map[string]string, 2)
+	}
+	s.derived[name] = v
+	return v
 }
 
 // Olefin is one ring C=C (both atoms carbon, in a ring, not aromatic) and what governs its ROMP.

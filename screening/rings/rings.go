@@ -322,11 +322,14 @@ func mix64(x uint64) uint64 {
 	return x ^ x>>31
 }
 
+// ringFromPath copies a closed path into a Ring: its atoms and bonds share one allocation.
 func ringFromPath(m *mol.Molecule, path []int) Ring {
-	r := Ring{Atoms: append([]int(nil), path...)}
+	n := len(path)
+	buf := make([]int, 2*n)
+	r := Ring{Atoms: buf[:n:n], Bonds: buf[n:]}
+	copy(r.Atoms, path)
 	for i := range path {
-		j := (i + 1) % len(path)
-		r.Bonds = append(r.Bonds, m.BondBetween(path[i], path[j]))
+		r.Bonds[i] = m.BondBetween(path[i], path[(i+1)%n])
 	}
 	return r
 }

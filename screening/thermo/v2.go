@@ -414,6 +414,10 @@ func parentOf(s *describe.Structure, o *describe.Olefin) parentInfo {
 // measurements the estimate uses (a measured structure, a row of the offset fit, a table anchor,
 // a correction's source), else "" — the formula decides cheaply.
 func exclusionKey(s *describe.Structure) string {
+	return s.Derived("thermo.exclusionKey", func() string { return exclusionKeyOf(s) })
+}
+
+func exclusionKeyOf(s *describe.Structure) string {
 	heavy := 0
 	for _, a := range s.Main {
 		if s.Mol.Atoms[a].Z != 1 {
