@@ -462,28 +462,38 @@ func (s *Server) jobResults(c *gin.Context) {
 		c.Header("Content-Type", "application/x-ndjson")
 		c.Header("Content-Disposition", fmt.Sprintf(`attachment; filename="%s.jsonl"`, j.ID))
 		c.Status(http.StatusOK)
-		enc := json.NewEncoder(c.Writer)
-		// items are taken in windows whose results are screened again in parallel, then
-		// written in rank order
+		// items are taken in windows whose results are screened again and encoded in
+		// parallel, then written in rank order (each line is what json.Encoder writes)
 		type ranked struct {
 			rank int
 			it   data.RankedItem
+			line []byte // the encoded row with its newline; nil when the filter drops it
+			err  error
 		}
 		var window []ranked
 		flush := func() error {
-			errs := make([]error, len(window))
-			batch.Map(ctx, len(window), 0, func(i int) { errs[i] = fill(&window[i].it) })
-			for i, w := range window {
-				if errs[i] != nil {
-					return errs[i]
+			batch.Map(ctx, len(window), 0, func(i int) {
+				w := &window[i]
+				if w.err = fill(&w.it); w.err != nil {
+					return
 				}
-				if drop, err := skip(&w.it); drop || err != nil {
-					if err != nil {
-						return err
-					}
+				drop, err := skip(&w.it)
+				if drop || err != nil {
+					w.err = err
+					return
+				}
+				if w.line, w.err = json.Marshal(resultRow(w.rank, w.it, j.ExtraColumns)); w.err == nil {
+					w.line = append(w.line, '\n')
+				}
+			})
+			for _, w := range window {
+				if w.err != nil {
+					return w.err
+				}
+				if w.line == nil {
 					continue
 				}
-				if err := enc.Encode(resultRow(w.rank, w.it, j.ExtraColumns)); err != nil {
+				if _, err := c.Writer.Write(w.line); err != nil {
 					return err
 				}
 			}
@@ -491,7 +501,7 @@ func (s *Server) jobResults(c *gin.Context) {
 			return ctx.Err()
 		}
 		err := s.store.RankedItems(ctx, j.ID, 0, 0, func(rank int, it data.RankedItem) error {
-			window = append(window, ranked{rank, it})
+			window = append(window, ranked{rank: rank, it: it})
 			if len(window) == 512 {
 				return flush()
 			}
