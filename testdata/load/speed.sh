@@ -1,12 +1,15 @@
 #!/usr/bin/env bash
 # Speed figures of the README's performance table (run from the repository root):
 #   bash testdata/load/speed.sh
-# Needs RDKit from Debian (python3-rdkit) for the reference, wrk for the HTTP part, GNU time.
+# Needs RDKit from Debian (python3-rdkit) for the reference, wrk for the HTTP part, GNU time;
+# it installs vegeta v12.13.0 from the Go module proxy into a temporary folder.
 #   1. offline screening of 100,000 SMILES (the corpus ten times, distinct ids), whole process:
 #      ringsieve's fast tier against RDKit parsing, ring perception, aromaticity, formula and
 #      substructure counts (testdata/load/rdkit_reference_screen.py);
 #   2. the same file as a job: upload, screen and store, CSV and JSON Lines downloads;
-#   3. POST /v1/screen against GET /healthz on one server (wrk, 2 threads, 16 connections, 10 s);
+#   3. POST /v1/screen against GET /healthz on one server (wrk, 2 threads, 16 connections, 10 s),
+#      then /v1/screen at a constant rate of half that saturation rate for 10 s (vegeta, an
+#      open-loop load tool installed here with go install) for latency percentiles;
 #   4. the force-field tier on one core: 40 substituted norbornenes, oxanorbornenes, imides and
 #      cyclooctenes.
 set -euo pipefail
@@ -63,6 +66,23 @@ sres=$(wrk -t2 -c16 -d10s --latency -s "$work/screen.lua" "$base")
 sr=$(echo "$sres" | awk '/Requests\/sec/ {print $2}')
 p99=$(echo "$sres" | awk '$1=="99%" {print $2}')
 python3 -c "import sys; h,s=float(sys.argv[1]),float(sys.argv[2]); print(f'/healthz {h:.0f}/s, /v1/screen {s:.0f}/s (ratio {s/h:.2f}), /v1/screen p99 {sys.argv[3]} at saturation')" "$h" "$sr" "$p99"
+GOBIN="$work/bin" go install github.com/tsenart/vegeta/v12@v12.13.0
+# open-loop load at a quarter and at half of the saturation rate (vegeta shares the two cores)
+python3 - "$base" > "$work/targets.jsonl" <<'PY'
+import base64, json, sys
+for s in ["CN1C(=O)C2C3C=CC(C3)C2C1=O", "C1=CC2CCC1C2", "COC(=O)C1CC2C=CC1C2", "C1=CCCC1", "C1=C\\CCCCCC/1", "OCC1CC2C=CC1C2"]:
+    body = json.dumps({"smiles": s, "conditions": {"thermo_method": "table"}}).encode()
+    print(json.dumps({"method": "POST", "url": sys.argv[1] + "/v1/screen", "body": base64.b64encode(body).decode(),
+                      "header": {"Content-Type": ["application/json"]}}))
+PY
+for frac in 4 2; do
+  rate=$(python3 -c "import sys; print(int(float(sys.argv[1])/int(sys.argv[2])))" "$sr" "$frac")
+  "$work/bin/vegeta" attack -format=json -targets="$work/targets.jsonl" -rate="$rate/s" -duration=10s -workers=16 > "$work/vegeta.bin"
+  "$work/bin/vegeta" report -type=json "$work/vegeta.bin" | python3 -c "
+import json, sys
+r = json.load(sys.stdin); l = r['latencies']
+print(f\"/v1/screen at a constant {r['rate']:.0f}/s for 10 s (vegeta): p50 {l['50th']/1e6:.2f} ms, p99 {l['99th']/1e6:.2f} ms, max {l['max']/1e6:.1f} ms, success {100*r['success']:.1f} %\")"
+done
 kill "$pid"; pid=""
 
 echo "== 4. force-field tier on one core"
