@@ -12,11 +12,13 @@ import (
 	"math"
 	"sort"
 	"strings"
+	"sync"
 	"time"
 
 	"ringsieve/screening/depict"
 	"ringsieve/screening/describe"
 	"ringsieve/screening/judge"
+	"ringsieve/screening/mol"
 	"ringsieve/screening/molfile"
 	"ringsieve/screening/smiles"
 	"ringsieve/screening/thermo"
@@ -143,11 +145,31 @@ func ScreenSMILES(text string, c Conditions) (Result, error) {
 
 // ScreenSMILESContext is ScreenSMILES under ctx.
 func ScreenSMILESContext(ctx context.Context, text string, c Conditions) (Result, error) {
-	s, err := describe.Describe(text)
+	m := molPool.Get().(*mol.Molecule)
+	defer putMolecule(m)
+	s, err := describe.DescribeInto(m, text)
 	if err != nil {
 		return Result{}, err
 	}
 	return ScreenStructureContext(ctx, s, c)
+}
+
+// molPool holds molecules whose storage (atom, bond and index arrays) screening reuses: a
+// result keeps nothing of the molecule it was computed from (its descriptors are values and
+// strings, and the caches keep copies), so the arrays go back to the pool once the result is
+// built.
+var molPool = sync.Pool{New: func() any { return &mol.Molecule{} }}
+
+// pooledAtomsMax bounds the molecules kept for reuse (design choice: a rare huge structure is
+// left to the collector rather than pinned in the pool).
+const pooledAtomsMax = 256
+
+func putMolecule(m *mol.Molecule) {
+	if cap(m.Atoms) > pooledAtomsMax {
+		return
+	}
+	m.Reset()
+	molPool.Put(m)
 }
 
 // ScreenMolfile screens a V2000 molfile. Errors are *MolfileError values (an atom beyond its

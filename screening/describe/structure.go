@@ -29,8 +29,10 @@ type Structure struct {
 	sysAtoms    [][]int // sorted atoms per ring system, computed on first use
 
 	derivedMu sync.Mutex
-	derived   map[string]string // see Derived
+	derived   []derivedValue // see Derived
 }
+
+type derivedValue struct{ name, value string }
 
 // Derived returns the value a later step derives from the whole structure under name,
 // computing it with fn on first use (later steps ask for the same key for the structure and for
@@ -38,14 +40,13 @@ type Structure struct {
 func (s *Structure) Derived(name string, fn func() string) string {
 	s.derivedMu.Lock()
 	defer s.derivedMu.Unlock()
-	if v, ok := s.derived[name]; ok {
-		return v
+	for _, d := range s.derived {
+		if d.name == name {
+			return d.value
+		}
 	}
 	v := fn()
-	if s.derived == nil {
-		s.derived = make(map[string]string, 2)
-	}
-	s.derived[name] = v
+	s.derived = append(s.derived, derivedValue{name, v})
 	return v
 }
 
@@ -64,8 +65,14 @@ type Olefin struct {
 // Describe reads a SMILES and derives everything ROMP screening needs from it. Errors are
 // *smiles.Error values with the character offset.
 func Describe(text string) (*Structure, error) {
-	m, err := smiles.Parse(text)
-	if err != nil {
+	return DescribeInto(&mol.Molecule{}, text)
+}
+
+// DescribeInto is Describe reading the SMILES into m, whose storage is reused (a caller that
+// screens many structures keeps one per worker; the Structure refers to m, so m may be reused
+// only once the Structure and everything taken from its molecule are no longer used).
+func DescribeInto(m *mol.Molecule, text string) (*Structure, error) {
+	if err := smiles.ParseInto(m, text); err != nil {
 		return nil, err
 	}
 	s, err := DescribeMolecule(m, text)
