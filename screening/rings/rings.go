@@ -4,6 +4,7 @@
 package rings
 
 import (
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -36,11 +37,13 @@ type Rings struct {
 // never changes it.
 func Perceive(m *mol.Molecule) *Rings {
 	p := &Rings{}
-	sizes := make([]int, len(m.Bonds)+len(m.Atoms)) // one allocation for both size lists
-	p.BondRingSize, p.AtomRingSize = sizes[:len(m.Bonds):len(m.Bonds)], sizes[len(m.Bonds):]
+	nb, na := len(m.Bonds), len(m.Atoms)
+	// one allocation for both size lists and the path scratch (which perception alone uses)
+	ints := make([]int, nb+na+3*na)
+	p.BondRingSize, p.AtomRingSize = ints[:nb:nb], ints[nb:nb+na:nb+na]
+	scratch := ints[nb+na:]
 	var candidates []Ring
 	inRing := ringBonds(m)
-	scratch := make([]int, 3*len(m.Atoms))
 	var seenMasks []uint64 // bond masks of the rings found, when the molecule has at most 64 bonds
 	small := len(m.Bonds) <= 64
 	var seenHash map[[2]uint64]bool // larger molecules: bond-set hashes of the rings found
@@ -120,25 +123,33 @@ func Perceive(m *mol.Molecule) *Rings {
 // of such systems need no shortest-path search, which keeps a 1,000-membered macrocycle linear.
 func simpleCycles(m *mol.Molecule, inRing []bool) [][]int {
 	out := make([][]int, len(m.Bonds))
-	deg := make([]int, len(m.Atoms))
+	n := len(m.Atoms)
+	// deg, then every cycle found (each a marker and its atoms: at most 2n in all, so cycles
+	// carved from it never move), then the bonds of the walk in progress
+	buf := make([]int, n+2*n+n)
+	deg, cycles, walk := buf[:n], buf[n:n:3*n], buf[3*n:3*n]
 	for bi, r := range inRing {
 		if r {
 			deg[m.Bonds[bi].A]++
 			deg[m.Bonds[bi].B]++
 		}
 	}
-	seen := make([]bool, len(m.Atoms))
+	var seen []bool
 	for start := range m.Atoms {
-		if seen[start] || deg[start] == 0 {
+		if deg[start] == 0 || (seen != nil && seen[start]) {
 			continue
+		}
+		if seen == nil {
+			seen = make([]bool, n)
 		}
 		// walk the ring-bond component from start; it is a plain cycle when every atom on it has
 		// ring degree 2 and the walk returns to start
-		cyc := []int{0, start}
+		from := len(cycles)
+		cycles = append(cycles, 0, start)
 		seen[start] = true
 		plain := deg[start] == 2
 		prevBond, x := -1, start
-		var bonds []int
+		bonds := walk[:0]
 		for {
 			next, nb := -1, -1
 			for _, bi := range m.Neighbors(x) {
@@ -160,14 +171,16 @@ func simpleCycles(m *mol.Molecule, inRing []bool) [][]int {
 				break
 			}
 			seen[next] = true
-			cyc = append(cyc, next)
+			cycles = append(cycles, next)
 			prevBond, x = nb, next
 		}
 		if !plain {
+			cycles = cycles[:from]
 			// mark the rest of this component as seen so it is not walked again
 			markComponent(m, inRing, start, seen)
 			continue
 		}
+		cyc := cycles[from:len(cycles):len(cycles)]
 		for _, bi := range bonds {
 			out[bi] = cyc
 		}
@@ -216,11 +229,12 @@ func ringBonds(m *mol.Molecule) []bool {
 	}
 	type frame struct{ v, parentBond, next int }
 	t := 0
+	stack := make([]frame, 0, min(n, 64)) // the depth-first stack, reused for every component
 	for s := 0; s < n; s++ {
 		if disc[s] >= 0 {
 			continue
 		}
-		stack := []frame{{s, -1, 0}}
+		stack = append(stack[:0], frame{s, -1, 0})
 		disc[s], low[s] = t, t
 		t++
 		for len(stack) > 0 {
@@ -346,15 +360,17 @@ func selectSSSR(m *mol.Molecule, cands []Ring) []Ring {
 		return nil
 	}
 	pick := func(cands []Ring) []Ring {
-		sort.SliceStable(cands, func(i, j int) bool { return len(cands[i].Bonds) < len(cands[j].Bonds) })
+		slices.SortStableFunc(cands, func(a, b Ring) int { return len(a.Bonds) - len(b.Bonds) })
 		words := (len(m.Bonds) + 63) / 64
-		var basis [][]uint64 // reduced rows with pivot
-		var pivots []int
-		var out []Ring
-		seen := map[string]bool{}
+		basis := make([][]uint64, 0, need) // reduced rows with pivot
+		pivots := make([]int, 0, need)
+		out := make([]Ring, 0, need)
+		var seen map[string]bool
 		var seenMask []uint64 // one-word bond masks when the molecule has at most 64 bonds
-		for _, c := range cands {
-			v := make([]uint64, words)
+		// the candidates' bond vectors, carved from one array
+		vecs := make([]uint64, words*len(cands))
+		for ci, c := range cands {
+			v := vecs[ci*words : (ci+1)*words : (ci+1)*words]
 			for _, bi := range c.Bonds {
 				v[bi/64] |= 1 << (bi % 64)
 			}
@@ -374,6 +390,9 @@ func selectSSSR(m *mol.Molecule, cands []Ring) []Ring {
 				key := ringKey(c)
 				if seen[key] {
 					continue
+				}
+				if seen == nil {
+					seen = map[string]bool{}
 				}
 				seen[key] = true
 			}
@@ -593,8 +612,11 @@ func piElectrons(m *mol.Molecule, a int, ring []bool) int {
 // perceiveAromaticity marks atoms and bonds aromatic for each SSSR ring, and each pair of
 // bond-sharing SSSR rings, whose π-electron count is 4n+2 with every atom contributing.
 func (p *Rings) perceiveAromaticity(m *mol.Molecule) {
-	flags := make([]bool, len(m.Atoms)+len(m.Bonds))
-	p.AromaticAtom, p.AromaticBond = flags[:len(m.Atoms):len(m.Atoms)], flags[len(m.Atoms):]
+	na := len(m.Atoms)
+	// the result flags and two scratch sets in one allocation
+	flags := make([]bool, 3*na+len(m.Bonds))
+	p.AromaticAtom, p.AromaticBond = flags[:na:na], flags[na:na+len(m.Bonds):na+len(m.Bonds)]
+	set, sp2 := flags[na+len(m.Bonds):2*na+len(m.Bonds)], flags[2*na+len(m.Bonds):]
 	mark := func(atoms []int, bonds []int) {
 		for _, a := range atoms {
 			p.AromaticAtom[a] = true
@@ -603,7 +625,6 @@ func (p *Rings) perceiveAromaticity(m *mol.Molecule) {
 			p.AromaticBond[b] = true
 		}
 	}
-	set := make([]bool, len(m.Atoms))
 	huckel := func(atoms []int) bool {
 		for _, a := range atoms {
 			set[a] = true
@@ -625,7 +646,6 @@ func (p *Rings) perceiveAromaticity(m *mol.Molecule) {
 	}
 	// an atom with no double bond and no lone pair to give cannot be in an aromatic ring: rings
 	// holding one are skipped before counting
-	sp2 := make([]bool, len(m.Atoms))
 	for i := range m.Atoms {
 		at := &m.Atoms[i]
 		for _, bi := range m.Neighbors(i) {
