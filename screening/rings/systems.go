@@ -31,17 +31,24 @@ func Systems(rings []Ring) (ringSystem []int, systems [][]int) {
 			}
 		}
 	}
-	idx := map[int]int{}
-	ringSystem = make([]int, len(rings))
+	// per root ring: its system's number + 1 (0: not numbered yet), in the same allocation as
+	// the answer and the systems' ring lists (each system's list is carved in ring order)
+	buf := make([]int, 3*len(rings))
+	idx, count, ringSystem := buf[:len(rings)], buf[len(rings):2*len(rings)], buf[2*len(rings):]
 	for i := range rings {
 		r := find(i)
-		k, ok := idx[r]
-		if !ok {
-			k = len(systems)
-			idx[r] = k
+		if idx[r] == 0 {
+			idx[r] = len(systems) + 1
 			systems = append(systems, nil)
 		}
-		ringSystem[i] = k
+		ringSystem[i] = idx[r] - 1
+		count[ringSystem[i]]++
+	}
+	lists := make([]int, len(rings))
+	for k := range systems {
+		systems[k], lists = lists[:0:count[k]], lists[count[k]:]
+	}
+	for i, k := range ringSystem {
 		systems[k] = append(systems[k], i)
 	}
 	return ringSystem, systems
@@ -62,7 +69,11 @@ func SharedAtoms(a, b Ring) int {
 
 // Atoms returns the sorted atoms of the rings listed by index.
 func Atoms(rings []Ring, idx []int) []int {
-	var out []int
+	total := 0
+	for _, i := range idx {
+		total += len(rings[i].Atoms)
+	}
+	out := make([]int, 0, total)
 	for _, i := range idx {
 		for _, a := range rings[i].Atoms {
 			dup := false
@@ -85,7 +96,17 @@ func Atoms(rings []Ring, idx []int) []int {
 // share a bond, else spiro if two share an atom, else monocyclic.
 func Kind(rings []Ring, idx []int) string {
 	kind := KindMonocyclic
-	rank := map[string]int{KindMonocyclic: 0, KindSpiro: 1, KindFused: 2, KindBridged: 3}
+	rank := func(k string) int {
+		switch k {
+		case KindSpiro:
+			return 1
+		case KindFused:
+			return 2
+		case KindBridged:
+			return 3
+		}
+		return 0
+	}
 	for i := 0; i < len(idx); i++ {
 		for j := i + 1; j < len(idx); j++ {
 			k := ""
@@ -97,7 +118,7 @@ func Kind(rings []Ring, idx []int) string {
 			case n == 1:
 				k = KindSpiro
 			}
-			if k != "" && rank[k] > rank[kind] {
+			if k != "" && rank(k) > rank(kind) {
 				kind = k
 			}
 		}
