@@ -9,6 +9,7 @@ import (
 	"fmt"
 	"io"
 	"runtime"
+	"slices"
 	"sort"
 	"strconv"
 	"sync"
@@ -52,18 +53,20 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 		items []batch.InputItem
 	}
 	work := make(chan run, 2*runtime.NumCPU())
-	type part struct{ rows []compactRow }
+	// each worker's rows, one slice per batch it screened (sized once: no regrowing copies)
+	type part struct{ batches [][]compactRow }
 	parts := make(chan part, runtime.NumCPU())
 	var wg sync.WaitGroup
 	for w := 0; w < runtime.NumCPU(); w++ {
 		wg.Add(1)
 		go func() {
 			defer wg.Done()
-			var rows []compactRow
+			var batches [][]compactRow
 			var buf bytes.Buffer
 			cw := csv.NewWriter(&buf) // one writer per worker: its buffer is not re-made per row
 			for w := range work {
 				items := w.items
+				rows := make([]compactRow, 0, len(items))
 				for k, it := range items {
 					if ctx.Err() != nil {
 						break
@@ -71,11 +74,12 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 					res, err := batch.ScreenItemContext(ctx, it, cond)
 					rows = append(rows, renderRow(&buf, cw, format, w.first+k, it, res, err, filter))
 				}
+				batches = append(batches, rows)
 				if bar != nil {
 					bar.Add(len(items))
 				}
 			}
-			parts <- part{rows}
+			parts <- part{batches}
 		}()
 	}
 	var seq int
@@ -102,9 +106,17 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 		wg.Wait()
 		close(parts)
 	}()
-	var rows []compactRow
+	var all [][]compactRow
+	n := 0
 	for p := range parts {
-		rows = append(rows, p.rows...)
+		for _, b := range p.batches {
+			all = append(all, b)
+			n += len(b)
+		}
+	}
+	rows := make([]compactRow, 0, n)
+	for _, b := range all {
+		rows = append(rows, b...)
 	}
 	if bar != nil {
 		bar.Finish()
@@ -115,11 +127,11 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 	if err := ctx.Err(); err != nil {
 		return streamStats{}, err
 	}
-	sort.Slice(rows, func(i, j int) bool {
-		if c := bytes.Compare(rows[i].key[:], rows[j].key[:]); c != 0 {
-			return c < 0
+	slices.SortFunc(rows, func(a, b compactRow) int {
+		if c := bytes.Compare(a.key[:], b.key[:]); c != 0 {
+			return c
 		}
-		return rows[i].seq < rows[j].seq
+		return a.seq - b.seq
 	})
 	st := streamStats{inputErrors: in.Errors, extraColumns: in.ExtraColumns}
 	for _, r := range rows {
