@@ -185,7 +185,11 @@ func renderRow(buf *bytes.Buffer, cw *csv.Writer, format string, seq int, it bat
 		buf.WriteByte(0)
 		if err == nil {
 			buf.WriteString(`,"result":`)
-			writeJSON(buf, row.Result)
+			if b, err := row.Result.AppendJSON(buf.AvailableBuffer()); err == nil {
+				buf.Write(b)
+			} else {
+				buf.WriteString("null")
+			}
 		}
 	default:
 		buf.WriteString(tableCells(it.ID, row.Result, err))

@@ -641,3 +641,40 @@ func TestDepictEndpoint(t *testing.T) {
 		}
 	}
 }
+
+// TestScreenResponseBytes: /v1/screen writes the bytes encoding/json writes for the response
+// (the result is encoded by hand for speed; design choice: never a format change), with and
+// without the monomer and saved-result members, and the same content type.
+func TestScreenResponseBytes(t *testing.T) {
+	ts, _ := newTestServer(t, Config{})
+	r := do(t, ts, "POST", "/v1/monomers", `{"name":"demo candidate M-7","smiles":"COC(=O)C1CC2C=CC1C2"}`)
+	var m struct {
+		ID string `json:"id"`
+	}
+	r.json(t, &m)
+	if r.status != 201 || m.ID == "" {
+		t.Fatalf("create monomer: %d %s", r.status, r.body)
+	}
+	for _, body := range []string{
+		`{"smiles":"C1=CC2CCC1C2","conditions":{"thermo_method":"table"}}`,
+		`{"monomer_id":"` + m.ID + `","conditions":{"thermo_method":"table"}}`,
+		`{"monomer_id":"` + m.ID + `","save":true,"conditions":{"thermo_method":"table"}}`,
+	} {
+		r := do(t, ts, "POST", "/v1/screen", body)
+		if r.status != 200 {
+			t.Fatalf("%s: %d %s", body, r.status, r.body)
+		}
+		var got ScreenResponse
+		r.json(t, &got)
+		want, err := json.Marshal(got)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if string(want) != string(r.body) {
+			t.Errorf("%s:\n got  %s\n want %s", body, r.body, want)
+		}
+		if ct := r.header.Get("Content-Type"); ct != "application/json; charset=utf-8" {
+			t.Errorf("content type %q", ct)
+		}
+	}
+}

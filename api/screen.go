@@ -5,7 +5,9 @@ import (
 	"encoding/json"
 	"fmt"
 	"net/http"
+	"strconv"
 	"strings"
+	"sync"
 	"time"
 
 	"github.com/gin-gonic/gin"
@@ -201,7 +203,7 @@ func (s *Server) screen(c *gin.Context) {
 			fail(c, err)
 			return
 		}
-		resJSON, err := json.Marshal(r)
+		resJSON, err := r.AppendJSON(nil)
 		if err != nil {
 			fail(c, err)
 			return
@@ -214,7 +216,40 @@ func (s *Server) screen(c *gin.Context) {
 		}
 		resp.SavedResultID = saved.ID
 	}
-	c.JSON(http.StatusOK, resp)
+	writeScreenResponse(c, &resp)
+}
+
+// respBufs holds response buffers for writeScreenResponse.
+var respBufs = sync.Pool{New: func() any { b := make([]byte, 0, 8<<10); return &b }}
+
+// writeScreenResponse writes resp as c.JSON would (the same bytes and content type), with the
+// result encoded by Result.AppendJSON instead of by reflection.
+func writeScreenResponse(c *gin.Context, resp *ScreenResponse) {
+	bp := respBufs.Get().(*[]byte)
+	defer func() {
+		if cap(*bp) <= 64<<10 {
+			respBufs.Put(bp)
+		}
+	}()
+	b, err := resp.Result.AppendJSON((*bp)[:0])
+	if err != nil {
+		fail(c, err)
+		return
+	}
+	// the response's own members follow the embedded result's
+	b = b[:len(b)-1]
+	if resp.MonomerID != "" {
+		b = append(b, `,"monomer_id":`...)
+		mb, _ := json.Marshal(resp.MonomerID)
+		b = append(b, mb...)
+	}
+	if resp.SavedResultID != 0 {
+		b = append(b, `,"saved_result_id":`...)
+		b = strconv.AppendInt(b, resp.SavedResultID, 10)
+	}
+	b = append(b, '}')
+	*bp = b
+	c.Data(http.StatusOK, "application/json; charset=utf-8", b)
 }
 
 // BatchItem is one monomer of a batch, with the caller's identifier.

@@ -5,7 +5,6 @@ import (
 	"compress/flate"
 	"context"
 	_ "embed"
-	"encoding/json"
 	"fmt"
 	"io"
 	"sync"
@@ -59,7 +58,7 @@ func Recompute(ctx context.Context, src ItemSource, c screening.Conditions) ([]b
 	if err != nil {
 		return nil, err
 	}
-	return json.Marshal(res)
+	return res.AppendJSON(make([]byte, 0, 4096))
 }
 
 // EncodeResult returns the stored form of a JSON result (workers encode, so that the store's

@@ -339,7 +339,7 @@ func (r *Runner) screenOne(ctx context.Context, it Item, cond screening.Conditio
 	if Recomputable(it.Source, cond) {
 		return Outcome{Seq: it.Seq, Verdict: res.Verdict, Key: KeyOf(&res), Result: RecomputeMark(), Summary: Summary(&res, "")}
 	}
-	b, err := json.Marshal(res)
+	b, err := res.AppendJSON(make([]byte, 0, 4096))
 	if err != nil {
 		return failed(it.Seq, NewItemError(err))
 	}
