@@ -1,10 +1,7 @@
 package screening_test
 
 import (
-	"bufio"
-	"os"
 	"ringsieve/screening/units"
-	"strings"
 	"testing"
 
 	. "ringsieve/screening"
@@ -21,19 +18,9 @@ import (
 // performance section; run: go test ./screening -run '^$' -bench . -benchmem
 
 func loadCorpus(b testing.TB) []string {
-	f, err := os.Open(reftest.Path(b, "corpus/candidates.smi"))
-	if err != nil {
-		b.Fatal(err)
-	}
-	defer f.Close()
 	var out []string
-	sc := bufio.NewScanner(f)
-	for sc.Scan() {
-		l := sc.Text()
-		if l == "" || strings.HasPrefix(l, "#") {
-			continue
-		}
-		out = append(out, strings.Fields(l)[0])
+	for _, e := range reftest.Corpus(b) {
+		out = append(out, e.SMILES)
 	}
 	if len(out) < 10000 {
 		b.Fatalf("corpus has %d structures", len(out))

@@ -1,10 +1,7 @@
 package batch
 
 import (
-	"bufio"
 	"context"
-	"os"
-	"strings"
 	"sync"
 	"testing"
 	"time"
@@ -63,19 +60,9 @@ func (m *memStore) MonomerSource(ctx context.Context, id string) (screening.Sour
 }
 
 func corpusItems(b *testing.B) []Item {
-	f, err := os.Open(reftest.Path(b, "corpus/candidates.smi"))
-	if err != nil {
-		b.Fatal(err)
-	}
-	defer f.Close()
 	var out []Item
-	sc := bufio.NewScanner(f)
-	for sc.Scan() {
-		fs := strings.Fields(sc.Text())
-		if len(fs) < 2 || strings.HasPrefix(fs[0], "#") {
-			continue
-		}
-		out = append(out, Item{Seq: len(out), ItemID: fs[1], Source: ItemSource{SMILES: fs[0]}})
+	for _, e := range reftest.Corpus(b) {
+		out = append(out, Item{Seq: len(out), ItemID: e.ID, Source: ItemSource{SMILES: e.SMILES}})
 	}
 	return out
 }

@@ -4,21 +4,28 @@ import (
 	"testing"
 
 	"ringsieve/screening/canon"
+	"ringsieve/screening/mol"
 	"ringsieve/screening/rings"
 	"ringsieve/screening/smiles"
 )
 
-func keys(t *testing.T, s string) (skeleton, structure string, order []int) {
+// perceived parses s and perceives its rings; all lists every atom.
+func perceived(t *testing.T, s string) (m *mol.Molecule, r *rings.Rings, all []int) {
 	t.Helper()
 	m, err := smiles.Parse(s)
 	if err != nil {
 		t.Fatalf("%s: %v", s, err)
 	}
-	r := rings.Perceive(m)
-	all := make([]int, len(m.Atoms))
+	all = make([]int, len(m.Atoms))
 	for i := range all {
 		all[i] = i
 	}
+	return m, rings.Perceive(m), all
+}
+
+func keys(t *testing.T, s string) (skeleton, structure string, order []int) {
+	t.Helper()
+	m, r, all := perceived(t, s)
 	order, _ = canon.Order(m, r, all)
 	return canon.SkeletonKey(m, r, all, -1), canon.StructureKey(m, r, all), order
 }

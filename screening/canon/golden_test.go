@@ -1,7 +1,6 @@
 package canon_test
 
 import (
-	"bufio"
 	"bytes"
 	"flag"
 	"fmt"
@@ -12,7 +11,6 @@ import (
 	"ringsieve/screening/canon"
 	"ringsieve/screening/internal/reftest"
 	"ringsieve/screening/rings"
-	"ringsieve/screening/smiles"
 )
 
 var update = flag.Bool("update", false, "rewrite testdata/golden/canon_keys.txt")
@@ -24,32 +22,13 @@ var update = flag.Bool("update", false, "rewrite testdata/golden/canon_keys.txt"
 // canonicalization must write the same strings (design choice: golden file,
 // testdata/golden/canon_keys.txt; go test ./screening/canon -run KeysGolden -update rewrites it).
 func TestKeysGolden(t *testing.T) {
-	f, err := os.Open(reftest.Path(t, "corpus/candidates.smi"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
 	var out bytes.Buffer
-	sc := bufio.NewScanner(f)
-	n := 0
-	for sc.Scan() {
-		l := sc.Text()
-		if l == "" || strings.HasPrefix(l, "#") {
+	for n, e := range reftest.Corpus(t) {
+		if n%5 != 0 {
 			continue
 		}
-		if n++; n%5 != 1 {
-			continue
-		}
-		s := strings.Fields(l)[0]
-		m, err := smiles.Parse(s)
-		if err != nil {
-			t.Fatalf("%s: %v", s, err)
-		}
-		r := rings.Perceive(m)
-		all := make([]int, len(m.Atoms))
-		for i := range all {
-			all[i] = i
-		}
+		s := e.SMILES
+		m, r, all := perceived(t, s)
 		order, class := canon.Order(m, r, all)
 		fmt.Fprintf(&out, "%s\t%s\t%s\t%v\t%v\n", s, canon.SkeletonKey(m, r, all, -1), canon.StructureKey(m, r, all), order, class)
 		_, systems := rings.Systems(r.SSSR)

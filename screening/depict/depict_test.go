@@ -8,6 +8,7 @@ import (
 	"strings"
 	"testing"
 
+	"ringsieve/screening/internal/reftest"
 	"ringsieve/screening/rings"
 	"ringsieve/screening/smiles"
 )
@@ -36,22 +37,10 @@ var extraStructures = []string{
 var knownHard = map[string]bool{"C1=CC2CCC1CC2": true, "C12C=CC(C=C1)CC2": true, "C1=CC2CCC1C2c1ccccc1": true}
 
 func corpus(t *testing.T, every int) []string {
-	f, err := os.Open("../../testdata/corpus/candidates.smi")
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
 	var out []string
-	sc := bufio.NewScanner(f)
-	n := 0
-	for sc.Scan() {
-		line := sc.Text()
-		if strings.HasPrefix(line, "#") || line == "" {
-			continue
-		}
-		n++
-		if n%every == 0 {
-			out = append(out, strings.Fields(line)[0])
+	for n, e := range reftest.Corpus(t) {
+		if (n+1)%every == 0 {
+			out = append(out, e.SMILES)
 		}
 	}
 	return out

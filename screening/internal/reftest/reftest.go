@@ -8,6 +8,7 @@ import (
 	"path/filepath"
 	"regexp"
 	"strconv"
+	"strings"
 	"testing"
 )
 
@@ -120,3 +121,25 @@ func CountElement(formula, el string) int {
 }
 
 var formulaTerm = regexp.MustCompile(`([A-Z][a-z]?)([0-9]*)`)
+
+// CorpusEntry is one line of the committed corpus of generated candidate monomers.
+type CorpusEntry struct{ SMILES, ID string }
+
+// Corpus reads testdata/corpus/candidates.smi (SMILES and id per line; blank lines and
+// comments skipped).
+func Corpus(t testing.TB) []CorpusEntry {
+	t.Helper()
+	var out []CorpusEntry
+	for _, l := range strings.Split(string(ReadFile(t, "corpus/candidates.smi")), "\n") {
+		f := strings.Fields(l)
+		if len(f) == 0 || strings.HasPrefix(f[0], "#") {
+			continue
+		}
+		e := CorpusEntry{SMILES: f[0]}
+		if len(f) > 1 {
+			e.ID = f[1]
+		}
+		out = append(out, e)
+	}
+	return out
+}
