@@ -1,6 +1,7 @@
 package screening_test
 
 import (
+	"encoding/json"
 	"errors"
 	"testing"
 
@@ -10,7 +11,7 @@ import (
 // FuzzScreenSMILES: any input string either screens or fails with a SMILES error carrying a
 // position inside (or at the end of) the input; it never panics. Work per structure is bounded by
 // operation counts inside the steps (kekulization, ring search and canonical-key budgets), not by
-// a clock. The seed corpus is in
+// a clock; its JSON from Result.AppendJSON equals encoding/json's. The seed corpus is in
 // testdata/fuzz/FuzzScreenSMILES. Run: go test ./screening -run '^$' -fuzz FuzzScreenSMILES.
 func FuzzScreenSMILES(f *testing.F) {
 	for _, s := range []string{"C1=CC2CCC1C2", "c1ccccc1", "[13CH3:2][C@@H](F)/C=C\\Cl", "C%12CC%12", "[Na+].[O-]C(=O)C1CC2C=CC1C2",
@@ -39,6 +40,12 @@ func FuzzScreenSMILES(f *testing.F) {
 		}
 		if r.Verdict == "" || (r.Verdict != VerdictNotMonomer && r.Thermo == nil) {
 			t.Fatalf("%q: verdict %q, thermo %v", s, r.Verdict, r.Thermo)
+		}
+		// the hand-written encoder writes what encoding/json writes, whatever the input
+		want, werr := json.Marshal(r)
+		got, gerr := r.AppendJSON(nil)
+		if (werr == nil) != (gerr == nil) || (werr == nil && string(got) != string(want)) {
+			t.Fatalf("%q: AppendJSON %s (%v), encoding/json %s (%v)", s, got, gerr, want, werr)
 		}
 	})
 }
