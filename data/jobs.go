@@ -258,7 +258,7 @@ func (s *Store) RankedItems(ctx context.Context, jobID string, offset, limit int
 		}
 		if batch.IsRecomputeMark(res) {
 			it.Recompute, res = true, nil
-			if err := json.Unmarshal([]byte(src), &it.Source); err != nil {
+			if it.Source, err = batch.DecodeItemSource(src); err != nil {
 				return fmt.Errorf("ranked items: item %d source: %w", it.Seq, err)
 			}
 		} else if res, err = batch.DecodeResult(res); err != nil {
@@ -330,17 +330,19 @@ func (s *Store) ChunkItems(ctx context.Context, c batch.Chunk) ([]batch.Item, er
 		return nil, err
 	}
 	defer rows.Close()
-	var out []batch.Item
+	out := make([]batch.Item, 0, c.LastSeq-c.FirstSeq+1)
 	for rows.Next() {
 		var it batch.Item
 		var src, ex string
 		if err := rows.Scan(&it.Seq, &it.ItemID, &it.Line, &src, &ex); err != nil {
 			return nil, err
 		}
-		if err := json.Unmarshal([]byte(src), &it.Source); err != nil {
+		if it.Source, err = batch.DecodeItemSource(src); err != nil {
 			return nil, fmt.Errorf("item %d source: %w", it.Seq, err)
 		}
-		if err := json.Unmarshal([]byte(ex), &it.Extra); err != nil {
+		if ex == "[]" {
+			it.Extra = []string{} // what the decoder gives for an empty list
+		} else if err := json.Unmarshal([]byte(ex), &it.Extra); err != nil {
 			return nil, fmt.Errorf("item %d extra columns: %w", it.Seq, err)
 		}
 		out = append(out, it)

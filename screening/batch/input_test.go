@@ -1,8 +1,10 @@
 package batch
 
 import (
+	"encoding/json"
 	"math"
 	"os"
+	"reflect"
 	"strconv"
 	"strings"
 	"testing"
@@ -59,6 +61,31 @@ func TestSDFAgainstRDKit(t *testing.T) {
 		em, _ := strconv.ParseFloat(get("EXACT_MASS"), 64)
 		if got := m.MonoisotopicMass(); math.Abs(got-em) > 2e-4 {
 			t.Errorf("%s: monoisotopic mass %.6f, RDKit %.6f", it.ID, got, em)
+		}
+	}
+}
+
+// TestDecodeItemSourceAsJSON: the stored-source reader gives what json.Unmarshal gives, for
+// sources as the store writes them (json.Marshal of an ItemSource) and for odd stored text
+// (design choice: the fast path is a speed-up only).
+func TestDecodeItemSourceAsJSON(t *testing.T) {
+	var srcs []string
+	for _, s := range []ItemSource{{SMILES: "C1=CC2CCC1C2"}, {SMILES: `C1=C\CCCCCC/1`}, {SMILES: "C<C>&C"}, {SMILES: "C\u2028C"},
+		{SMILES: "C\x01C"}, {SMILES: "bad \xff utf-8"}, {MonomerID: "mon_1"}, {Molfile: "\n  x\n\n  0  0\nM  END"},
+		{SMILES: "C1=CCCC1", MonomerID: "mon_2"}} {
+		b, err := json.Marshal(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		srcs = append(srcs, string(b))
+	}
+	srcs = append(srcs, `{"smiles":"C\u00e9C"}`, `{"smiles":""}`, `{"smiles":"a"b"}`, `{"smiles":"\xffC"}`, `{"smiles":"C"} `, `{}`)
+	for _, src := range srcs {
+		var want ItemSource
+		werr := json.Unmarshal([]byte(src), &want)
+		got, gerr := DecodeItemSource(src)
+		if (werr == nil) != (gerr == nil) || (werr == nil && !reflect.DeepEqual(got, want)) {
+			t.Errorf("%q: got %+v (%v), json.Unmarshal %+v (%v)", src, got, gerr, want, werr)
 		}
 	}
 }

@@ -6,6 +6,7 @@ import (
 	"errors"
 	"fmt"
 	"time"
+	"unicode/utf8"
 
 	"ringsieve/screening"
 	"ringsieve/screening/judge"
@@ -252,4 +253,24 @@ func DecodeConditions(b []byte) (screening.ConditionsOut, error) {
 		c.ThermoMethod = units.ThermoMethod(raw.ThermoMethod)
 	}
 	return EffectiveConditions(c), nil
+}
+
+// DecodeItemSource reads a stored item source (the JSON of an ItemSource). A source holding
+// only a SMILES with nothing to unescape — almost every stored item — is read without the JSON
+// decoder; the result is the same as json.Unmarshal's.
+func DecodeItemSource(src string) (ItemSource, error) {
+	const head, tail = `{"smiles":"`, `"}`
+	if len(src) >= len(head)+len(tail) && src[:len(head)] == head && src[len(src)-len(tail):] == tail {
+		v := src[len(head) : len(src)-len(tail)]
+		plain := utf8.ValidString(v)
+		for i := 0; plain && i < len(v); i++ {
+			plain = v[i] >= 0x20 && v[i] != '"' && v[i] != '\\'
+		}
+		if plain && v != "" {
+			return ItemSource{SMILES: v}, nil
+		}
+	}
+	var s ItemSource
+	err := json.Unmarshal([]byte(src), &s)
+	return s, err
 }
