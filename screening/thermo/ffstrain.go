@@ -360,11 +360,11 @@ func coreParent(s *describe.Structure, o *describe.Olefin) (*mol.Molecule, int, 
 	if pb < 0 {
 		return nil, 0, "", fmt.Errorf("olefin not in its core: %w", ErrFFNotApplicable)
 	}
-	name := structureKey(p)
+	// the table's name for the core, else its structure key (computed only then)
 	if row, ok := Table().byKey[canon.SkeletonKey(p, rings.Perceive(p), seq(len(p.Atoms)), -1)]; ok {
-		name = row.Name
+		return p, pb, row.Name, nil
 	}
-	return p, pb, name, nil
+	return p, pb, structureKey(p), nil
 }
 
 // structureKey is the canonical constitution key of m, followed by its stereo as written when it
