@@ -19,7 +19,7 @@ import (
 var gasMemo = memo.New[GasEstimate](50000)
 
 // ResetCache empties the ring-estimate cache (benchmarks of a cold start).
-func ResetCache() { gasMemo.Reset() }
+func ResetCache() { gasMemo.Reset(); analogueMemo.Reset() }
 
 // systemKey is the canonical key of a ring system given as atoms of m (bonds among them, less
 // skip), computed on an extracted copy so that aromaticity is judged on the system alone;
@@ -150,7 +150,7 @@ func (t *ringTable) fallback(sub *mol.Molecule, p *rings.Rings, core []int, key 
 	catoms := rings.Atoms(p.SSSR, core)
 	if len(core) < 2 || len(catoms) > t.maxAtoms {
 		// a single ring, or larger than every row: no analogue to look up (its key is costly)
-	} else if row, ok := t.byKey[carbonAnalogueKey(sub, catoms)]; ok {
+	} else if row, ok := t.byKey[cachedAnalogueKey(sub, p, catoms)]; ok {
 		term.Name = "all-carbon analogue " + row.Name
 		term.H, term.S = row.RSCH, row.RSCS
 		term.UH, term.US = math.Hypot(row.UH, 8), math.Hypot(row.US, 15)
@@ -172,18 +172,15 @@ func (t *ringTable) fallback(sub *mol.Molecule, p *rings.Rings, core []int, key 
 			continue
 		}
 		n := len(r.Atoms)
-		ring := &mol.Molecule{}
-		for i := 0; i < n; i++ {
-			ring.Atoms = append(ring.Atoms, mol.Atom{Z: 6, Bracket: true})
-		}
+		orders := make([]byte, n)
 		for i := 0; i < n; i++ {
 			ord := sub.Bonds[r.Bonds[i]].Order
 			if p.AromaticBond[r.Bonds[i]] {
 				ord = 1
 			}
-			ring.Bonds = append(ring.Bonds, mol.Bond{A: i, B: (i + 1) % n, Order: ord})
+			orders[i] = byte('0' + ord)
 		}
-		row, ok := t.byKey[carbonAnalogueKey(ring, seq(n))]
+		row, ok := t.byKey[ringAnalogueKey(orders)]
 		widen := 0.0
 		if !ok {
 			// same size, one ring double bond (or none)
@@ -191,9 +188,7 @@ func (t *ringTable) fallback(sub *mol.Molecule, p *rings.Rings, core []int, key 
 			if doubles > 0 {
 				parent = "C1=C" + strings.Repeat("C", n-2) + "1"
 			}
-			if pm, err := smiles.Parse(parent); err == nil {
-				row, ok = t.byKey[carbonAnalogueKey(pm, seq(len(pm.Atoms)))]
-			}
+			row, ok = t.byKey[smilesAnalogueKey(parent)]
 			widen = 5
 		}
 		if ok {
@@ -233,6 +228,58 @@ func seq(n int) []int {
 		out[i] = i
 	}
 	return out
+}
+
+// analogueMemo caches carbon-analogue keys by what determines them: the written signature of
+// the subgraph, the bond orders around a single ring, or a parent's SMILES (2,000 entries, a
+// design choice: they are few).
+var analogueMemo = memo.New[string](2000)
+
+// cachedAnalogueKey is carbonAnalogueKey(sub, atoms) cached under the subgraph's written
+// signature (which holds the bonds and their orders, so equal signatures give equal keys).
+func cachedAnalogueKey(sub *mol.Molecule, p *rings.Rings, atoms []int) string {
+	sig := canon.WrittenSignature(sub, p, atoms, -1, "|analogue")
+	if k, ok := analogueMemo.Get(sig); ok {
+		return k
+	}
+	k := carbonAnalogueKey(sub, atoms)
+	analogueMemo.Put(sig, k)
+	return k
+}
+
+// ringAnalogueKey is the carbon-analogue key of one ring whose bond orders, in ring order, are
+// orders ('1', '2', …; aromatic bonds read as single), cached by that sequence.
+func ringAnalogueKey(orders []byte) string {
+	sig := "ring|" + string(orders)
+	if k, ok := analogueMemo.Get(sig); ok {
+		return k
+	}
+	n := len(orders)
+	ring := &mol.Molecule{}
+	for i := 0; i < n; i++ {
+		ring.Atoms = append(ring.Atoms, mol.Atom{Z: 6, Bracket: true})
+	}
+	for i := 0; i < n; i++ {
+		ring.Bonds = append(ring.Bonds, mol.Bond{A: i, B: (i + 1) % n, Order: int(orders[i] - '0')})
+	}
+	k := carbonAnalogueKey(ring, seq(n))
+	analogueMemo.Put(sig, k)
+	return k
+}
+
+// smilesAnalogueKey is the carbon-analogue key of a parent ring given as SMILES ("" when it
+// does not parse), cached by the SMILES.
+func smilesAnalogueKey(text string) string {
+	sig := "smiles|" + text
+	if k, ok := analogueMemo.Get(sig); ok {
+		return k
+	}
+	k := ""
+	if pm, err := smiles.Parse(text); err == nil {
+		k = carbonAnalogueKey(pm, seq(len(pm.Atoms)))
+	}
+	analogueMemo.Put(sig, k)
+	return k
 }
 
 // carbonAnalogueKey is the skeleton key of atoms with every atom made a non-aromatic carbon and
