@@ -18,8 +18,14 @@ import (
 // opened (50,000 entries: a design choice, a few megabytes).
 var gasMemo = memo.New[GasEstimate](50000)
 
-// ResetCache empties the ring-estimate cache (benchmarks of a cold start).
-func ResetCache() { gasMemo.Reset(); analogueMemo.Reset() }
+// ResetCache empties the ring-estimate, analogue-key and parent caches (benchmarks of a cold
+// start).
+func ResetCache() {
+	gasMemo.Reset()
+	analogueMemo.Reset()
+	parentMemo.Reset()
+	parentCoreMemo.Reset()
+}
 
 // systemKey is the canonical key of a ring system given as atoms of m (bonds among them, less
 // skip), computed on an extracted copy so that aromaticity is judged on the system alone;
