@@ -63,17 +63,7 @@ func (s *Store) CreateJob(ctx context.Context, chunkSize int, fill func(add func
 		ins := newBulkInsert(s, tx, `INSERT INTO job_items (job_id, seq, item_id, line, source, extra) VALUES `, 6, ``)
 		n := 0
 		add := func(it JobInput) error {
-			src, err := json.Marshal(it.Source)
-			if err != nil {
-				return err
-			}
-			ex := []byte("[]")
-			if len(it.Extra) > 0 {
-				if ex, err = json.Marshal(it.Extra); err != nil {
-					return err
-				}
-			}
-			if err := ins.add(ctx, j.ID, n, it.ItemID, it.Line, string(src), string(ex)); err != nil {
+			if err := insertItem(ctx, ins, j.ID, n, it); err != nil {
 				return err
 			}
 			n++
@@ -119,6 +109,34 @@ func (s *Store) CreateJob(ctx context.Context, chunkSize int, fill func(add func
 	}
 	j.CreatedAt = parseTime(ts)
 	return j, nil
+}
+
+// insertItem encodes one job item and adds it to the bulk insert.
+func insertItem(ctx context.Context, ins *bulkInsert, jobID string, seq int, it JobInput) error {
+	src, err := encodeSource(it.Source)
+	if err != nil {
+		return err
+	}
+	ex := []byte("[]")
+	if len(it.Extra) > 0 {
+		if ex, err = json.Marshal(it.Extra); err != nil {
+			return err
+		}
+	}
+	return ins.add(ctx, jobID, seq, it.ItemID, it.Line, string(src), string(ex))
+}
+
+// encodeSource is json.Marshal of an item source; one holding only a SMILES (almost every
+// uploaded item) is written without reflecting over the struct.
+func encodeSource(s batch.ItemSource) ([]byte, error) {
+	if s.Molfile != "" || s.Descriptors != nil || s.MonomerID != "" || s.SMILES == "" {
+		return json.Marshal(s)
+	}
+	v, err := json.Marshal(s.SMILES)
+	if err != nil {
+		return nil, err
+	}
+	return append(append(make([]byte, 0, len(v)+12), `{"smiles":`...), append(v, '}')...), nil
 }
 
 // insertChunks splits items 0 … total−1 of a job into chunks of size.
