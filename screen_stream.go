@@ -106,18 +106,11 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 		wg.Wait()
 		close(parts)
 	}()
-	var all [][]compactRow
-	n := 0
+	var batches [][]compactRow
 	for p := range parts {
-		for _, b := range p.batches {
-			all = append(all, b)
-			n += len(b)
-		}
+		batches = append(batches, p.batches...)
 	}
-	rows := make([]compactRow, 0, n)
-	for _, b := range all {
-		rows = append(rows, b...)
-	}
+	rows := slices.Concat(batches...)
 	if bar != nil {
 		bar.Finish()
 	}

@@ -136,7 +136,10 @@ func encodeSource(s batch.ItemSource) ([]byte, error) {
 	if err != nil {
 		return nil, err
 	}
-	return append(append(make([]byte, 0, len(v)+12), `{"smiles":`...), append(v, '}')...), nil
+	b := make([]byte, 0, len(v)+12)
+	b = append(b, `{"smiles":`...)
+	b = append(b, v...)
+	return append(b, '}'), nil
 }
 
 // insertChunks splits items 0 … total−1 of a job into chunks of size.

@@ -42,7 +42,7 @@ func TestAppendJSONMatchesMarshal(t *testing.T) {
 		if err != nil || string(got) != string(want) {
 			t.Fatalf("%s: AppendJSON differs from encoding/json (%v)\n got  %s\n want %s", what, err, got, want)
 		}
-		markNonEmpty(reflect.ValueOf(r), "Result", seen)
+		markNonEmpty(reflect.ValueOf(r), seen)
 	}
 	for i, s := range corpus {
 		if r, err := ScreenSMILES(s, table); err == nil {
@@ -81,7 +81,7 @@ func TestAppendJSONMatchesMarshal(t *testing.T) {
 		check("force field", r)
 	}
 	var missing []string
-	for _, name := range allJSONMembers(reflect.TypeOf(Result{}), "Result") {
+	for _, name := range allJSONMembers(reflect.TypeOf(Result{})) {
 		if !seen[name] {
 			missing = append(missing, name)
 		}
@@ -93,16 +93,16 @@ func TestAppendJSONMatchesMarshal(t *testing.T) {
 }
 
 // markNonEmpty records the JSON members (as Type.member) that hold a non-empty value in v.
-func markNonEmpty(v reflect.Value, typ string, seen map[string]bool) {
+func markNonEmpty(v reflect.Value, seen map[string]bool) {
 	switch v.Kind() {
 	case reflect.Pointer:
 		if !v.IsNil() {
-			markNonEmpty(v.Elem(), typ, seen)
+			markNonEmpty(v.Elem(), seen)
 		}
 		return
 	case reflect.Slice:
 		for i := 0; i < v.Len(); i++ {
-			markNonEmpty(v.Index(i), typ, seen)
+			markNonEmpty(v.Index(i), seen)
 		}
 		return
 	case reflect.Struct:
@@ -119,12 +119,12 @@ func markNonEmpty(v reflect.Value, typ string, seen map[string]bool) {
 		if !f.IsZero() && !(f.Kind() == reflect.Slice && f.Len() == 0) {
 			seen[t.Name()+"."+name] = true
 		}
-		markNonEmpty(f, t.Name(), seen)
+		markNonEmpty(f, seen)
 	}
 }
 
 // allJSONMembers lists Type.member for every JSON member reachable from t.
-func allJSONMembers(t reflect.Type, _ string) []string {
+func allJSONMembers(t reflect.Type) []string {
 	var out []string
 	done := map[reflect.Type]bool{}
 	var walk func(t reflect.Type)

@@ -180,15 +180,25 @@ func (r *Runner) hand(ctx context.Context, cc claimedChunk, ready chan<- claimed
 			r.release(r.Log, cc.c)
 			return
 		case <-renew.C:
-			st, err := r.Store.RenewLease(ctx, cc.c, r.Lease)
-			if errors.Is(err, ErrLeaseLost) || st == JobCanceled || st == JobFailed {
-				if errors.Is(err, ErrLeaseLost) {
-					r.leaseLost()
-				}
+			if !r.renew(ctx, r.Log, cc.c) {
 				return
 			}
 		}
 	}
+}
+
+// renew extends the lease of a held chunk; false means the chunk is to be given up: its lease
+// passed to another worker or its job was canceled or failed.
+func (r *Runner) renew(ctx context.Context, log *slog.Logger, c Chunk) bool {
+	st, err := r.Store.RenewLease(ctx, c, r.Lease)
+	if errors.Is(err, ErrLeaseLost) || st == JobCanceled || st == JobFailed {
+		log.Info("chunk given up", "status", st, "err", err)
+		if errors.Is(err, ErrLeaseLost) {
+			r.leaseLost()
+		}
+		return false
+	}
+	return true
 }
 
 // prepare reads a claimed chunk's conditions and items; ok is false when the chunk cannot be
@@ -228,12 +238,7 @@ func (r *Runner) screenChunk(ctx context.Context, cc claimedChunk) (outs []Outco
 			case <-work.Done():
 				return
 			case <-t.C:
-				st, err := r.Store.RenewLease(work, c, r.Lease)
-				if errors.Is(err, ErrLeaseLost) || st == JobCanceled || st == JobFailed {
-					log.Info("chunk given up", "status", st, "err", err)
-					if errors.Is(err, ErrLeaseLost) {
-						r.leaseLost()
-					}
+				if !r.renew(work, log, c) {
 					stop()
 					return
 				}

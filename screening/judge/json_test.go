@@ -11,29 +11,82 @@ import (
 	"ringsieve/screening/thermo"
 )
 
-// TestJSONFieldsListed: every JSON member of the result types is in jsonFields, in field
-// order, so a field added to a type without a line in AppendJSON fails here (design choice:
-// AppendJSON must stay byte-equal to encoding/json).
-func TestJSONFieldsListed(t *testing.T) {
-	for _, v := range []any{Result{}, Reason{}, Compatibility{}, ConditionsOut{}, thermo.Thermo{}, thermo.EstimateOut{},
-		thermo.MeasuredOut{}, describe.OlefinSummary{}, describe.Descriptors{}} {
-		typ := reflect.TypeOf(v)
-		var names []string
-		for i := 0; i < typ.NumField(); i++ {
-			tag := typ.Field(i).Tag.Get("json")
-			name, _, _ := strings.Cut(tag, ",")
-			if name == "-" {
-				continue
-			}
-			if name == "" {
-				t.Errorf("%s.%s has no JSON name", typ.Name(), typ.Field(i).Name)
-			}
-			names = append(names, name)
+// TestAppendJSONEveryField: a result with every field set (every pointer non-nil, every list
+// one element long, strings that need escaping) and the zero result (nil lists written as null)
+// encode as encoding/json encodes them, and every JSON member of the result types appears — so
+// a field added to a type without its line in AppendJSON fails here (design choice: AppendJSON
+// must stay byte-equal to encoding/json).
+func TestAppendJSONEveryField(t *testing.T) {
+	var full Result
+	fill(reflect.ValueOf(&full).Elem())
+	for _, r := range []Result{full, {}} {
+		want, err := json.Marshal(r)
+		if err != nil {
+			t.Fatal(err)
 		}
-		if got := jsonFields[typ.Name()]; strings.Join(got, " ") != strings.Join(names, " ") {
-			t.Errorf("%s: AppendJSON writes %v, the type has %v", typ.Name(), got, names)
+		got, err := r.AppendJSON(nil)
+		if err != nil || string(got) != string(want) {
+			t.Fatalf("AppendJSON differs from encoding/json (%v)\n got  %s\n want %s", err, got, want)
 		}
 	}
+	var members map[string]any
+	b, _ := full.AppendJSON(nil)
+	if err := json.Unmarshal(b, &members); err != nil {
+		t.Fatal(err)
+	}
+	for _, name := range jsonNames(reflect.TypeOf(Result{})) {
+		if _, ok := members[name]; !ok {
+			t.Errorf("member %s missing from a fully set result", name)
+		}
+	}
+	for _, typ := range []reflect.Type{reflect.TypeOf(Reason{}), reflect.TypeOf(Compatibility{}), reflect.TypeOf(ConditionsOut{}),
+		reflect.TypeOf(thermo.Thermo{}), reflect.TypeOf(thermo.EstimateOut{}), reflect.TypeOf(thermo.MeasuredOut{}),
+		reflect.TypeOf(describe.OlefinSummary{}), reflect.TypeOf(describe.Descriptors{})} {
+		for _, name := range jsonNames(typ) {
+			if !strings.Contains(string(b), `"`+name+`":`) {
+				t.Errorf("%s.%s missing from a fully set result", typ.Name(), name)
+			}
+		}
+	}
+}
+
+// fill sets every exported field of v to a non-empty value: numbers that are not zero, strings
+// with characters JSON escapes, true, one-element lists, pointers to filled values.
+func fill(v reflect.Value) {
+	switch v.Kind() {
+	case reflect.Struct:
+		for i := 0; i < v.NumField(); i++ {
+			if v.Type().Field(i).IsExported() {
+				fill(v.Field(i))
+			}
+		}
+	case reflect.Pointer:
+		v.Set(reflect.New(v.Type().Elem()))
+		fill(v.Elem())
+	case reflect.Slice:
+		v.Set(reflect.MakeSlice(v.Type(), 1, 1))
+		fill(v.Index(0))
+	case reflect.String:
+		v.SetString("a<b>&\"c\" ΔH")
+	case reflect.Float64:
+		v.SetFloat(-62.1228)
+	case reflect.Int:
+		v.SetInt(3)
+	case reflect.Bool:
+		v.SetBool(true)
+	}
+}
+
+// jsonNames lists the JSON member names of a struct type.
+func jsonNames(t reflect.Type) []string {
+	var out []string
+	for i := 0; i < t.NumField(); i++ {
+		name, _, _ := strings.Cut(t.Field(i).Tag.Get("json"), ",")
+		if name != "-" && name != "" {
+			out = append(out, name)
+		}
+	}
+	return out
 }
 
 // TestJSONStringsAndNumbers: strings and numbers come out as encoding/json writes them, for

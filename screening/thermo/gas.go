@@ -1,6 +1,7 @@
 package thermo
 
 import (
+	"bytes"
 	"fmt"
 	"math"
 	"sort"
@@ -11,7 +12,6 @@ import (
 	"ringsieve/screening/internal/memo"
 	"ringsieve/screening/mol"
 	"ringsieve/screening/rings"
-	"ringsieve/screening/smiles"
 )
 
 // gasMemo caches gas-phase estimates by the written signature of the ring system and the bond
@@ -24,7 +24,6 @@ func ResetCache() {
 	gasMemo.Reset()
 	analogueMemo.Reset()
 	parentMemo.Reset()
-	parentCoreMemo.Reset()
 }
 
 // systemKey is the canonical key of a ring system given as atoms of m (bonds among them, less
@@ -189,12 +188,12 @@ func (t *ringTable) fallback(sub *mol.Molecule, p *rings.Rings, core []int, key 
 		row, ok := t.byKey[ringAnalogueKey(orders)]
 		widen := 0.0
 		if !ok {
-			// same size, one ring double bond (or none)
-			parent := "C1" + strings.Repeat("C", n-1) + "1"
+			// same size, one ring double bond (or none): the cycloalkene or cycloalkane
+			parent := bytes.Repeat([]byte{'1'}, n)
 			if doubles > 0 {
-				parent = "C1=C" + strings.Repeat("C", n-2) + "1"
+				parent[0] = '2'
 			}
-			row, ok = t.byKey[smilesAnalogueKey(parent)]
+			row, ok = t.byKey[ringAnalogueKey(parent)]
 			widen = 5
 		}
 		if ok {
@@ -237,55 +236,32 @@ func seq(n int) []int {
 }
 
 // analogueMemo caches carbon-analogue keys by what determines them: the written signature of
-// the subgraph, the bond orders around a single ring, or a parent's SMILES (2,000 entries, a
-// design choice: they are few).
+// the subgraph, or the bond orders around a single ring (2,000 entries, a design choice: they
+// are few).
 var analogueMemo = memo.New[string](2000)
 
 // cachedAnalogueKey is carbonAnalogueKey(sub, atoms) cached under the subgraph's written
 // signature (which holds the bonds and their orders, so equal signatures give equal keys).
 func cachedAnalogueKey(sub *mol.Molecule, p *rings.Rings, atoms []int) string {
-	sig := canon.WrittenSignature(sub, p, atoms, -1, "|analogue")
-	if k, ok := analogueMemo.Get(sig); ok {
-		return k
-	}
-	k := carbonAnalogueKey(sub, atoms)
-	analogueMemo.Put(sig, k)
-	return k
+	return analogueMemo.Do(canon.WrittenSignature(sub, p, atoms, -1, "|analogue"), func() string {
+		return carbonAnalogueKey(sub, atoms)
+	})
 }
 
 // ringAnalogueKey is the carbon-analogue key of one ring whose bond orders, in ring order, are
 // orders ('1', '2', …; aromatic bonds read as single), cached by that sequence.
 func ringAnalogueKey(orders []byte) string {
-	sig := "ring|" + string(orders)
-	if k, ok := analogueMemo.Get(sig); ok {
-		return k
-	}
-	n := len(orders)
-	ring := &mol.Molecule{}
-	for i := 0; i < n; i++ {
-		ring.Atoms = append(ring.Atoms, mol.Atom{Z: 6, Bracket: true})
-	}
-	for i := 0; i < n; i++ {
-		ring.Bonds = append(ring.Bonds, mol.Bond{A: i, B: (i + 1) % n, Order: int(orders[i] - '0')})
-	}
-	k := carbonAnalogueKey(ring, seq(n))
-	analogueMemo.Put(sig, k)
-	return k
-}
-
-// smilesAnalogueKey is the carbon-analogue key of a parent ring given as SMILES ("" when it
-// does not parse), cached by the SMILES.
-func smilesAnalogueKey(text string) string {
-	sig := "smiles|" + text
-	if k, ok := analogueMemo.Get(sig); ok {
-		return k
-	}
-	k := ""
-	if pm, err := smiles.Parse(text); err == nil {
-		k = carbonAnalogueKey(pm, seq(len(pm.Atoms)))
-	}
-	analogueMemo.Put(sig, k)
-	return k
+	return analogueMemo.Do("ring|"+string(orders), func() string {
+		n := len(orders)
+		ring := &mol.Molecule{}
+		for i := 0; i < n; i++ {
+			ring.Atoms = append(ring.Atoms, mol.Atom{Z: 6, Bracket: true})
+		}
+		for i := 0; i < n; i++ {
+			ring.Bonds = append(ring.Bonds, mol.Bond{A: i, B: (i + 1) % n, Order: int(orders[i] - '0')})
+		}
+		return carbonAnalogueKey(ring, seq(n))
+	})
 }
 
 // carbonAnalogueKey is the skeleton key of atoms with every atom made a non-aromatic carbon and

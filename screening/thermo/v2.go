@@ -380,47 +380,35 @@ func (p parentInfo) allCarbon(s *describe.Structure, o *describe.Olefin) bool {
 	return true
 }
 
-// parentMemo caches parents by the ring system's written signature and the olefin's place in it.
+// parentMemo caches parents by the written signature of the olefin's core and the olefin's
+// place in it (20,000 entries, a design choice): the parent depends on the core alone (its
+// bonds, their orders and aromaticity, and the olefin's place), so ring systems that differ
+// outside one core share its parent.
 var parentMemo = memo.New[parentInfo](20000)
 
-// parentCoreMemo caches parents by the written signature of the olefin's core and the olefin's
-// place in it (20,000 entries, a design choice).
-var parentCoreMemo = memo.New[parentInfo](20000)
-
 func parentOf(s *describe.Structure, o *describe.Olefin) parentInfo {
-	la, lb := sort.SearchInts(o.SystemAtoms, o.A), sort.SearchInts(o.SystemAtoms, o.B)
-	key := o.Signature + "|" + strconv.Itoa(la) + "-" + strconv.Itoa(lb) + "|" + strconv.Itoa(len(o.CoreAtoms))
-	if p, ok := parentMemo.Get(key); ok {
-		return p
-	}
-	// the parent depends on the core alone (its bonds, their orders and aromaticity, and the
-	// olefin's place): ring systems that differ outside one core share its parent
 	ca, cb := sort.SearchInts(o.CoreAtoms, o.A), sort.SearchInts(o.CoreAtoms, o.B)
-	coreKey := canon.WrittenSignature(s.Mol, s.Rings, o.CoreAtoms, -1, "|olefin "+strconv.Itoa(ca)+"-"+strconv.Itoa(cb))
-	if p, ok := parentCoreMemo.Get(coreKey); ok {
-		parentMemo.Put(key, p)
-		return p
-	}
-	var pi parentInfo
-	parent, pbond, pname, err := coreParent(s, o)
-	if err != nil {
-		pi.err = err
-	} else if ps, err := describe.DescribeMolecule(parent, ""); err != nil || len(ps.Olefins) == 0 {
-		pi.err = fmt.Errorf("parent: %v", err)
-	} else {
-		for _, x := range ps.Olefins {
-			if x.Bond == pbond {
-				pi.o = x
+	key := canon.WrittenSignature(s.Mol, s.Rings, o.CoreAtoms, -1, "|olefin "+strconv.Itoa(ca)+"-"+strconv.Itoa(cb))
+	return parentMemo.Do(key, func() parentInfo {
+		var pi parentInfo
+		parent, pbond, pname, err := coreParent(s, o)
+		if err != nil {
+			pi.err = err
+		} else if ps, err := describe.DescribeMolecule(parent, ""); err != nil || len(ps.Olefins) == 0 {
+			pi.err = fmt.Errorf("parent: %v", err)
+		} else {
+			for _, x := range ps.Olefins {
+				if x.Bond == pbond {
+					pi.o = x
+				}
+			}
+			pi.s, pi.name = ps, pname
+			if pi.o == nil {
+				pi.err = fmt.Errorf("parent olefin not found")
 			}
 		}
-		pi.s, pi.name = ps, pname
-		if pi.o == nil {
-			pi.err = fmt.Errorf("parent olefin not found")
-		}
-	}
-	parentMemo.Put(key, pi)
-	parentCoreMemo.Put(coreKey, pi)
-	return pi
+		return pi
+	})
 }
 
 // exclusionKey is the constitution key of s when s could be one of the structures whose

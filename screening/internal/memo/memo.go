@@ -41,6 +41,17 @@ func (c *Memo[V]) Put(k string, v V) {
 	c.m.Load().Store(k, v)
 }
 
+// Do returns the value stored under k, computing it with fn and storing it first when there is
+// none (two callers may both compute a missing value; the values are equal by contract).
+func (c *Memo[V]) Do(k string, fn func() V) V {
+	if v, ok := c.Get(k); ok {
+		return v
+	}
+	v := fn()
+	c.Put(k, v)
+	return v
+}
+
 // Reset empties the cache (benchmarks of cold starts).
 func (c *Memo[V]) Reset() {
 	c.m.Store(&sync.Map{})
