@@ -6,6 +6,7 @@ import (
 	"io"
 	"os"
 	"runtime/pprof"
+	"runtime/trace"
 
 	"github.com/spf13/cobra"
 )
@@ -19,25 +20,28 @@ func run(ctx context.Context, args []string, getenv func(string) string, stdin i
 		SilenceUsage:  true,
 		SilenceErrors: true,
 	}
-	// --cpu-profile writes a CPU profile of the whole command (for the speed work: go tool pprof)
-	var profile string
-	var profFile *os.File
+	// --cpu-profile writes a CPU profile of the whole command and --exec-trace an execution
+	// trace (for the speed work: go tool pprof, go tool trace)
+	var profile, traceOut string
+	var profFile, traceFile *os.File
 	root.PersistentFlags().StringVar(&profile, "cpu-profile", "", "write a CPU profile of the command to this file (go tool pprof reads it)")
+	root.PersistentFlags().StringVar(&traceOut, "exec-trace", "", "write an execution trace of the command to this file (go tool trace reads it)")
 	root.PersistentPreRunE = func(cmd *cobra.Command, _ []string) error {
-		if profile == "" {
-			return nil
+		var err error
+		if profFile, err = startRecording(profile, "cpu profile", pprof.StartCPUProfile); err != nil {
+			return err
 		}
-		f, err := os.Create(profile)
-		if err != nil {
-			return fmt.Errorf("cpu profile: %w", err)
-		}
-		profFile = f
-		return pprof.StartCPUProfile(f)
+		traceFile, err = startRecording(traceOut, "execution trace", trace.Start)
+		return err
 	}
 	defer func() {
 		if profFile != nil {
 			pprof.StopCPUProfile()
 			profFile.Close()
+		}
+		if traceFile != nil {
+			trace.Stop()
+			traceFile.Close()
 		}
 	}()
 	root.SetArgs(args)
@@ -46,4 +50,21 @@ func run(ctx context.Context, args []string, getenv func(string) string, stdin i
 	root.SetErr(stderr)
 	root.AddCommand(serveCmd(getenv), workerCmd(getenv), screenCmd(), keysCmd(getenv), submitCmd(getenv), forcefieldCmd(), planCmd(), depictCmd())
 	return root.ExecuteContext(ctx)
+}
+
+// startRecording creates path and starts a recorder writing to it (nothing when path is
+// empty); what names the recording in errors.
+func startRecording(path, what string, start func(io.Writer) error) (*os.File, error) {
+	if path == "" {
+		return nil, nil
+	}
+	f, err := os.Create(path)
+	if err != nil {
+		return nil, fmt.Errorf("%s: %w", what, err)
+	}
+	if err := start(f); err != nil {
+		f.Close()
+		return nil, fmt.Errorf("%s: %w", what, err)
+	}
+	return f, nil
 }

@@ -4,6 +4,7 @@ import (
 	"bytes"
 	"context"
 	"encoding/json"
+	"fmt"
 	"io"
 	"log/slog"
 	"mime/multipart"
@@ -676,5 +677,56 @@ func TestScreenResponseBytes(t *testing.T) {
 		if ct := r.header.Get("Content-Type"); ct != "application/json; charset=utf-8" {
 			t.Errorf("content type %q", ct)
 		}
+	}
+}
+
+// TestLargeUploadScreenedAsItArrives: an upload's chunks are screened while the rest of the
+// file is stored; the job answers queued, finishes with every item, and an upload refused
+// after chunks were committed (and perhaps screened) leaves nothing behind.
+func TestLargeUploadScreenedAsItArrives(t *testing.T) {
+	ts, s := newTestServer(t, Config{JobLimit: 6000})
+	var file strings.Builder
+	rings := []string{"C1=CCCC1", "C1=CC2CCC1C2", "C1=CCCCCCC1", "C1=CC2OC1CC2"}
+	line := func(i int) { fmt.Fprintf(&file, "%s mem-%05d\n", rings[i%len(rings)], i) }
+	for i := 0; i < 5000; i++ {
+		line(i)
+	}
+	r := upload(t, ts, "round-7.smi", file.String(), "thermo_method", "table")
+	var created JobCreated
+	r.json(t, &created)
+	if r.status != 202 || created.Status != "queued" || created.Total != 5000 {
+		t.Fatalf("upload: %d %s", r.status, r.body)
+	}
+	deadline := time.Now().Add(time.Minute)
+	for {
+		var st JobStatus
+		do(t, ts, "GET", created.StatusURL, "").json(t, &st)
+		if st.Status == "done" {
+			if st.Done != 5000 || st.Failed != 0 {
+				t.Fatalf("finished with %d done, %d failed", st.Done, st.Failed)
+			}
+			break
+		}
+		if time.Now().After(deadline) {
+			t.Fatalf("job not done: %+v", st)
+		}
+		time.Sleep(20 * time.Millisecond)
+	}
+	csv := do(t, ts, "GET", created.ResultsURL+"?format=csv", "")
+	if n := strings.Count(string(csv.body), "\n"); csv.status != 200 || n != 5001 {
+		t.Fatalf("CSV: %d, %d lines", csv.status, n)
+	}
+	// over the limit: the first chunk (4,096 items) is committed before the 6,001st item is read
+	for i := 5000; i < 6500; i++ {
+		line(i)
+	}
+	r = upload(t, ts, "round-8.smi", file.String(), "thermo_method", "table")
+	if r.status != 422 {
+		t.Fatalf("upload over the limit: %d %s", r.status, r.body)
+	}
+	var jobs, items int
+	s.store.DB().QueryRow(`SELECT (SELECT count(*) FROM jobs), (SELECT count(*) FROM job_items)`).Scan(&jobs, &items)
+	if jobs != 1 || items != 5000 {
+		t.Fatalf("after the refused upload: %d jobs, %d items stored, want the first job's 1 and 5000", jobs, items)
 	}
 }

@@ -25,7 +25,9 @@ import (
 
 // JobCreated is the 202 answer to a job submission.
 type JobCreated struct {
-	ID          string             `json:"id"`
+	ID string `json:"id"`
+	// Status is "queued": the job as accepted (the API contract's answer). An upload's first
+	// chunks may already be screened by then; GET status_url tells the progress.
 	Status      string             `json:"status"`
 	Total       int                `json:"total"`
 	InputErrors []batch.InputError `json:"input_errors"`
@@ -37,7 +39,7 @@ func jobCreated(j batch.Job, inErrs []batch.InputError) JobCreated {
 	if inErrs == nil {
 		inErrs = []batch.InputError{}
 	}
-	return JobCreated{ID: j.ID, Status: j.Status, Total: j.Total, InputErrors: inErrs,
+	return JobCreated{ID: j.ID, Status: batch.JobQueued, Total: j.Total, InputErrors: inErrs,
 		StatusURL: "/v1/jobs/" + j.ID, ResultsURL: "/v1/jobs/" + j.ID + "/results"}
 }
 
@@ -94,16 +96,21 @@ func (s *Server) createJob(c *gin.Context) {
 		fail(c, err)
 		return
 	}
-	if s.runner != nil {
-		s.runner.Notify()
-	}
+	s.notifyRunner()
 	c.Header("Location", "/v1/jobs/"+job.ID)
 	c.JSON(http.StatusAccepted, jobCreated(job, inErrs))
 }
 
-// storeJobBody stores a JSON batch or a multipart upload as a job. Upload items go to the
-// database as they are read (one transaction), so memory does not grow with the item count
-// beyond the raw request body.
+// notifyRunner wakes this server's job runner, when it works jobs.
+func (s *Server) notifyRunner() {
+	if s.runner != nil {
+		s.runner.Notify()
+	}
+}
+
+// storeJobBody stores a JSON batch or a multipart upload as a job. Items go to the database
+// as they are read (a JSON batch in one transaction, an upload a chunk at a time, screened as
+// it arrives), so memory does not grow with the item count beyond the raw request body.
 func (s *Server) storeJobBody(c *gin.Context, body []byte) (batch.Job, []batch.InputError, error) {
 	ctx := c.Request.Context()
 	ct, params, _ := mime.ParseMediaType(c.GetHeader("Content-Type"))
@@ -115,7 +122,7 @@ func (s *Server) storeJobBody(c *gin.Context, body []byte) (batch.Job, []batch.I
 	}
 	// items go to the database as they are decoded (one transaction); the conditions may come
 	// before or after them and are checked before the commit
-	job, err := s.store.CreateJob(ctx, 0, func(add func(data.JobInput) error) (data.JobMeta, error) {
+	job, err := s.store.CreateJob(ctx, data.JobSpec{}, func(add func(data.JobInput) error) (data.JobMeta, error) {
 		condIn, n, err := decodeBatch(body, s.cfg.JobLimit, func(limit int) string { return fmt.Sprintf("at most %d items per job", limit) },
 			func(i int, it BatchItem) error {
 				id := it.ID
@@ -179,8 +186,11 @@ func (s *Server) storeUpload(ctx context.Context, body []byte, boundary string) 
 	if err != nil {
 		return batch.Job{}, nil, err
 	}
+	// the conditions are known before the file is read: workers start on its first chunks
+	// while the rest is still being stored
 	var in *batch.Input
-	job, err := s.store.CreateJob(ctx, 0, func(add func(data.JobInput) error) (data.JobMeta, error) {
+	eff := batch.EffectiveConditions(cond)
+	job, err := s.store.CreateJob(ctx, data.JobSpec{Conditions: &eff, OnChunk: s.notifyRunner}, func(add func(data.JobInput) error) (data.JobMeta, error) {
 		mr := multipart.NewReader(bytes.NewReader(body), boundary)
 		for {
 			part, err := mr.NextPart()
@@ -207,7 +217,7 @@ func (s *Server) storeUpload(ctx context.Context, body []byte, boundary string) 
 				}
 				return data.JobMeta{}, &screening.FieldError{Field: "file", Msg: msg}
 			}
-			return data.JobMeta{Conditions: batch.EffectiveConditions(cond), ExtraColumns: in.ExtraColumns, Format: in.Format}, nil
+			return data.JobMeta{ExtraColumns: in.ExtraColumns, Format: in.Format}, nil
 		}
 	})
 	if err != nil {

@@ -147,6 +147,11 @@ func (s *Server) housekeeping(ctx context.Context) {
 			if _, err := s.store.PurgeIdempotency(ctx); err != nil && ctx.Err() == nil {
 				s.log.Warn("purge idempotency records", "err", err)
 			}
+			if n, err := s.store.PurgeAbandonedLoads(ctx); err != nil && ctx.Err() == nil {
+				s.log.Warn("purge abandoned job uploads", "err", err)
+			} else if n > 0 {
+				s.log.Warn("purged job uploads a process left unfinished", "jobs", n)
+			}
 			lastPurge = time.Now()
 		}
 		select {

@@ -41,7 +41,7 @@ func BenchmarkRunnerSQLite(b *testing.B) {
 		if err != nil {
 			b.Fatal(err)
 		}
-		job, err := st.CreateJob(ctx, 0, func(add func(JobInput) error) (JobMeta, error) {
+		job, err := st.CreateJob(ctx, JobSpec{}, func(add func(JobInput) error) (JobMeta, error) {
 			for _, e := range corpus {
 				if err := add(JobInput{ItemID: e.ID, Source: batch.ItemSource{SMILES: e.SMILES}}); err != nil {
 					return JobMeta{}, err

@@ -23,9 +23,23 @@ type JobInput struct {
 
 // JobMeta is what a job's item producer reports once every item is read.
 type JobMeta struct {
-	Conditions   screening.ConditionsOut
-	ExtraColumns []string // carried-through CSV columns
-	Format       string   // input format (json, smiles, csv, sdf)
+	Conditions   screening.ConditionsOut // ignored when the JobSpec gave them
+	ExtraColumns []string                // carried-through CSV columns
+	Format       string                  // input format (json, smiles, csv, sdf)
+}
+
+// JobSpec is what is known of a job before its items are read.
+type JobSpec struct {
+	// ChunkSize is the number of items per chunk (≤ 0: ChunkSizeFor the job's method).
+	ChunkSize int
+	// Conditions, when known before the items (a file upload's form fields), let workers start
+	// on the first chunks while the rest are still being read: each chunk is committed as soon
+	// as it is full. Without them (a JSON batch, whose conditions may follow its items) the
+	// job is stored in one transaction.
+	Conditions *screening.ConditionsOut
+	// OnChunk, when set, is called after each chunk committed before the job is complete (to
+	// wake a runner of this process; PostgreSQL also announces it to other processes).
+	OnChunk func()
 }
 
 // DefaultChunkSize is the number of items a worker claims at a time in the fast tier (design
@@ -47,68 +61,241 @@ func ChunkSizeFor(method string) int {
 	return ForceFieldChunkSize
 }
 
-// CreateJob stores a job whose items are produced by fill, in one transaction: fill calls add
-// for each item as it is read and finally returns the job's conditions, extra columns and input
-// format. The items are split into chunks of chunkSize (≤ 0: ChunkSizeFor the job's method) that workers
-// claim. Nothing is stored when fill or any insert fails, and items never need to be held in
-// memory at once. An idempotency claim in ctx is recorded in the same transaction.
-func (s *Store) CreateJob(ctx context.Context, chunkSize int, fill func(add func(JobInput) error) (JobMeta, error)) (batch.Job, error) {
+// PurgeAbandonedLoads deletes jobs that have been loading for longer than AbandonedLoadAge
+// (their uploading process died) with their items, chunks and results, and returns how many.
+func (s *Store) PurgeAbandonedLoads(ctx context.Context) (int64, error) {
+	cutoff := time.Now().Add(-AbandonedLoadAge).UTC().Format(time.RFC3339Nano)
+	var n int64
+	err := s.tx(ctx, func(tx *sql.Tx) error {
+		res, err := s.exec(ctx, tx, `DELETE FROM jobs WHERE id IN (SELECT job_id FROM job_loading WHERE started_at < ?)`, cutoff)
+		if err != nil {
+			return err
+		}
+		n, err = res.RowsAffected()
+		return err
+	})
+	return n, err
+}
+
+// AbandonedLoadAge is how long a job may stay loading before PurgeAbandonedLoads deletes it
+// (design choice: far beyond any request's time limit, so only the load of a process that
+// died is purged).
+const AbandonedLoadAge = time.Hour
+
+// CreateJob stores a job whose items are produced by fill: fill calls add for each item as it
+// is read and finally returns the job's extra columns and input format (and its conditions
+// when the spec has none). Items are split into chunks of the spec's size that workers claim,
+// and never need to be held in memory at once. An idempotency claim in ctx is recorded with
+// the job's last write.
+//
+// With the conditions in the spec, each chunk is committed as it fills and workers screen it
+// while later items are still being read; until the last item is stored the job is marked
+// loading: GetJob does not find it and it cannot finish. Without them everything is one
+// transaction. Either way, when fill or a write fails nothing of the job is left: a partly
+// loaded job is deleted with whatever was screened of it (and one whose process died is
+// deleted when an SQLite store is opened again, or by PurgeAbandonedLoads).
+func (s *Store) CreateJob(ctx context.Context, spec JobSpec, fill func(add func(JobInput) error) (JobMeta, error)) (batch.Job, error) {
 	j := batch.Job{ID: newID("job_"), Status: batch.JobQueued}
 	ts := now()
-	err := s.tx(ctx, func(tx *sql.Tx) error {
-		// the job row first (invisible to workers until commit), completed after the items
-		if _, err := s.exec(ctx, tx, `INSERT INTO jobs (id, status, conditions, total, source_format, created_at) VALUES (?, 'queued', '{}', 0, '', ?)`, j.ID, ts); err != nil {
-			return err
-		}
-		ins := newBulkInsert(s, tx, `INSERT INTO job_items (job_id, seq, item_id, line, source, extra) VALUES `, 6, ``)
-		n := 0
-		add := func(it JobInput) error {
-			if err := insertItem(ctx, ins, j.ID, n, it); err != nil {
+	var err error
+	if spec.Conditions == nil {
+		err = s.tx(ctx, func(tx *sql.Tx) error {
+			l := &jobLoad{s: s, ctx: ctx, job: &j, ts: ts, spec: spec}
+			l.begin(tx)
+			if err := l.insertJob(nil); err != nil {
 				return err
 			}
-			n++
-			return nil
-		}
-		meta, err := fill(add)
-		if err != nil {
-			return err
-		}
-		if err := ins.flush(ctx); err != nil {
-			return err
-		}
-		if err := s.notifyJob(ctx, tx, "new:"+j.ID); err != nil {
-			return err
-		}
-		if meta.ExtraColumns == nil {
-			meta.ExtraColumns = []string{}
-		}
-		ec, err := json.Marshal(meta.ExtraColumns)
-		if err != nil {
-			return err
-		}
-		cj, err := json.Marshal(meta.Conditions)
-		if err != nil {
-			return err
-		}
-		j.Conditions, j.ExtraColumns, j.SourceFormat, j.Total = meta.Conditions, meta.ExtraColumns, meta.Format, n
-		if _, err := s.exec(ctx, tx, `UPDATE jobs SET conditions = ?, total = ?, extra_columns = ?, source_format = ? WHERE id = ?`,
-			string(cj), n, string(ec), meta.Format, j.ID); err != nil {
-			return err
-		}
-		size := chunkSize
-		if size <= 0 {
-			size = ChunkSizeFor(meta.Conditions.ThermoMethod)
-		}
-		if err := s.insertChunks(ctx, tx, j.ID, n, size); err != nil {
-			return err
-		}
-		return s.claimIdempotency(ctx, tx, j.ID)
-	})
+			meta, err := fill(l.add)
+			if err != nil {
+				return err
+			}
+			return l.finish(meta)
+		})
+	} else {
+		err = s.createJobStreaming(ctx, &j, ts, spec, fill)
+	}
 	if err != nil {
 		return batch.Job{}, fmt.Errorf("create job: %w", err)
 	}
 	j.CreatedAt = parseTime(ts)
 	return j, nil
+}
+
+// createJobStreaming is CreateJob with the conditions known: the job row and its loading mark
+// first, then one transaction per full chunk, then the rest and the job's completion.
+func (s *Store) createJobStreaming(ctx context.Context, j *batch.Job, ts string, spec JobSpec, fill func(add func(JobInput) error) (JobMeta, error)) error {
+	l := &jobLoad{s: s, ctx: ctx, job: j, ts: ts, spec: spec}
+	if err := s.tx(ctx, func(tx *sql.Tx) error {
+		l.begin(tx)
+		if err := l.insertJob(spec.Conditions); err != nil {
+			return err
+		}
+		_, err := s.exec(ctx, tx, `INSERT INTO job_loading (job_id, started_at) VALUES (?, ?)`, j.ID, ts)
+		return err
+	}); err != nil {
+		return err
+	}
+	size := spec.ChunkSize
+	if size <= 0 {
+		size = ChunkSizeFor(spec.Conditions.ThermoMethod)
+	}
+	var end func(error) error // the open transaction's
+	open := func() error {
+		tx, e, err := s.beginTx(ctx)
+		if err != nil {
+			return err
+		}
+		l.begin(tx)
+		end = e
+		return nil
+	}
+	add := func(it JobInput) error {
+		if end == nil {
+			if err := open(); err != nil {
+				return err
+			}
+		}
+		if err := l.add(it); err != nil {
+			return err
+		}
+		if l.n-l.chunked < size {
+			return nil
+		}
+		err := l.commitChunks(size)
+		err, end = end(err), nil
+		if err == nil && spec.OnChunk != nil {
+			spec.OnChunk()
+		}
+		return err
+	}
+	meta, err := fill(add)
+	if err == nil && end == nil {
+		err = open()
+	}
+	if err == nil {
+		err, end = end(l.finish(meta)), nil
+	}
+	if err == nil {
+		return nil
+	}
+	if end != nil {
+		end(err) // rolls back
+	}
+	// what was committed of the job goes, with anything screened of it meanwhile
+	cleanup, cancel := context.WithTimeout(context.WithoutCancel(ctx), 10*time.Second)
+	defer cancel()
+	if derr := s.tx(cleanup, func(tx *sql.Tx) error {
+		_, err := s.exec(cleanup, tx, `DELETE FROM jobs WHERE id = ?`, j.ID)
+		return err
+	}); derr != nil {
+		return fmt.Errorf("%w (and removing the partly stored job: %v; it is deleted when the store next purges abandoned loads)", err, derr)
+	}
+	return err
+}
+
+// jobLoad writes one job's rows, in one transaction or in several (one at a time).
+type jobLoad struct {
+	s    *Store
+	ctx  context.Context
+	job  *batch.Job
+	ts   string
+	spec JobSpec
+	tx   *sql.Tx
+	ins  *bulkInsert
+	// n items stored so far, the first chunked of them in chunks numbered 0 … chunks−1
+	n, chunked, chunks int
+}
+
+// begin continues the load in transaction tx.
+func (l *jobLoad) begin(tx *sql.Tx) {
+	l.tx = tx
+	l.ins = newBulkInsert(l.s, tx, `INSERT INTO job_items (job_id, seq, item_id, line, source, extra) VALUES `, 6, ``)
+}
+
+// insertJob inserts the job row: with its conditions when known, else completed by finish.
+func (l *jobLoad) insertJob(cond *screening.ConditionsOut) error {
+	cj := []byte("{}")
+	if cond != nil {
+		var err error
+		if cj, err = json.Marshal(*cond); err != nil {
+			return err
+		}
+	}
+	_, err := l.s.exec(l.ctx, l.tx, `INSERT INTO jobs (id, status, conditions, total, source_format, created_at) VALUES (?, 'queued', ?, 0, '', ?)`, l.job.ID, string(cj), l.ts)
+	return err
+}
+
+func (l *jobLoad) add(it JobInput) error {
+	if err := insertItem(l.ctx, l.ins, l.job.ID, l.n, it); err != nil {
+		return err
+	}
+	l.n++
+	return nil
+}
+
+// commitChunks writes the gathered items and the chunk rows of size that cover them (a last
+// short one included when size covers the rest) and announces them.
+func (l *jobLoad) commitChunks(size int) error {
+	if err := l.ins.flush(l.ctx); err != nil {
+		return err
+	}
+	for l.chunked < l.n {
+		last := min(l.chunked+size, l.n) - 1
+		if _, err := l.s.exec(l.ctx, l.tx, `INSERT INTO job_chunks (job_id, chunk_no, first_seq, last_seq) VALUES (?, ?, ?, ?)`, l.job.ID, l.chunks, l.chunked, last); err != nil {
+			return fmt.Errorf("insert chunk: %w", err)
+		}
+		l.chunks++
+		l.chunked = last + 1
+	}
+	return l.s.notifyJob(l.ctx, l.tx, "new:"+l.job.ID)
+}
+
+// finish stores the last items and chunks and completes the job row: its conditions (when not
+// given before), total, extra columns and format; it clears the loading mark, finishes the job
+// when workers already screened every chunk, and records the idempotency claim.
+func (l *jobLoad) finish(meta JobMeta) error {
+	ctx, tx, j := l.ctx, l.tx, l.job
+	if meta.ExtraColumns == nil {
+		meta.ExtraColumns = []string{}
+	}
+	if l.spec.Conditions != nil {
+		meta.Conditions = *l.spec.Conditions
+	}
+	ec, err := json.Marshal(meta.ExtraColumns)
+	if err != nil {
+		return err
+	}
+	cj, err := json.Marshal(meta.Conditions)
+	if err != nil {
+		return err
+	}
+	j.Conditions, j.ExtraColumns, j.SourceFormat, j.Total = meta.Conditions, meta.ExtraColumns, meta.Format, l.n
+	// the job row first: on PostgreSQL this waits for a chunk's result write in progress, so the
+	// check below sees its chunk done
+	if _, err := l.s.exec(ctx, tx, `UPDATE jobs SET conditions = ?, total = ?, extra_columns = ?, source_format = ? WHERE id = ?`,
+		string(cj), l.n, string(ec), meta.Format, j.ID); err != nil {
+		return err
+	}
+	size := l.spec.ChunkSize
+	if size <= 0 {
+		size = ChunkSizeFor(meta.Conditions.ThermoMethod)
+	}
+	if err := l.commitChunks(size); err != nil {
+		return err
+	}
+	if _, err := l.s.exec(ctx, tx, `DELETE FROM job_loading WHERE job_id = ?`, j.ID); err != nil {
+		return err
+	}
+	if l.spec.Conditions != nil {
+		if _, err := l.s.exec(ctx, tx, `UPDATE jobs SET status = 'done', finished_at = ? WHERE id = ? AND status = 'running'
+			AND NOT EXISTS (SELECT 1 FROM job_chunks WHERE job_id = ? AND state != 'done')`, now(), j.ID, j.ID); err != nil {
+			return err
+		}
+		if err := l.s.queryRow(ctx, tx, `SELECT status FROM jobs WHERE id = ?`, j.ID).Scan(&j.Status); err != nil {
+			return err
+		}
+	}
+	return l.s.claimIdempotency(ctx, tx, j.ID)
 }
 
 // insertItem encodes one job item and adds it to the bulk insert.
@@ -142,17 +329,6 @@ func encodeSource(s batch.ItemSource) ([]byte, error) {
 	return append(b, '}'), nil
 }
 
-// insertChunks splits items 0 … total−1 of a job into chunks of size.
-func (s *Store) insertChunks(ctx context.Context, tx *sql.Tx, jobID string, total, size int) error {
-	for no, first := 0, 0; first < total; no, first = no+1, first+size {
-		last := min(first+size, total) - 1
-		if _, err := s.exec(ctx, tx, `INSERT INTO job_chunks (job_id, chunk_no, first_seq, last_seq) VALUES (?, ?, ?, ?)`, jobID, no, first, last); err != nil {
-			return fmt.Errorf("insert chunk: %w", err)
-		}
-	}
-	return nil
-}
-
 const jobCols = `id, status, conditions, total, done, failed, source_format, extra_columns, error, created_at, started_at, finished_at`
 
 func scanJob(r rowScanner) (batch.Job, error) {
@@ -173,9 +349,9 @@ func scanJob(r rowScanner) (batch.Job, error) {
 	return j, nil
 }
 
-// GetJob returns a job or ErrNotFound.
+// GetJob returns a job or ErrNotFound (also while the job is still loading).
 func (s *Store) GetJob(ctx context.Context, id string) (batch.Job, error) {
-	j, err := scanJob(s.db.QueryRowContext(ctx, s.q(`SELECT `+jobCols+` FROM jobs WHERE id = ?`), id))
+	j, err := scanJob(s.db.QueryRowContext(ctx, s.q(`SELECT `+jobCols+` FROM jobs WHERE id = ? AND NOT EXISTS (SELECT 1 FROM job_loading l WHERE l.job_id = jobs.id)`), id))
 	if errors.Is(err, sql.ErrNoRows) {
 		return batch.Job{}, fmt.Errorf("job %q: %w", id, ErrNotFound)
 	}
@@ -433,8 +609,10 @@ func (s *Store) CompleteChunk(ctx context.Context, c batch.Chunk, outs []batch.O
 		if _, err := s.exec(ctx, tx, `UPDATE jobs SET done = done + ?, failed = failed + ? WHERE id = ?`, done, failed, c.JobID); err != nil {
 			return err
 		}
+		// a job still loading has more chunks to come: its load finishes it
 		if _, err := s.exec(ctx, tx, `UPDATE jobs SET status = 'done', finished_at = ? WHERE id = ? AND status = 'running'
-			AND NOT EXISTS (SELECT 1 FROM job_chunks WHERE job_id = ? AND state != 'done')`, now(), c.JobID, c.JobID); err != nil {
+			AND NOT EXISTS (SELECT 1 FROM job_chunks WHERE job_id = ? AND state != 'done')
+			AND NOT EXISTS (SELECT 1 FROM job_loading WHERE job_id = ?)`, now(), c.JobID, c.JobID, c.JobID); err != nil {
 			return err
 		}
 		return s.queryRow(ctx, tx, `SELECT status FROM jobs WHERE id = ?`, c.JobID).Scan(&status)

@@ -121,3 +121,14 @@ func legacyItemError(problem string) []byte {
 	b, _ := json.Marshal(e) // an ItemError always encodes
 	return b
 }
+
+// insertChunks splits items 0 … total−1 of a job into chunks of size.
+func (s *Store) insertChunks(ctx context.Context, tx *sql.Tx, jobID string, total, size int) error {
+	for no, first := 0, 0; first < total; no, first = no+1, first+size {
+		last := min(first+size, total) - 1
+		if _, err := s.exec(ctx, tx, `INSERT INTO job_chunks (job_id, chunk_no, first_seq, last_seq) VALUES (?, ?, ?, ?)`, jobID, no, first, last); err != nil {
+			return fmt.Errorf("insert chunk: %w", err)
+		}
+	}
+	return nil
+}

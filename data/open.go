@@ -82,6 +82,11 @@ func openSQLite(ctx context.Context, path string) (*Store, error) {
 		db.Close()
 		return nil, fmt.Errorf("open %s: release claims of an earlier process: %w", path, err)
 	}
+	// for the same reason a job still loading lost its upload: it goes, with what was screened
+	if _, err := db.ExecContext(ctx, `DELETE FROM jobs WHERE id IN (SELECT job_id FROM job_loading)`); err != nil {
+		db.Close()
+		return nil, fmt.Errorf("open %s: remove jobs whose upload an earlier process left unfinished: %w", path, err)
+	}
 	return s, nil
 }
 

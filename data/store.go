@@ -131,29 +131,46 @@ func (s *Store) tx(ctx context.Context, fn func(*sql.Tx) error) error {
 }
 
 func (s *Store) tx1(ctx context.Context, fn func(*sql.Tx) error) error {
+	t, end, err := s.beginTx(ctx)
+	if err != nil {
+		return err
+	}
+	return end(fn(t))
+}
+
+// beginTx begins a write transaction (on SQLite after taking this process's write slot). end
+// finishes it: it commits when given nil and rolls back otherwise, gives the slot back, and
+// returns the error to report (storage faults wrap ErrUnavailable, as for tx).
+func (s *Store) beginTx(ctx context.Context) (*sql.Tx, func(error) error, error) {
+	release := func() {}
 	if s.writeSlot != nil {
 		select {
 		case s.writeSlot <- struct{}{}:
-			defer func() { <-s.writeSlot }()
+			release = func() { <-s.writeSlot }
 		case <-ctx.Done():
-			return ctx.Err()
+			return nil, nil, ctx.Err()
 		}
 	}
 	t, err := s.db.BeginTx(ctx, nil)
 	if err != nil {
-		return s.fault(err)
+		release()
+		return nil, nil, s.fault(err)
 	}
-	if err := fn(t); err != nil {
-		if rb := t.Rollback(); rb != nil && !errors.Is(rb, sql.ErrTxDone) {
-			return s.fault(fmt.Errorf("%w (and rollback: %v)", err, rb))
+	end := func(err error) error {
+		defer release()
+		if err != nil {
+			if rb := t.Rollback(); rb != nil && !errors.Is(rb, sql.ErrTxDone) {
+				return s.fault(fmt.Errorf("%w (and rollback: %v)", err, rb))
+			}
+			return s.fault(err)
 		}
-		return s.fault(err)
+		if err := t.Commit(); err != nil {
+			return s.fault(err)
+		}
+		s.recovered()
+		return nil
 	}
-	if err := t.Commit(); err != nil {
-		return s.fault(err)
-	}
-	s.recovered()
-	return nil
+	return t, end, nil
 }
 
 // exec and queryRow run a ?-placeholder query in a transaction on the store's engine.

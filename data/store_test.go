@@ -8,6 +8,7 @@ import (
 	"fmt"
 	"os"
 	"path/filepath"
+	"strings"
 	"sync"
 	"testing"
 	"time"
@@ -55,6 +56,9 @@ var behaviour = []struct {
 	{"CancelKeepsResults", behaviourCancelKeepsResults},
 	{"RankedItems", behaviourRankedItems},
 	{"JobStreamRollsBack", behaviourJobStreamRollsBack},
+	{"UploadScreenedWhileLoading", behaviourUploadScreenedWhileLoading},
+	{"FailedLoadLeavesNothing", behaviourFailedLoadLeavesNothing},
+	{"AbandonedLoadPurged", behaviourAbandonedLoadPurged},
 	{"APIKeysAndIdempotency", behaviourAPIKeysAndIdempotency},
 	{"IdempotencyInTheWriteTransaction", behaviourIdempotencyInTheWriteTransaction},
 	{"ConcurrentWrites", behaviourConcurrentWrites},
@@ -182,7 +186,7 @@ func behaviourFailedWriteLeavesNothing(t *testing.T, e engine) {
 // newJob stores a job of n items (sources as given, cycled) in chunks of size.
 func newJob(t *testing.T, s *Store, size int, sources ...string) batch.Job {
 	t.Helper()
-	j, err := s.CreateJob(context.Background(), size, func(add func(JobInput) error) (JobMeta, error) {
+	j, err := s.CreateJob(context.Background(), JobSpec{ChunkSize: size}, func(add func(JobInput) error) (JobMeta, error) {
 		for i, smi := range sources {
 			if err := add(JobInput{ItemID: fmt.Sprint("item-", i), Source: batch.ItemSource{SMILES: smi}}); err != nil {
 				return JobMeta{}, err
@@ -327,7 +331,7 @@ func behaviourRankedItems(t *testing.T, e engine) {
 func behaviourJobStreamRollsBack(t *testing.T, e engine) {
 	ctx := context.Background()
 	s, _ := e.open(t)
-	_, err := s.CreateJob(ctx, 0, func(add func(JobInput) error) (JobMeta, error) {
+	_, err := s.CreateJob(ctx, JobSpec{}, func(add func(JobInput) error) (JobMeta, error) {
 		add(JobInput{ItemID: "a"})
 		return JobMeta{}, errors.New("bad row")
 	})
@@ -338,6 +342,178 @@ func behaviourJobStreamRollsBack(t *testing.T, e engine) {
 	s.DB().QueryRow(s.q(`SELECT (SELECT count(*) FROM jobs) + (SELECT count(*) FROM job_items) + (SELECT count(*) FROM job_chunks)`)).Scan(&n)
 	if n != 0 {
 		t.Fatalf("%d rows left behind", n)
+	}
+}
+
+// streamSpec is a JobSpec with the conditions known before the items (a file upload).
+func streamSpec(size int, onChunk func()) JobSpec {
+	c := batch.EffectiveConditions(screening.DefaultConditions())
+	return JobSpec{ChunkSize: size, Conditions: &c, OnChunk: onChunk}
+}
+
+// jobRowCount counts the rows of job jobID in every job table.
+func jobRowCount(t *testing.T, s *Store, jobID string) int {
+	t.Helper()
+	var n int
+	if err := s.DB().QueryRow(s.q(`SELECT (SELECT count(*) FROM jobs WHERE id = ?) + (SELECT count(*) FROM job_items WHERE job_id = ?)
+		+ (SELECT count(*) FROM job_chunks WHERE job_id = ?) + (SELECT count(*) FROM job_results WHERE job_id = ?)
+		+ (SELECT count(*) FROM job_loading WHERE job_id = ?)`), jobID, jobID, jobID, jobID, jobID).Scan(&n); err != nil {
+		t.Fatal(err)
+	}
+	return n
+}
+
+// TestUploadScreenedWhileLoading: with the conditions known, each full chunk can be claimed
+// and completed while later items are still being read; the job stays hidden and unfinished
+// until its load ends, and the load finishes it when every chunk is already done.
+func behaviourUploadScreenedWhileLoading(t *testing.T, e engine) {
+	ctx := context.Background()
+	s, _ := e.open(t)
+	announced := 0
+	var during []int
+	j, err := s.CreateJob(ctx, streamSpec(2, func() { announced++ }), func(add func(JobInput) error) (JobMeta, error) {
+		for i, smi := range []string{"C1=CCCC1", "C1=CC2CCC1C2", "C1=CCCCCCC1", "C1=CC2OC1C=C2", "C1=CCC=CCC1"} {
+			if err := add(JobInput{ItemID: fmt.Sprint("item-", i), Line: i + 1, Source: batch.ItemSource{SMILES: smi}}); err != nil {
+				return JobMeta{}, err
+			}
+			if i != 1 && i != 3 {
+				continue
+			}
+			// a chunk has just filled: a worker takes it and stores its outcomes now
+			c, err := s.ClaimChunk(ctx, "early", time.Minute)
+			if err != nil {
+				return JobMeta{}, fmt.Errorf("chunk not claimable while loading: %w", err)
+			}
+			items, err := s.ChunkItems(ctx, c)
+			if err != nil {
+				return JobMeta{}, err
+			}
+			st, err := s.CompleteChunk(ctx, c, outcomes(items))
+			if err != nil {
+				return JobMeta{}, err
+			}
+			if st == batch.JobDone {
+				return JobMeta{}, fmt.Errorf("job finished with items still to come")
+			}
+			during = append(during, c.No)
+			if _, err := s.GetJob(ctx, c.JobID); !errors.Is(err, ErrNotFound) {
+				return JobMeta{}, fmt.Errorf("a loading job is visible: %v", err)
+			}
+		}
+		return JobMeta{ExtraColumns: []string{"supplier"}, Format: "smiles"}, nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	if fmt.Sprint(during) != "[0 1]" || announced != 2 {
+		t.Fatalf("chunks worked while loading %v, announced %d; want [0 1] and 2", during, announced)
+	}
+	got, err := s.GetJob(ctx, j.ID)
+	if err != nil || got.Total != 5 || got.Status != batch.JobRunning || got.SourceFormat != "smiles" || fmt.Sprint(got.ExtraColumns) != "[supplier]" {
+		t.Fatalf("job after its load: %+v %v", got, err)
+	}
+	// the last (short) chunk ends the job
+	c, err := s.ClaimChunk(ctx, "late", time.Minute)
+	if err != nil || c.No != 2 || c.FirstSeq != 4 || c.LastSeq != 4 {
+		t.Fatalf("last chunk %+v %v", c, err)
+	}
+	items, _ := s.ChunkItems(ctx, c)
+	if st, err := s.CompleteChunk(ctx, c, outcomes(items)); err != nil || st != batch.JobDone {
+		t.Fatalf("after the last chunk: %s %v", st, err)
+	}
+	// every chunk done before the load ends: the load itself finishes the job
+	j2, err := s.CreateJob(ctx, streamSpec(1, nil), func(add func(JobInput) error) (JobMeta, error) {
+		if err := add(JobInput{ItemID: "only", Source: batch.ItemSource{SMILES: "C1=CCCC1"}}); err != nil {
+			return JobMeta{}, err
+		}
+		c, err := s.ClaimChunk(ctx, "early", time.Minute)
+		if err != nil {
+			return JobMeta{}, err
+		}
+		items, _ := s.ChunkItems(ctx, c)
+		_, err = s.CompleteChunk(ctx, c, outcomes(items))
+		return JobMeta{Format: "smiles"}, err
+	})
+	if err != nil || j2.Status != batch.JobDone {
+		t.Fatalf("a job screened whole during its load: %+v %v", j2, err)
+	}
+	if got, err := s.GetJob(ctx, j2.ID); err != nil || got.Status != batch.JobDone || got.Done != 1 || got.FinishedAt == nil {
+		t.Fatalf("stored %+v %v", got, err)
+	}
+}
+
+// TestFailedLoadLeavesNothing: a load that fails after chunks were committed (and screened)
+// removes the job whole.
+func behaviourFailedLoadLeavesNothing(t *testing.T, e engine) {
+	ctx := context.Background()
+	s, _ := e.open(t)
+	var jobID string
+	_, err := s.CreateJob(ctx, streamSpec(2, nil), func(add func(JobInput) error) (JobMeta, error) {
+		for i := 0; i < 4; i++ {
+			if err := add(JobInput{ItemID: fmt.Sprint(i), Source: batch.ItemSource{SMILES: "C1=CCCC1"}}); err != nil {
+				return JobMeta{}, err
+			}
+		}
+		c, err := s.ClaimChunk(ctx, "early", time.Minute)
+		if err != nil {
+			return JobMeta{}, err
+		}
+		jobID = c.JobID
+		items, _ := s.ChunkItems(ctx, c)
+		if _, err := s.CompleteChunk(ctx, c, outcomes(items)); err != nil {
+			return JobMeta{}, err
+		}
+		// job, loading mark, four items, two chunks, two results
+		if n := jobRowCount(t, s, jobID); n != 1+1+4+2+2 {
+			return JobMeta{}, fmt.Errorf("%d rows committed while loading, want 10", n)
+		}
+		// one more item (in a transaction not committed yet), then the file turns out bad
+		if err := add(JobInput{ItemID: "4", Source: batch.ItemSource{SMILES: "C1=CCCC1"}}); err != nil {
+			return JobMeta{}, err
+		}
+		return JobMeta{}, errors.New("line 6: the file ends inside a record")
+	})
+	if err == nil || !strings.Contains(err.Error(), "line 6") {
+		t.Fatalf("error %v", err)
+	}
+	if n := jobRowCount(t, s, jobID); n != 0 {
+		t.Fatalf("%d rows of the failed load left behind", n)
+	}
+	if c, err := s.ClaimChunk(ctx, "late", time.Minute); !errors.Is(err, ErrNotFound) {
+		t.Fatalf("a chunk of the failed load is claimable: %+v %v", c, err)
+	}
+}
+
+// TestAbandonedLoadPurged: a load whose process died (its rows stay, marked loading) is
+// deleted once it is older than AbandonedLoadAge, and not before.
+func behaviourAbandonedLoadPurged(t *testing.T, e engine) {
+	ctx := context.Background()
+	s, _ := e.open(t)
+	keep := newJob(t, s, 2, "C1=CCCC1")
+	for _, age := range []time.Duration{time.Minute, 2 * AbandonedLoadAge} {
+		id := fmt.Sprint("job_abandoned_", int(age.Minutes()))
+		started := time.Now().Add(-age).UTC().Format(time.RFC3339Nano)
+		for _, q := range []string{
+			`INSERT INTO jobs (id, status, conditions, total, source_format, created_at) VALUES (?, 'running', '{}', 0, '', ?)`,
+			`INSERT INTO job_loading (job_id, started_at) VALUES (?, ?)`,
+		} {
+			if _, err := s.DB().Exec(s.q(q), id, started); err != nil {
+				t.Fatal(err)
+			}
+		}
+		if _, err := s.DB().Exec(s.q(`INSERT INTO job_chunks (job_id, chunk_no, first_seq, last_seq) VALUES (?, 0, 0, 0)`), id); err != nil {
+			t.Fatal(err)
+		}
+	}
+	n, err := s.PurgeAbandonedLoads(ctx)
+	if err != nil || n != 1 {
+		t.Fatalf("purged %d %v, want 1", n, err)
+	}
+	if jobRowCount(t, s, "job_abandoned_"+fmt.Sprint(int((2*AbandonedLoadAge).Minutes()))) != 0 || jobRowCount(t, s, "job_abandoned_1") != 3 {
+		t.Fatal("purged the wrong load")
+	}
+	if _, err := s.GetJob(ctx, keep.ID); err != nil {
+		t.Fatalf("a finished load was purged: %v", err)
 	}
 }
 
@@ -512,6 +688,39 @@ func TestSharedRateLimit(t *testing.T) {
 	time.Sleep(60 * time.Millisecond)
 	if ok, _ := b.TakeToken(ctx, "key_3", 50, 2); !ok {
 		t.Error("the bucket did not refill")
+	}
+}
+
+// TestRestartRemovesUnfinishedLoads: an SQLite store serves one process, so a job still loading
+// when it opens lost its upload with the process that crashed: it goes at once.
+func TestRestartRemovesUnfinishedLoads(t *testing.T) {
+	ctx := context.Background()
+	s, path := openTemp(t)
+	keep := newJob(t, s, 1, "C1=CCCC1")
+	var jobID string
+	crash := errors.New("crash")
+	_, err := s.CreateJob(ctx, streamSpec(1, nil), func(add func(JobInput) error) (JobMeta, error) {
+		if err := add(JobInput{ItemID: "a", Source: batch.ItemSource{SMILES: "C1=CCCC1"}}); err != nil {
+			return JobMeta{}, err
+		}
+		s.DB().QueryRow(`SELECT job_id FROM job_loading`).Scan(&jobID)
+		// the process dies here: the committed chunk stays behind, marked loading
+		s.Close()
+		return JobMeta{}, crash
+	})
+	if !errors.Is(err, crash) || jobID == "" {
+		t.Fatalf("load: %v (job %q)", err, jobID)
+	}
+	s2, err := Open(ctx, path)
+	if err != nil {
+		t.Fatal(err)
+	}
+	defer s2.Close()
+	if n := jobRowCount(t, s2, jobID); n != 0 {
+		t.Fatalf("%d rows of the unfinished load survive the restart", n)
+	}
+	if _, err := s2.GetJob(ctx, keep.ID); err != nil {
+		t.Fatalf("a complete job was removed: %v", err)
 	}
 }
 

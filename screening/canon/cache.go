@@ -10,10 +10,12 @@ import (
 )
 
 // WrittenSignature describes the subgraph of atoms (sorted, as in the molecule) exactly as
-// written: element, aromaticity, and the bonds among them with local numbers and orders, less
-// skip. Two molecules with the same signature have the same subgraph, so anything computed from
-// the subgraph alone can be cached under it. It is not canonical (another atom order gives
-// another signature), which only costs a cache miss.
+// written: element, aromaticity, charge, whether a boron, nitrogen or phosphorus atom has three
+// connections (bonds and hydrogens: what decides a pyrrole-type nitrogen when the subgraph is
+// perceived on its own), and the bonds among them with local numbers and orders, less skip.
+// Two molecules with the same signature have the same subgraph, so anything computed from the
+// subgraph alone can be cached under it. It is not canonical (another atom order gives another
+// signature), which only costs a cache miss.
 func WrittenSignature(m *mol.Molecule, r *rings.Rings, atoms []int, skip int, extra string) string {
 	sb := make([]byte, 0, 12*len(atoms)+len(extra))
 	// atoms is sorted: local numbers by binary search
@@ -25,6 +27,14 @@ func WrittenSignature(m *mol.Molecule, r *rings.Rings, atoms []int, skip int, ex
 		sb = strconv.AppendInt(sb, int64(m.Atoms[a].Z), 10)
 		if r.AromaticAtom[a] {
 			sb = append(sb, 'a')
+		}
+		at := &m.Atoms[a]
+		if at.Charge != 0 {
+			sb = append(sb, 'q')
+			sb = strconv.AppendInt(sb, int64(at.Charge), 10)
+		}
+		if (at.Z == 5 || at.Z == 7 || at.Z == 15) && m.Degree(a)+at.HCount == 3 {
+			sb = append(sb, 't')
 		}
 		sb = append(sb, ',')
 	}

@@ -89,3 +89,33 @@ func TestOrderIsCanonical(t *testing.T) {
 		}
 	}
 }
+
+// TestWrittenSignatureHoldsWhatSubgraphsDependOn: caches keyed by the written signature hold
+// what is computed from the subgraph perceived on its own, which reads charges and whether a
+// nitrogen has three connections (pyrrole type) besides the bonds: subgraphs written alike
+// that differ there get different signatures; a substituent outside the subgraph does not
+// change it (graph facts, common practice).
+func TestWrittenSignatureHoldsWhatSubgraphsDependOn(t *testing.T) {
+	sig := func(s string, atoms []int) string {
+		m, r, all := perceived(t, s)
+		if atoms == nil {
+			atoms = all
+		}
+		return canon.WrittenSignature(m, r, atoms, -1, "")
+	}
+	ring := []int{0, 1, 2, 3, 4, 5}
+	differ := [][2]string{
+		{"c1ccncc1", "c1cc[nH+]cc1"},          // pyridine and pyridinium: charge and connections
+		{"C1=CC2CC1C=C2", "C1=CC2CC1[C-]=C2"}, // a carbanion in the ring
+		{"C1=CN=CC=C1", "C1=C[NH+]=CC=C1"},    // non-aromatic writing of the same pair
+	}
+	for _, p := range differ {
+		if a, b := sig(p[0], nil), sig(p[1], nil); a == b {
+			t.Errorf("%s and %s share the signature %q", p[0], p[1], a)
+		}
+	}
+	// the ring of N-methyl- and N-H-pyrrolidine written alike: three connections either way
+	if a, b := sig("C1CCCN1C", ring[:5]), sig("C1CCCN1[H]", ring[:5]); a != b {
+		t.Errorf("a substituent outside the ring changed its signature: %q %q", a, b)
+	}
+}
