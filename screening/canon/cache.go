@@ -17,7 +17,9 @@ import (
 // subgraph alone can be cached under it. It is not canonical (another atom order gives another
 // signature), which only costs a cache miss.
 func WrittenSignature(m *mol.Molecule, r *rings.Rings, atoms []int, skip int, extra string) string {
-	sb := make([]byte, 0, 12*len(atoms)+len(extra))
+	// built on the stack when it fits (the common case); only the string is allocated
+	var stack [512]byte
+	sb := stack[:0]
 	// atoms is sorted: local numbers by binary search
 	local := func(a int) (int, bool) {
 		i := sort.SearchInts(atoms, a)

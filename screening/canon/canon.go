@@ -5,6 +5,8 @@ package canon
 
 import (
 	"bytes"
+	"cmp"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -150,7 +152,7 @@ func (g *subgraph) refine(col []int) []int {
 		for i := range idx {
 			idx[i] = i
 		}
-		sort.Slice(idx, func(a, b int) bool { return bytes.Compare(sig(idx[a]), sig(idx[b])) < 0 })
+		slices.SortFunc(idx, func(a, b int) int { return bytes.Compare(sig(a), sig(b)) })
 		rank := 0
 		for k, i := range idx {
 			if k > 0 && !bytes.Equal(sig(i), sig(idx[k-1])) {
@@ -287,7 +289,7 @@ func (g *subgraph) write(rank []int) string {
 	for i := range order {
 		order[i] = i
 	}
-	sort.Slice(order, func(a, b int) bool { return rank[order[a]] < rank[order[b]] })
+	slices.SortFunc(order, func(a, b int) int { return cmp.Compare(rank[a], rank[b]) })
 	visited := make([]bool, n)
 	var sb strings.Builder
 	bondSym := func(o int) string {
@@ -403,7 +405,7 @@ func ringDigit(d int) string {
 
 func (g *subgraph) sortedNbrs(a int, rank []int) []int {
 	nb := append([]int(nil), g.nbr[a]...)
-	sort.Slice(nb, func(x, y int) bool { return rank[nb[x]] < rank[nb[y]] })
+	slices.SortFunc(nb, func(x, y int) int { return cmp.Compare(rank[x], rank[y]) })
 	return nb
 }
 

@@ -1,8 +1,10 @@
 package describe
 
 import (
+	"cmp"
 	"errors"
 	"fmt"
+	"slices"
 	"sort"
 	"strings"
 	"sync"
@@ -138,7 +140,7 @@ func DescribeMolecule(m *mol.Molecule, text string) (*Structure, error) {
 			}
 			return 3
 		}
-		sort.SliceStable(ringOlefins, func(i, j int) bool { return pref(ringOlefins[i]) < pref(ringOlefins[j]) })
+		slices.SortStableFunc(ringOlefins, func(a, b int) int { return cmp.Compare(pref(a), pref(b)) })
 		s.Skipped = len(ringOlefins) - MaxOlefinsAnalysed
 		ringOlefins = ringOlefins[:MaxOlefinsAnalysed]
 	}

@@ -1,7 +1,8 @@
 package judge
 
 import (
-	"sort"
+	"cmp"
+	"slices"
 	"strings"
 
 	"ringsieve/screening/describe"
@@ -161,6 +162,6 @@ func compatibilityFor(groups []string) []Compatibility {
 		}
 		out = append(out, cp)
 	}
-	sort.SliceStable(out, func(i, j int) bool { return statusRank[out[i].Status] < statusRank[out[j].Status] })
+	slices.SortStableFunc(out, func(a, b Compatibility) int { return cmp.Compare(statusRank[a.Status], statusRank[b.Status]) })
 	return out
 }

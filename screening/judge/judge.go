@@ -158,7 +158,7 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 	if th.CeilingTempExtrapolated {
 		v := *th.CeilingTempK
 		r.Reasons = append(r.Reasons, Reason{Code: "ceiling_temp_extrapolated", Effect: EffectNote, Value: &v, Unit: "K",
-			Detail: fmt.Sprintf("T_c = %.0f K lies far outside any measured ceiling temperature (200–500 K): a formal number, read it as \"no ceiling in practice\" or \"never above\"", v)})
+			Detail: "T_c = " + fixed(v, 0) + " K lies far outside any measured ceiling temperature (200–500 K): a formal number, read it as \"no ceiling in practice\" or \"never above\""})
 	}
 	r.Thermo = &th
 	r.Reasons = append(r.Reasons, strainReasons(d, *e)...)
@@ -185,9 +185,9 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 			Detail: fmt.Sprintf("entropy-driven ring–chain equilibrium: %.3g mol/L is above the critical concentration %.3g mol/L, so %.0f%% of the monomer units can go into chains (model estimate)", float64(c.Conc), v, 100*conv)})
 	case th.DGkJmol >= 0:
 		v := th.DGkJmol
-		det := fmt.Sprintf("ΔG_p = %+.1f kJ/mol at %.1f °C and %.3g mol/L: the monomer is favoured over polymer", th.DGkJmol, c.Temp.Celsius(), float64(c.Conc))
+		det := "ΔG_p = " + signed(th.DGkJmol, 1) + " kJ/mol at " + fixed(c.Temp.Celsius(), 1) + " °C and " + strconv.FormatFloat(float64(c.Conc), 'g', 3, 64) + " mol/L: the monomer is favoured over polymer"
 		if th.CeilingTempK != nil {
-			det += fmt.Sprintf(" (ceiling temperature %.0f K at this concentration)", *th.CeilingTempK)
+			det += " (ceiling temperature " + fixed(*th.CeilingTempK, 0) + " K at this concentration)"
 		}
 		r.Reasons = append(r.Reasons, Reason{Code: "above_ceiling_temperature", Effect: EffectPenalizes, Value: &v, Unit: "kJ/mol", Detail: det})
 	case conv < PolymerizesConversion:
@@ -202,7 +202,7 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 	if uG > 0 && math.Abs(th.DGkJmol) < uG && !ringChain {
 		v := uG
 		r.Reasons = append(r.Reasons, Reason{Code: "verdict_near_boundary", Effect: EffectNote, Value: &v, Unit: "kJ/mol",
-			Detail: fmt.Sprintf("|ΔG_p| = %.1f kJ/mol is within its uncertainty (±%.1f kJ/mol): the ceiling temperature lies within the uncertainty band of the working temperature; treat the verdict as uncertain", math.Abs(th.DGkJmol), uG)})
+			Detail: "|ΔG_p| = " + fixed(math.Abs(th.DGkJmol), 1) + " kJ/mol is within its uncertainty (±" + fixed(uG, 1) + " kJ/mol): the ceiling temperature lies within the uncertainty band of the working temperature; treat the verdict as uncertain"})
 	}
 	// verdict
 	blocked := false
@@ -340,4 +340,17 @@ func MoreReactive(a, b *Result) bool {
 func OutOf(c units.Conditions) ConditionsOut {
 	return ConditionsOut{TemperatureC: round(c.Temp.Celsius(), 4), TemperatureK: float64(c.Temp),
 		MonomerConcMolL: float64(c.Conc), Bulk: c.Bulk, Catalyst: string(c.Catalyst), ThermoMethod: string(thermoMethodOrAuto(c.ThermoMethod))}
+}
+
+// fixed writes v with prec decimals, as fmt's %.<prec>f does (reason texts on the hot path are
+// built without fmt).
+func fixed(v float64, prec int) string { return strconv.FormatFloat(v, 'f', prec, 64) }
+
+// signed is fixed with a plus sign before a value that is not negative, as fmt's %+.<prec>f.
+func signed(v float64, prec int) string {
+	s := fixed(v, prec)
+	if s[0] != '-' && s[0] != '+' {
+		s = "+" + s
+	}
+	return s
 }
