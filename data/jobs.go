@@ -519,10 +519,23 @@ func (s *Store) ClaimChunk(ctx context.Context, owner string, lease time.Duratio
 }
 
 // ChunkItems implements batch.Store: the chunk's items that have no result yet.
+//
+// A chunk's results are stored with its completion, so a chunk still to work has none — except
+// chunks of jobs carried over from versions that stored results item by item. One probe of the
+// results index tells which case it is, and only the second pays for an anti-join per item.
 func (s *Store) ChunkItems(ctx context.Context, c batch.Chunk) ([]batch.Item, error) {
-	rows, err := s.db.QueryContext(ctx, s.q(`SELECT i.seq, i.item_id, i.line, i.source, i.extra FROM job_items i
+	var partly bool
+	if err := s.db.QueryRowContext(ctx, s.q(`SELECT EXISTS (SELECT 1 FROM job_results WHERE job_id = ? AND seq BETWEEN ? AND ?)`),
+		c.JobID, c.FirstSeq, c.LastSeq).Scan(&partly); err != nil {
+		return nil, err
+	}
+	q := `SELECT i.seq, i.item_id, i.line, i.source, i.extra FROM job_items i WHERE i.job_id = ? AND i.seq BETWEEN ? AND ? ORDER BY i.seq`
+	if partly {
+		q = `SELECT i.seq, i.item_id, i.line, i.source, i.extra FROM job_items i
 		WHERE i.job_id = ? AND i.seq BETWEEN ? AND ? AND NOT EXISTS (SELECT 1 FROM job_results r WHERE r.job_id = i.job_id AND r.seq = i.seq)
-		ORDER BY i.seq`), c.JobID, c.FirstSeq, c.LastSeq)
+		ORDER BY i.seq`
+	}
+	rows, err := s.db.QueryContext(ctx, s.q(q), c.JobID, c.FirstSeq, c.LastSeq)
 	if err != nil {
 		return nil, err
 	}
