@@ -38,18 +38,23 @@ func (s *Structure) MoleculeDescriptors() Descriptors {
 			}
 		}
 	}
+	formula, weight := m.FormulaOf(s.Main), m.MolWeightOf(s.Main)
+	recordFormula, recordWeight := formula, weight
+	if len(s.Main) != len(m.Atoms) { // counter-ions or other components: the record differs
+		recordFormula, recordWeight = m.Formula(), m.MolWeight()
+	}
 	return Descriptors{
 		FromStructure:       true,
 		SMILES:              s.MainSMILES,
-		Formula:             m.FormulaOf(s.Main),
-		MolWeightGmol:       Round(m.MolWeightOf(s.Main), 3),
+		Formula:             formula,
+		MolWeightGmol:       Round(weight, 3),
 		MonoisotopicMass:    Round(m.MonoMassOf(s.Main), 5),
 		HeavyAtoms:          heavy,
 		RingCount:           nr,
 		AromaticAtoms:       arom,
 		CounterIons:         s.CounterIons,
-		RecordFormula:       m.Formula(),
-		RecordMolWeightGmol: Round(m.MolWeight(), 3),
+		RecordFormula:       recordFormula,
+		RecordMolWeightGmol: Round(recordWeight, 3),
 	}
 }
 

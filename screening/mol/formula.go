@@ -35,13 +35,15 @@ func (m *Molecule) FormulaOf(atoms []int) string {
 		write("C", counts[6])
 		write("H", counts[1])
 		for _, z := range alphabeticalZ {
-			if z != 6 && z != 1 {
+			if counts[z] != 0 && z != 6 && z != 1 {
 				write(elements[z-1].Symbol, counts[z])
 			}
 		}
 	} else {
 		for _, z := range alphabeticalZ {
-			write(elements[z-1].Symbol, counts[z])
+			if counts[z] != 0 {
+				write(elements[z-1].Symbol, counts[z])
+			}
 		}
 	}
 	write("*", counts[0])

@@ -5,6 +5,7 @@ import (
 	"fmt"
 	"math"
 	"ringsieve/screening/internal/memo"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -388,7 +389,13 @@ var parentMemo = memo.New[parentInfo](20000)
 
 func parentOf(s *describe.Structure, o *describe.Olefin) parentInfo {
 	ca, cb := sort.SearchInts(o.CoreAtoms, o.A), sort.SearchInts(o.CoreAtoms, o.B)
-	key := canon.WrittenSignature(s.Mol, s.Rings, o.CoreAtoms, -1, "|olefin "+strconv.Itoa(ca)+"-"+strconv.Itoa(cb))
+	place := "|olefin " + strconv.Itoa(ca) + "-" + strconv.Itoa(cb)
+	var key string
+	if slices.Equal(o.CoreAtoms, o.SystemAtoms) && o.Signature != "" {
+		key = o.Signature + place // the core is the whole ring system, already signed
+	} else {
+		key = canon.WrittenSignature(s.Mol, s.Rings, o.CoreAtoms, -1, place)
+	}
 	return parentMemo.Do(key, func() parentInfo {
 		var pi parentInfo
 		parent, pbond, pname, err := coreParent(s, o)
