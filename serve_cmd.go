@@ -16,6 +16,7 @@ import (
 
 	"ringsieve/api"
 	"ringsieve/data"
+	"ringsieve/screening"
 )
 
 // Config is the service configuration: defaults, then environment, then flags.
@@ -138,6 +139,7 @@ func serve(ctx context.Context, cfg Config, logOut interface{ Write([]byte) (int
 		return err
 	}
 	defer store.Close()
+	screening.Warm() // the first request does not load the tables
 	srv := api.New(cfg.API, store, log)
 	workCtx, stopWork := context.WithCancel(context.Background())
 	defer stopWork()

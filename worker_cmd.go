@@ -18,6 +18,7 @@ import (
 	"github.com/spf13/cobra"
 
 	"ringsieve/data"
+	"ringsieve/screening"
 	"ringsieve/screening/batch"
 )
 
@@ -82,6 +83,7 @@ func newWorkerMetrics(name string) *workerMetrics {
 
 func work(ctx context.Context, cfg WorkerConfig, logOut interface{ Write([]byte) (int, error) }) error {
 	tuneGC()
+	screening.Warm()
 	if cfg.Name == "" {
 		host, _ := os.Hostname()
 		cfg.Name = fmt.Sprintf("%s-%d", host, os.Getpid())

@@ -137,6 +137,15 @@ func ScreenContext(ctx context.Context, src Source, c Conditions) (Result, error
 	}
 }
 
+// Warm loads the embedded tables a screening reads (ring table, measurements, calibration,
+// rule keys) by screening one structure in the table tier, so that a server's first request
+// does not pay for them (a few milliseconds). Safe to call more than once.
+func Warm() {
+	c := DefaultConditions()
+	c.ThermoMethod = units.ThermoTable
+	ScreenSMILES("C1=CC2CCC1C2", c) // norbornene
+}
+
 // ScreenSMILES screens a structure. Errors: *SMILESError for malformed SMILES; *FieldError when
 // bulk conditions cannot be estimated.
 func ScreenSMILES(text string, c Conditions) (Result, error) {

@@ -13,7 +13,7 @@ import (
 	"ringsieve/screening/describe"
 )
 
-var update = flag.Bool("update", false, "rewrite data/ff_measured.csv and the calibration golden file")
+var update = flag.Bool("update", false, "rewrite the generated data files (data/ff_measured.csv, data/precomputed.tsv) and the calibration golden file")
 
 // TestFFMeasuredIsCurrent recomputes the force-field strain difference of every measured
 // structure (data/measured.csv) against its parent and compares it with data/ff_measured.csv,

@@ -36,7 +36,7 @@ import (
 // offsets δH, δS the mean residuals over the measured values in data/condensed_fit.csv (their
 // sources are on each row); fitOffsets recomputes them and the tests check the result.
 
-//go:embed data/ring_table.csv data/condensed_fit.csv data/measured.csv data/ff_measured.csv
+//go:embed data/ring_table.csv data/condensed_fit.csv data/measured.csv data/ff_measured.csv data/precomputed.tsv
 var dataFS embed.FS
 
 // RingRow is one row of the ring-system strain table.
@@ -95,7 +95,7 @@ var (
 // Table returns the embedded ring-system table, loading it once. A load failure is a build
 // defect and panics at first use in tests; callers get the error from TableErr.
 func Table() *ringTable {
-	tableOnce.Do(func() { table, tableErr = loadTable() })
+	tableOnce.Do(func() { table, tableErr = loadTable(readPrecomputed()) })
 	if tableErr != nil {
 		panic(tableErr)
 	}
@@ -142,7 +142,9 @@ func optFloat(s string) (*float64, error) {
 	return &v, nil
 }
 
-func loadTable() (*ringTable, error) {
+// loadTable builds the table from the embedded CSV files; what pre holds (keys, fit estimates)
+// is taken from it instead of being computed (nil: compute everything).
+func loadTable(pre *precomputed) (*ringTable, error) {
 	recs, err := readCSV("data/ring_table.csv")
 	if err != nil {
 		return nil, err
@@ -183,42 +185,53 @@ func loadTable() (*ringTable, error) {
 				*dst = *v
 			}
 		}
-		m, err := smiles.Parse(row.SMILES)
-		if err != nil {
-			return nil, fmt.Errorf("ring_table.csv row %d (%s): %w", i, row.Name, err)
-		}
-		p := rings.Perceive(m)
-		atoms := map[int]bool{}
-		for _, r := range p.SSSR {
-			for _, a := range r.Atoms {
-				atoms[a] = true
+		rk, ok := pre.row(row)
+		if !ok {
+			if rk, err = computeRowKeys(row); err != nil {
+				return nil, fmt.Errorf("ring_table.csv row %d (%s): %w", i, row.Name, err)
 			}
 		}
-		var list []int
-		for a := range atoms {
-			list = append(list, a)
-		}
-		sort.Ints(list)
-		row.Key = systemKey(m, list, -1, row.Trans)
-		t.maxAtoms = max(t.maxAtoms, len(list))
-		row.constKey = canon.StructureKey(m, p, seq(len(m.Atoms)))
-		row.Rings = len(p.SSSR)
+		row.Key, row.constKey, row.Rings = rk.key, rk.constKey, rk.rings
+		t.maxAtoms = max(t.maxAtoms, rk.atoms)
 		if prev, dup := t.byKey[row.Key]; dup {
 			return nil, fmt.Errorf("ring_table.csv: %s and %s have the same skeleton key %s", prev.Name, row.Name, row.Key)
 		}
 		t.byKey[row.Key] = row
 		t.rows = append(t.rows, row)
 	}
-	if err := t.fit(); err != nil {
+	if err := t.fit(pre); err != nil {
 		return nil, err
 	}
 	return t, nil
 }
 
+// computeRowKeys computes a table row's keys from its SMILES: the canonical key of its ring
+// system (with the trans marker), the constitution key, its ring count and ring atom count.
+func computeRowKeys(row *RingRow) (rowKeys, error) {
+	m, err := smiles.Parse(row.SMILES)
+	if err != nil {
+		return rowKeys{}, err
+	}
+	p := rings.Perceive(m)
+	atoms := map[int]bool{}
+	for _, r := range p.SSSR {
+		for _, a := range r.Atoms {
+			atoms[a] = true
+		}
+	}
+	var list []int
+	for a := range atoms {
+		list = append(list, a)
+	}
+	sort.Ints(list)
+	return rowKeys{key: systemKey(m, list, -1, row.Trans), constKey: canon.StructureKey(m, p, seq(len(m.Atoms))),
+		rings: len(p.SSSR), atoms: len(list)}, nil
+}
+
 // fit computes the condensed-phase offsets from data/condensed_fit.csv: each measured value's
 // residual against the gas-phase ring-correction estimate (no anchors, no substituent
 // corrections), averaged; the offsets' uncertainties are the residuals' sample standard deviation.
-func (t *ringTable) fit() error {
+func (t *ringTable) fit(pre *precomputed) error {
 	recs, err := readCSV("data/condensed_fit.csv")
 	if err != nil {
 		return err
@@ -240,12 +253,16 @@ func (t *ringTable) fit() error {
 			return fmt.Errorf("condensed_fit.csv row %d: %w", i, err)
 		}
 		fr := FitRow{ID: rec[0], SMILES: rec[1], Kind: rec[2], DHMeasured: dh, DSMeasured: ds, Source: rec[5]}
-		gh, gs, err := t.rawGas(fr.SMILES, fr.Kind)
-		if err != nil {
-			return fmt.Errorf("condensed_fit.csv %s: %w", fr.ID, err)
+		fv, ok := pre.fit(fr)
+		if !ok {
+			gh, gs, err := t.rawGas(fr.SMILES, fr.Kind)
+			if err != nil {
+				return fmt.Errorf("condensed_fit.csv %s: %w", fr.ID, err)
+			}
+			fv = fitValues{dhGas: gh, dsGas: gs, constKey: keyOfSMILES(fr.SMILES)}
 		}
-		fr.DHGas, fr.DSGas = gh, gs
-		fr.constKey = keyOfSMILES(fr.SMILES)
+		gh, gs := fv.dhGas, fv.dsGas
+		fr.DHGas, fr.DSGas, fr.constKey = gh, gs, fv.constKey
 		rh = append(rh, dh-gh)
 		if ds != nil && fr.Kind == "romp" {
 			rs = append(rs, *ds-gs)

@@ -1,0 +1,205 @@
+package thermo
+
+import (
+	"bufio"
+	"bytes"
+	"crypto/sha256"
+	"encoding/hex"
+	"fmt"
+	"strconv"
+	"strings"
+)
+
+// Precomputed table values. Loading the ring table computes, for each of its rows, the
+// canonical key of the ring system and the constitution key, and for each row of the offset
+// fit a gas-phase estimate: parsing, ring perception and canonical labelling of every
+// structure, a few milliseconds at the first screening of every process (most of the time of a
+// one-structure `ringsieve screen`). data/precomputed.tsv holds those values computed ahead
+// (our own tab-separated layout, one record per line):
+//
+//	inputs <hash>                                   SHA-256 of the CSV files they come from
+//	row <name> <SMILES> <trans> <key> <constitution key> <rings> <ring atoms>
+//	fit <id> <SMILES> <kind> <ΔH gas, kJ/mol> <ΔS gas, J/(mol K)> <constitution key>
+//
+// When the recorded hash differs from the embedded CSV files' (a table edited without
+// regenerating) the file is ignored and everything is computed as before, so a stale file
+// cannot change a result; a code change that alters keys or estimates is caught by
+// TestPrecomputedTableFresh, which recomputes everything and compares. Regenerate with
+// `go test ./screening/thermo -run PrecomputedTableFresh -update`.
+const precomputedFile = "data/precomputed.tsv"
+
+// rowKeys are a table row's computed values.
+type rowKeys struct {
+	key, constKey string
+	rings, atoms  int
+}
+
+// fitValues are a fit row's computed values.
+type fitValues struct {
+	dhGas, dsGas float64
+	constKey     string
+}
+
+// precomputed holds data/precomputed.tsv by record identity (name or id, SMILES and flag).
+type precomputed struct {
+	rows map[string]rowKeys
+	fits map[string]fitValues
+}
+
+func rowID(r *RingRow) string { return r.Name + "\t" + r.SMILES + "\t" + boolField(r.Trans) }
+func fitID(f FitRow) string   { return f.ID + "\t" + f.SMILES + "\t" + f.Kind }
+
+func boolField(b bool) string {
+	if b {
+		return "1"
+	}
+	return "0"
+}
+
+// row returns the precomputed keys of r (ok false when there are none; p may be nil).
+func (p *precomputed) row(r *RingRow) (rowKeys, bool) {
+	if p == nil {
+		return rowKeys{}, false
+	}
+	k, ok := p.rows[rowID(r)]
+	return k, ok
+}
+
+// fit returns the precomputed values of f (ok false when there are none; p may be nil).
+func (p *precomputed) fit(f FitRow) (fitValues, bool) {
+	if p == nil {
+		return fitValues{}, false
+	}
+	v, ok := p.fits[fitID(f)]
+	return v, ok
+}
+
+// inputsHash is the SHA-256 (hex) of the CSV files the precomputed values come from.
+func inputsHash() (string, error) {
+	h := sha256.New()
+	for _, name := range []string{"data/ring_table.csv", "data/condensed_fit.csv"} {
+		b, err := dataFS.ReadFile(name)
+		if err != nil {
+			return "", err
+		}
+		fmt.Fprintf(h, "%s %d\n", name, len(b))
+		h.Write(b)
+	}
+	return hex.EncodeToString(h.Sum(nil)), nil
+}
+
+// readPrecomputed reads the embedded precomputed values; nil when the file is missing,
+// malformed or computed from other inputs (then the table is computed in full).
+func readPrecomputed() *precomputed {
+	b, err := dataFS.ReadFile(precomputedFile)
+	if err != nil {
+		return nil
+	}
+	p, err := parsePrecomputed(b)
+	if err != nil {
+		return nil
+	}
+	return p
+}
+
+// parsePrecomputed reads the layout described above. Errors: a malformed record, or an inputs
+// hash other than the embedded CSV files'.
+func parsePrecomputed(b []byte) (*precomputed, error) {
+	want, err := inputsHash()
+	if err != nil {
+		return nil, err
+	}
+	p := &precomputed{rows: map[string]rowKeys{}, fits: map[string]fitValues{}}
+	sc := bufio.NewScanner(bytes.NewReader(b))
+	sc.Buffer(make([]byte, 0, 64*1024), 1<<20)
+	inputsOK := false
+	for n := 1; sc.Scan(); n++ {
+		line := sc.Text()
+		if line == "" || strings.HasPrefix(line, "#") {
+			continue
+		}
+		f := strings.Split(line, "\t")
+		bad := fmt.Errorf("%s line %d: malformed %q record", precomputedFile, n, f[0])
+		switch {
+		case f[0] == "inputs" && len(f) == 2:
+			if f[1] != want {
+				return nil, fmt.Errorf("%s: computed from other inputs", precomputedFile)
+			}
+			inputsOK = true
+		case f[0] == "row" && len(f) == 8:
+			rings, err1 := strconv.Atoi(f[6])
+			atoms, err2 := strconv.Atoi(f[7])
+			if err1 != nil || err2 != nil {
+				return nil, bad
+			}
+			p.rows[strings.Join(f[1:4], "\t")] = rowKeys{key: f[4], constKey: f[5], rings: rings, atoms: atoms}
+		case f[0] == "fit" && len(f) == 7:
+			dh, err1 := strconv.ParseFloat(f[4], 64)
+			ds, err2 := strconv.ParseFloat(f[5], 64)
+			if err1 != nil || err2 != nil {
+				return nil, bad
+			}
+			p.fits[strings.Join(f[1:4], "\t")] = fitValues{dhGas: dh, dsGas: ds, constKey: f[6]}
+		default:
+			return nil, bad
+		}
+	}
+	if err := sc.Err(); err != nil {
+		return nil, err
+	}
+	if !inputsOK {
+		return nil, fmt.Errorf("%s: no inputs record", precomputedFile)
+	}
+	return p, nil
+}
+
+// writePrecomputed writes t's computed values in the layout above (t computed in full, from
+// loadTable(nil)). Errors: a field holding a tab or a line break.
+func writePrecomputed(t *ringTable) ([]byte, error) {
+	hash, err := inputsHash()
+	if err != nil {
+		return nil, err
+	}
+	var b bytes.Buffer
+	b.WriteString("# generated by `go test ./screening/thermo -run PrecomputedTableFresh -update` from data/ring_table.csv\n")
+	b.WriteString("# and data/condensed_fit.csv (see precomputed.go); do not edit\n")
+	fmt.Fprintf(&b, "inputs\t%s\n", hash)
+	check := func(fields ...string) error {
+		for _, f := range fields {
+			if strings.ContainsAny(f, "\t\r\n") {
+				return fmt.Errorf("precomputed value %q holds a tab or a line break", f)
+			}
+		}
+		return nil
+	}
+	for _, r := range t.rows {
+		k, err := computeRowKeysOf(t, r)
+		if err != nil {
+			return nil, err
+		}
+		if err := check(r.Name, r.SMILES, k.key, k.constKey); err != nil {
+			return nil, err
+		}
+		fmt.Fprintf(&b, "row\t%s\t%d\t%d\n", strings.Join([]string{rowID(r), k.key, k.constKey}, "\t"), k.rings, k.atoms)
+	}
+	for _, f := range t.fitRows {
+		if err := check(f.ID, f.SMILES, f.Kind, f.constKey); err != nil {
+			return nil, err
+		}
+		fmt.Fprintf(&b, "fit\t%s\t%s\t%s\t%s\n", fitID(f), strconv.FormatFloat(f.DHGas, 'g', -1, 64),
+			strconv.FormatFloat(f.DSGas, 'g', -1, 64), f.constKey)
+	}
+	return b.Bytes(), nil
+}
+
+// computeRowKeysOf is computeRowKeys for a row of t, checked against what t holds.
+func computeRowKeysOf(t *ringTable, r *RingRow) (rowKeys, error) {
+	k, err := computeRowKeys(r)
+	if err != nil {
+		return rowKeys{}, err
+	}
+	if k.key != r.Key || k.constKey != r.constKey || k.rings != r.Rings {
+		return rowKeys{}, fmt.Errorf("row %s: keys differ from the table's", r.Name)
+	}
+	return k, nil
+}

@@ -1,0 +1,78 @@
+package thermo
+
+import (
+	"bytes"
+	"os"
+	"reflect"
+	"strings"
+	"testing"
+)
+
+// TestPrecomputedTableFresh: data/precomputed.tsv holds exactly what loading the table computes
+// (every row's keys, every fit row's gas-phase estimate), so the table loaded from it equals
+// the table computed in full; -update rewrites the file (design choice: precomputed values are
+// checked like golden files).
+func TestPrecomputedTableFresh(t *testing.T) {
+	full, err := loadTable(nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := writePrecomputed(full)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if *update {
+		if err := os.WriteFile(precomputedFile, want, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		t.Skip("rewrote " + precomputedFile + "; run again to check")
+	}
+	have, _ := dataFS.ReadFile(precomputedFile)
+	if !bytes.Equal(have, want) {
+		t.Fatalf("%s is stale: rerun `go test ./screening/thermo -run PrecomputedTableFresh -update`", precomputedFile)
+	}
+	pre := readPrecomputed()
+	if pre == nil || len(pre.rows) != len(full.rows) || len(pre.fits) != len(full.fitRows) {
+		t.Fatalf("the embedded file was not taken: %v", pre)
+	}
+	fast, err := loadTable(pre)
+	if err != nil {
+		t.Fatal(err)
+	}
+	for i, r := range full.rows {
+		if !reflect.DeepEqual(*r, *fast.rows[i]) {
+			t.Errorf("row %s: computed %+v, precomputed %+v", r.Name, *r, *fast.rows[i])
+		}
+	}
+	if !reflect.DeepEqual(full.fitRows, fast.fitRows) || full.maxAtoms != fast.maxAtoms ||
+		full.OffsetH != fast.OffsetH || full.OffsetS != fast.OffsetS || full.OffsetHU != fast.OffsetHU || full.OffsetSU != fast.OffsetSU {
+		t.Errorf("fit or offsets differ: computed %v %v %v, precomputed %v %v %v", full.OffsetH, full.OffsetS, full.maxAtoms, fast.OffsetH, fast.OffsetS, fast.maxAtoms)
+	}
+}
+
+// TestPrecomputedIgnoredWhenInputsDiffer: a file computed from other table files (its inputs
+// hash differs), or a malformed one, is not used.
+func TestPrecomputedIgnoredWhenInputsDiffer(t *testing.T) {
+	have, _ := dataFS.ReadFile(precomputedFile)
+	if _, err := parsePrecomputed(have); err != nil {
+		t.Fatalf("the embedded file: %v", err)
+	}
+	lines := strings.Split(string(have), "\n")
+	for i, l := range lines {
+		if strings.HasPrefix(l, "inputs\t") {
+			stale := append([]string(nil), lines...)
+			stale[i] = "inputs\t" + strings.Repeat("0", 64)
+			if _, err := parsePrecomputed([]byte(strings.Join(stale, "\n"))); err == nil {
+				t.Error("a file from other inputs was accepted")
+			}
+		}
+	}
+	for _, bad := range []string{"row\tonly three\tfields", "fit\ta\tb\tc\tnot-a-number\t1\tk", "colour\tblue"} {
+		if _, err := parsePrecomputed([]byte(string(have) + bad + "\n")); err == nil {
+			t.Errorf("malformed record %q accepted", bad)
+		}
+	}
+	if _, err := parsePrecomputed([]byte("# no inputs record\n")); err == nil {
+		t.Error("a file without its inputs record was accepted")
+	}
+}
