@@ -150,9 +150,12 @@ func (s *Store) createJobStreaming(ctx context.Context, j *batch.Job, ts string,
 		return nil
 	}
 	add := func(it JobInput) error {
+		if l.err != nil {
+			return l.err
+		}
 		if end == nil {
-			if err := open(); err != nil {
-				return err
+			if l.err = open(); l.err != nil {
+				return l.err
 			}
 		}
 		if err := l.add(it); err != nil {
@@ -161,14 +164,21 @@ func (s *Store) createJobStreaming(ctx context.Context, j *batch.Job, ts string,
 		if l.n-l.chunked < size {
 			return nil
 		}
-		err := l.commitChunks(size)
+		err := l.writeChunks(size)
 		err, end = end(err), nil
-		if err == nil && spec.OnChunk != nil {
+		if err != nil {
+			l.err = err
+			return err
+		}
+		if spec.OnChunk != nil {
 			spec.OnChunk()
 		}
-		return err
+		return nil
 	}
 	meta, err := fill(add)
+	if err == nil {
+		err = l.err // a failed write that fill did not pass on
+	}
 	if err == nil && end == nil {
 		err = open()
 	}
@@ -204,6 +214,9 @@ type jobLoad struct {
 	ins  *bulkInsert
 	// n items stored so far, the first chunked of them in chunks numbered 0 … chunks−1
 	n, chunked, chunks int
+	// err is the first failed write: every later add and finish return it, so a load whose
+	// producer ignored an error cannot complete with items missing
+	err error
 }
 
 // begin continues the load in transaction tx.
@@ -226,16 +239,19 @@ func (l *jobLoad) insertJob(cond *screening.ConditionsOut) error {
 }
 
 func (l *jobLoad) add(it JobInput) error {
-	if err := insertItem(l.ctx, l.ins, l.job.ID, l.n, it); err != nil {
-		return err
+	if l.err != nil {
+		return l.err
+	}
+	if l.err = insertItem(l.ctx, l.ins, l.job.ID, l.n, it); l.err != nil {
+		return l.err
 	}
 	l.n++
 	return nil
 }
 
-// commitChunks writes the gathered items and the chunk rows of size that cover them (a last
-// short one included when size covers the rest) and announces them.
-func (l *jobLoad) commitChunks(size int) error {
+// writeChunks flushes the gathered items and writes chunks of size over every item not yet in
+// one (the last shorter when fewer remain), announcing them to other processes at commit.
+func (l *jobLoad) writeChunks(size int) error {
 	if err := l.ins.flush(l.ctx); err != nil {
 		return err
 	}
@@ -254,6 +270,9 @@ func (l *jobLoad) commitChunks(size int) error {
 // given before), total, extra columns and format; it clears the loading mark, finishes the job
 // when workers already screened every chunk, and records the idempotency claim.
 func (l *jobLoad) finish(meta JobMeta) error {
+	if l.err != nil {
+		return l.err
+	}
 	ctx, tx, j := l.ctx, l.tx, l.job
 	if meta.ExtraColumns == nil {
 		meta.ExtraColumns = []string{}
@@ -280,7 +299,7 @@ func (l *jobLoad) finish(meta JobMeta) error {
 	if size <= 0 {
 		size = ChunkSizeFor(meta.Conditions.ThermoMethod)
 	}
-	if err := l.commitChunks(size); err != nil {
+	if err := l.writeChunks(size); err != nil {
 		return err
 	}
 	if _, err := l.s.exec(ctx, tx, `DELETE FROM job_loading WHERE job_id = ?`, j.ID); err != nil {

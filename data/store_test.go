@@ -6,6 +6,7 @@ import (
 	"encoding/json"
 	"errors"
 	"fmt"
+	"math"
 	"os"
 	"path/filepath"
 	"strings"
@@ -59,6 +60,7 @@ var behaviour = []struct {
 	{"UploadScreenedWhileLoading", behaviourUploadScreenedWhileLoading},
 	{"FailedLoadLeavesNothing", behaviourFailedLoadLeavesNothing},
 	{"AbandonedLoadPurged", behaviourAbandonedLoadPurged},
+	{"IgnoredWriteErrorFailsTheLoad", behaviourIgnoredWriteErrorFailsTheLoad},
 	{"APIKeysAndIdempotency", behaviourAPIKeysAndIdempotency},
 	{"IdempotencyInTheWriteTransaction", behaviourIdempotencyInTheWriteTransaction},
 	{"ConcurrentWrites", behaviourConcurrentWrites},
@@ -481,6 +483,38 @@ func behaviourFailedLoadLeavesNothing(t *testing.T, e engine) {
 	}
 	if c, err := s.ClaimChunk(ctx, "late", time.Minute); !errors.Is(err, ErrNotFound) {
 		t.Fatalf("a chunk of the failed load is claimable: %+v %v", c, err)
+	}
+}
+
+// TestIgnoredWriteErrorFailsTheLoad: an item that cannot be stored fails the job even when the
+// producer goes on after the error, in one transaction and streamed: a job never completes
+// with items missing.
+func behaviourIgnoredWriteErrorFailsTheLoad(t *testing.T, e engine) {
+	ctx := context.Background()
+	s, _ := e.open(t)
+	nan := math.NaN()
+	for _, spec := range []JobSpec{{}, streamSpec(2, nil)} {
+		var ignored error
+		_, err := s.CreateJob(ctx, spec, func(add func(JobInput) error) (JobMeta, error) {
+			for i := 0; i < 5; i++ {
+				src := batch.ItemSource{SMILES: "C1=CCCC1"}
+				if i == 2 { // a value JSON cannot hold: the item cannot be encoded
+					src = batch.ItemSource{Descriptors: &screening.Descriptors{DHkJmol: &nan}}
+				}
+				if err := add(JobInput{ItemID: fmt.Sprint(i), Source: src}); err != nil && ignored == nil {
+					ignored = err
+				}
+			}
+			return JobMeta{Conditions: batch.EffectiveConditions(screening.DefaultConditions()), Format: "json"}, nil
+		})
+		if ignored == nil || err == nil {
+			t.Fatalf("streamed %v: add error %v, job error %v", spec.Conditions != nil, ignored, err)
+		}
+		var n int
+		s.DB().QueryRow(s.q(`SELECT (SELECT count(*) FROM jobs) + (SELECT count(*) FROM job_items) + (SELECT count(*) FROM job_chunks)`)).Scan(&n)
+		if n != 0 {
+			t.Fatalf("streamed %v: %d rows left behind", spec.Conditions != nil, n)
+		}
 	}
 }
 
