@@ -7,7 +7,8 @@
 #      ringsieve's fast tier against RDKit parsing, ring perception, aromaticity, formula and
 #      substructure counts (testdata/load/rdkit_reference_screen.py);
 #      the same for its first 10,000 lines (where cold caches weigh more);
-#   2. the 100,000 as a job: upload, screen and store, CSV and JSON Lines downloads;
+#   2. the 100,000 as a job: upload, screen and store, CSV and JSON Lines downloads; then the job
+#      and the offline screen alternately, three rounds, in wall and CPU time;
 #   3. POST /v1/screen against GET /healthz on one server (wrk, 2 threads, 16 connections, three
 #      alternating rounds of 5 s each),
 #      then /v1/screen at a constant rate of a quarter of that saturation rate for 10 s (vegeta,
@@ -66,6 +67,40 @@ t3=$(date +%s.%N)
 python3 -c "import sys; a,b,c,d=map(float,sys.argv[1:5]); print(f'job: submitted to done {b-a:.2f} s; CSV download {c-b:.2f} s; JSON Lines download {d-c:.2f} s')" "$t0" "$t1" "$t2" "$t3"
 ls -l "$work/jobs.db" | awk '{printf "database file: %.0f MB\n", $5/1e6}'
 cmp -s "$work/job.csv" "$work/out.csv" && echo "job CSV identical to the offline screen" || echo "job CSV DIFFERS from the offline screen"
+
+echo "== 2b. job against the offline screen, run alternately (3 rounds; wall and CPU time)"
+tick=$(getconf CLK_TCK)
+# the server's CPU seconds so far (user + system, from /proc)
+server_cpu() { awk -v t="$tick" '{print ($14 + $15) / t}' "/proc/$pid/stat"; }
+ratios=""
+for round in 1 2 3; do
+  /usr/bin/time -f "%e %U %S" -o "$work/offtime" "$work/ringsieve" screen --thermo-method table --format csv "$work/100k.smi" > /dev/null 2>&1 || true
+  c0=$(server_cpu)
+  jw=$(python3 - "$port" "$work/100k.smi" <<'PY'
+import http.client, json, sys, time, uuid
+port, path = int(sys.argv[1]), sys.argv[2]
+b = uuid.uuid4().hex
+body = (f'--{b}\r\nContent-Disposition: form-data; name="thermo_method"\r\n\r\ntable\r\n--{b}\r\n'
+        f'Content-Disposition: form-data; name="file"; filename="100k.smi"\r\n\r\n').encode() + open(path, 'rb').read() + f'\r\n--{b}--\r\n'.encode()
+c = http.client.HTTPConnection("127.0.0.1", port)
+t0 = time.time()
+c.request("POST", "/v1/jobs", body, {"Content-Type": f"multipart/form-data; boundary={b}"})
+job = json.loads(c.getresponse().read())["id"]
+while True:
+    c.request("GET", "/v1/jobs/" + job)
+    if json.loads(c.getresponse().read()).get("status") in ("done", "failed", "canceled"):
+        break
+    time.sleep(0.02)
+print(f"{time.time() - t0:.3f}")
+PY
+)
+  c1=$(server_cpu)
+  read -r ow ou os < "$work/offtime"
+  line=$(python3 -c "import sys; ow,ou,os_,jw,c0,c1=map(float,sys.argv[1:7]); oc=ou+os_; jc=c1-c0; print(f'round {sys.argv[7]}: offline {ow:.2f} s ({oc:.2f} CPU-s), job {jw:.2f} s ({jc:.2f} CPU-s): {jw/ow:.2f}x wall, {jc/oc:.2f}x CPU')" "$ow" "$ou" "$os" "$jw" "$c0" "$c1" "$round")
+  echo "$line"
+  ratios="$ratios $(echo "$line" | sed -E 's/.*: ([0-9.]+)x wall.*/\1/')"
+done
+python3 -c "import sys, statistics; print(f'job against the offline screen: median {statistics.median(map(float, sys.argv[1:])):.2f}x wall')" $ratios
 
 echo "== 3. POST /v1/screen against GET /healthz (wrk -t2 -c16, 3 × 5 s each, alternating)"
 cat > "$work/screen.lua" <<'LUA'
