@@ -77,9 +77,19 @@ var (
 	calErr  error
 )
 
+// loadCalibration sets the class calibrations: the precomputed ones when data/precomputed.tsv
+// holds them for the embedded data, else computed.
+func loadCalibration() {
+	if p := embeddedPrecomputed(); p != nil && p.cal != nil {
+		calData = p.cal
+		return
+	}
+	calData, calErr = calibrate()
+}
+
 // Calibrations returns every class's calibration (computed once).
 func Calibrations() ([]ClassCalibration, error) {
-	calOnce.Do(func() { calData, calErr = calibrate() })
+	calOnce.Do(loadCalibration)
 	if calErr != nil {
 		return nil, calErr
 	}
@@ -92,7 +102,7 @@ func Calibrations() ([]ClassCalibration, error) {
 }
 
 func calibrationFor(class string) ClassCalibration {
-	calOnce.Do(func() { calData, calErr = calibrate() })
+	calOnce.Do(loadCalibration)
 	if c, ok := calData[class]; ok {
 		return c
 	}

@@ -9,15 +9,19 @@ import (
 )
 
 // TestPrecomputedTableFresh: data/precomputed.tsv holds exactly what loading the table computes
-// (every row's keys, every fit row's gas-phase estimate), so the table loaded from it equals
-// the table computed in full; -update rewrites the file (design choice: precomputed values are
+// (every row's keys, every fit row's gas-phase estimate) and the class calibrations, so what is
+// loaded from it equals what is computed in full; -update rewrites the file (design choice: precomputed values are
 // checked like golden files).
 func TestPrecomputedTableFresh(t *testing.T) {
 	full, err := loadTable(nil)
 	if err != nil {
 		t.Fatal(err)
 	}
-	want, err := writePrecomputed(full)
+	cal, err := calibrate()
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := writePrecomputed(full, cal)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -32,7 +36,7 @@ func TestPrecomputedTableFresh(t *testing.T) {
 		t.Fatalf("%s is stale: rerun `go test ./screening/thermo -run PrecomputedTableFresh -update`", precomputedFile)
 	}
 	pre := readPrecomputed()
-	if pre == nil || len(pre.rows) != len(full.rows) || len(pre.fits) != len(full.fitRows) {
+	if pre == nil || len(pre.rows) != len(full.rows) || len(pre.fits) != len(full.fitRows) || len(pre.cal) != len(cal) {
 		t.Fatalf("the embedded file was not taken: %v", pre)
 	}
 	fast, err := loadTable(pre)
@@ -43,6 +47,9 @@ func TestPrecomputedTableFresh(t *testing.T) {
 		if !reflect.DeepEqual(*r, *fast.rows[i]) {
 			t.Errorf("row %s: computed %+v, precomputed %+v", r.Name, *r, *fast.rows[i])
 		}
+	}
+	if !reflect.DeepEqual(cal, pre.cal) {
+		t.Errorf("calibrations differ: computed %+v, precomputed %+v", cal, pre.cal)
 	}
 	if !reflect.DeepEqual(full.fitRows, fast.fitRows) || full.maxAtoms != fast.maxAtoms ||
 		full.OffsetH != fast.OffsetH || full.OffsetS != fast.OffsetS || full.OffsetHU != fast.OffsetHU || full.OffsetSU != fast.OffsetSU {
@@ -67,7 +74,7 @@ func TestPrecomputedIgnoredWhenInputsDiffer(t *testing.T) {
 			}
 		}
 	}
-	for _, bad := range []string{"row\tonly three\tfields", "fit\ta\tb\tc\tnot-a-number\t1\tk", "colour\tblue"} {
+	for _, bad := range []string{"row\tonly three\tfields", "fit\ta\tb\tc\tnot-a-number\t1\tk", "calibration\tnot JSON", "colour\tblue"} {
 		if _, err := parsePrecomputed([]byte(string(have) + bad + "\n")); err == nil {
 			t.Errorf("malformed record %q accepted", bad)
 		}

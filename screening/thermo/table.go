@@ -95,7 +95,7 @@ var (
 // Table returns the embedded ring-system table, loading it once. A load failure is a build
 // defect and panics at first use in tests; callers get the error from TableErr.
 func Table() *ringTable {
-	tableOnce.Do(func() { table, tableErr = loadTable(readPrecomputed()) })
+	tableOnce.Do(func() { table, tableErr = loadTable(embeddedPrecomputed()) })
 	if tableErr != nil {
 		panic(tableErr)
 	}
