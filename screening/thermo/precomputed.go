@@ -15,8 +15,8 @@ import (
 
 // Precomputed table values. Loading the ring table computes, for each of its rows, the
 // canonical key of the ring system and the constitution key, and for each row of the offset
-// fit a gas-phase estimate; the class calibration screens every measured structure
-// leave-one-out: parsing, ring perception and canonical labelling of every structure, several
+// fit a gas-phase estimate; the measured values need each structure's keys, and the class
+// calibration screens every measured structure leave-one-out: parsing, ring perception and canonical labelling of every structure, several
 // milliseconds at the first screening of every process (most of the time of a one-structure
 // `ringsieve screen`). data/precomputed.tsv holds those values computed ahead (our own
 // tab-separated layout, one record per line):
@@ -24,6 +24,7 @@ import (
 //	inputs <hash>                                   SHA-256 of the CSV files they come from
 //	row <name> <SMILES> <trans> <key> <constitution key> <rings> <ring atoms>
 //	fit <id> <SMILES> <kind> <ΔH gas, kJ/mol> <ΔS gas, J/(mol K)> <constitution key>
+//	measured <id> <SMILES> <constitution key> <stereo signature or empty>
 //	calibration <JSON list of ClassCalibration, by class>
 //
 // When the recorded hash differs from the embedded CSV files' (a table edited without
@@ -48,9 +49,21 @@ type fitValues struct {
 // precomputed holds data/precomputed.tsv by record identity (name or id, SMILES and flag),
 // and the class calibrations by class (nil when the file has none).
 type precomputed struct {
-	rows map[string]rowKeys
-	fits map[string]fitValues
-	cal  map[string]ClassCalibration
+	rows     map[string]rowKeys
+	fits     map[string]fitValues
+	measures map[string]measuredKeys
+	cal      map[string]ClassCalibration
+}
+
+func measuredID(m Measurement) string { return m.ID + "\t" + m.SMILES }
+
+// measured returns the precomputed keys of m (ok false when there are none; p may be nil).
+func (p *precomputed) measured(m Measurement) (measuredKeys, bool) {
+	if p == nil {
+		return measuredKeys{}, false
+	}
+	k, ok := p.measures[measuredID(m)]
+	return k, ok
 }
 
 // embeddedPrecomputed is readPrecomputed, read once.
@@ -119,7 +132,7 @@ func parsePrecomputed(b []byte) (*precomputed, error) {
 	if err != nil {
 		return nil, err
 	}
-	p := &precomputed{rows: map[string]rowKeys{}, fits: map[string]fitValues{}}
+	p := &precomputed{rows: map[string]rowKeys{}, fits: map[string]fitValues{}, measures: map[string]measuredKeys{}}
 	sc := bufio.NewScanner(bytes.NewReader(b))
 	sc.Buffer(make([]byte, 0, 64*1024), 1<<20)
 	inputsOK := false
@@ -143,6 +156,8 @@ func parsePrecomputed(b []byte) (*precomputed, error) {
 				return nil, bad
 			}
 			p.rows[strings.Join(f[1:4], "\t")] = rowKeys{key: f[4], constKey: f[5], rings: rings, atoms: atoms}
+		case f[0] == "measured" && len(f) == 5:
+			p.measures[strings.Join(f[1:3], "\t")] = measuredKeys{key: f[3], stereo: f[4]}
 		case f[0] == "calibration" && len(f) == 2:
 			var list []ClassCalibration
 			if err := json.Unmarshal([]byte(f[1]), &list); err != nil {
@@ -208,6 +223,16 @@ func writePrecomputed(t *ringTable, cal map[string]ClassCalibration) ([]byte, er
 		}
 		fmt.Fprintf(&b, "fit\t%s\t%s\t%s\t%s\n", fitID(f), strconv.FormatFloat(f.DHGas, 'g', -1, 64),
 			strconv.FormatFloat(f.DSGas, 'g', -1, 64), f.constKey)
+	}
+	ms, err := loadMeasured(nil)
+	if err != nil {
+		return nil, err
+	}
+	for _, m := range ms.rows {
+		if err := check(m.ID, m.SMILES, m.key, m.stereo); err != nil {
+			return nil, err
+		}
+		fmt.Fprintf(&b, "measured\t%s\t%s\t%s\n", measuredID(m), m.key, m.stereo)
 	}
 	list := make([]ClassCalibration, 0, len(cal))
 	for _, c := range cal {

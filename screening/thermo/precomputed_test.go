@@ -8,10 +8,10 @@ import (
 	"testing"
 )
 
-// TestPrecomputedTableFresh: data/precomputed.tsv holds exactly what loading the table computes
-// (every row's keys, every fit row's gas-phase estimate) and the class calibrations, so what is
-// loaded from it equals what is computed in full; -update rewrites the file (design choice: precomputed values are
-// checked like golden files).
+// TestPrecomputedTableFresh: data/precomputed.tsv holds exactly what loading the tables
+// computes (every row's keys, every fit row's gas-phase estimate, every measured structure's
+// keys) and the class calibrations, so what is loaded from it equals what is computed in full;
+// -update rewrites the file (design choice: precomputed values are checked like golden files).
 func TestPrecomputedTableFresh(t *testing.T) {
 	full, err := loadTable(nil)
 	if err != nil {
@@ -47,6 +47,17 @@ func TestPrecomputedTableFresh(t *testing.T) {
 		if !reflect.DeepEqual(*r, *fast.rows[i]) {
 			t.Errorf("row %s: computed %+v, precomputed %+v", r.Name, *r, *fast.rows[i])
 		}
+	}
+	fullMeasured, err := loadMeasured(nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	fastMeasured, err := loadMeasured(pre)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if len(pre.measures) != len(fullMeasured.rows) || !reflect.DeepEqual(fullMeasured, fastMeasured) {
+		t.Errorf("measured keys differ: computed %+v, precomputed %+v", fullMeasured.rows, fastMeasured.rows)
 	}
 	if !reflect.DeepEqual(cal, pre.cal) {
 		t.Errorf("calibrations differ: computed %+v, precomputed %+v", cal, pre.cal)

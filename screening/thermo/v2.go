@@ -57,7 +57,7 @@ var (
 )
 
 func measuredData() *measuredSet {
-	measuredOnce.Do(func() { measured, measuredErr = loadMeasured() })
+	measuredOnce.Do(func() { measured, measuredErr = loadMeasured(embeddedPrecomputed()) })
 	if measuredErr != nil {
 		panic(measuredErr)
 	}
@@ -67,7 +67,9 @@ func measuredData() *measuredSet {
 // Measurements returns the measured rows (a copy).
 func Measurements() []Measurement { return append([]Measurement(nil), measuredData().rows...) }
 
-func loadMeasured() (*measuredSet, error) {
+// loadMeasured reads data/measured.csv; the keys pre holds are taken from it instead of being
+// computed (nil: compute them).
+func loadMeasured(pre *precomputed) (*measuredSet, error) {
 	recs, err := readCSV("data/measured.csv")
 	if err != nil {
 		return nil, err
@@ -90,18 +92,34 @@ func loadMeasured() (*measuredSet, error) {
 		if m.DS, err = optFloat(rec[4]); err != nil {
 			return nil, fmt.Errorf("measured.csv %s: %w", m.ID, err)
 		}
-		s, err := describe.Describe(m.SMILES)
-		if err != nil {
-			return nil, fmt.Errorf("measured.csv %s: %w", m.ID, err)
+		mk, ok := pre.measured(m)
+		if !ok {
+			if mk, err = computeMeasuredKeys(m); err != nil {
+				return nil, fmt.Errorf("measured.csv %s: %w", m.ID, err)
+			}
 		}
-		m.key = ConstitutionKey(s)
-		if hasStereoMarks(s.Mol) {
-			m.stereo = stereoSignature(s)
-		}
+		m.key, m.stereo = mk.key, mk.stereo
 		ms.byKey[m.key] = append(ms.byKey[m.key], len(ms.rows))
 		ms.rows = append(ms.rows, m)
 	}
 	return ms, nil
+}
+
+// measuredKeys are a measured structure's constitution key and, when its SMILES specifies
+// stereo, its stereo signature.
+type measuredKeys struct{ key, stereo string }
+
+// computeMeasuredKeys computes m's keys from its SMILES.
+func computeMeasuredKeys(m Measurement) (measuredKeys, error) {
+	s, err := describe.Describe(m.SMILES)
+	if err != nil {
+		return measuredKeys{}, err
+	}
+	k := measuredKeys{key: ConstitutionKey(s)}
+	if hasStereoMarks(s.Mol) {
+		k.stereo = stereoSignature(s)
+	}
+	return k, nil
 }
 
 // StructureKeyOf is ConstitutionKey plus, when s specifies stereo, its stereo signature.
