@@ -1,12 +1,14 @@
 #!/usr/bin/env bash
 # Speed figures of the README's performance table (run from the repository root):
 #   bash testdata/load/speed.sh
-# Needs RDKit from Debian (python3-rdkit) for the reference, wrk for the HTTP part, GNU time;
+# Needs RDKit from Debian (python3-rdkit) for the reference, wrk for the HTTP part, hyperfine
+# for the cold start, GNU time;
 # it installs vegeta v12.13.0 from the Go module proxy into a temporary folder.
 #   1. offline screening of 100,000 SMILES (the corpus ten times, distinct ids), whole process:
 #      ringsieve's fast tier against RDKit parsing, ring perception, aromaticity, formula and
 #      substructure counts (testdata/load/rdkit_reference_screen.py);
-#      the same for its first 10,000 lines (where cold caches weigh more);
+#      the same for its first 10,000 lines (where cold caches weigh more), and a cold start
+#      (one structure, whole process);
 #   2. the 100,000 as a job: upload, screen and store, CSV and JSON Lines downloads; then the job
 #      and the offline screen alternately, three rounds, in wall and CPU time;
 #   3. POST /v1/screen against GET /healthz on one server (wrk, 2 threads, 16 connections, three
@@ -39,6 +41,11 @@ head -n 10000 "$work/100k.smi" > "$work/10k.smi"
 tail -1 "$work/err"
 /usr/bin/time -f "RDKit reference (one core): %e s wall, %U s user" \
   /usr/bin/python3 testdata/load/rdkit_reference_screen.py "$work/10k.smi"
+
+echo "== 1c. a cold start: one structure, whole process (hyperfine, 50 runs)"
+head -n 1 "$work/100k.smi" > "$work/one.smi"
+hyperfine -N -w 5 -r 50 --export-json "$work/cold.json" "$work/ringsieve screen --thermo-method table --format csv $work/one.smi" > /dev/null
+python3 -c "import json,sys; r=json.load(open(sys.argv[1]))['results'][0]; print(f\"one SMILES, whole process: {1000*r['mean']:.1f} ms mean (sd {1000*r['stddev']:.1f}), user {1000*r['user']:.1f} ms, system {1000*r['system']:.1f} ms\")" "$work/cold.json"
 
 echo "== 2. the same file as a job (SQLite store)"
 port=$(python3 -c 'import socket; s=socket.socket(); s.bind(("127.0.0.1",0)); print(s.getsockname()[1]); s.close()')
