@@ -53,6 +53,14 @@ const (
 	ForceFieldChunkSize = 32
 )
 
+// chunkSize is the spec's chunk size, or ChunkSizeFor the job's thermo method.
+func (sp JobSpec) chunkSize(method string) int {
+	if sp.ChunkSize > 0 {
+		return sp.ChunkSize
+	}
+	return ChunkSizeFor(method)
+}
+
 // ChunkSizeFor returns the chunk size for a job's thermo method.
 func ChunkSizeFor(method string) int {
 	if method == "table" {
@@ -135,10 +143,7 @@ func (s *Store) createJobStreaming(ctx context.Context, j *batch.Job, ts string,
 	}); err != nil {
 		return err
 	}
-	size := spec.ChunkSize
-	if size <= 0 {
-		size = ChunkSizeFor(spec.Conditions.ThermoMethod)
-	}
+	size := spec.chunkSize(spec.Conditions.ThermoMethod)
 	var end func(error) error // the open transaction's
 	open := func() error {
 		tx, e, err := s.beginTx(ctx)
@@ -295,22 +300,14 @@ func (l *jobLoad) finish(meta JobMeta) error {
 		string(cj), l.n, string(ec), meta.Format, j.ID); err != nil {
 		return err
 	}
-	size := l.spec.ChunkSize
-	if size <= 0 {
-		size = ChunkSizeFor(meta.Conditions.ThermoMethod)
-	}
-	if err := l.writeChunks(size); err != nil {
+	if err := l.writeChunks(l.spec.chunkSize(meta.Conditions.ThermoMethod)); err != nil {
 		return err
 	}
-	if _, err := l.s.exec(ctx, tx, `DELETE FROM job_loading WHERE job_id = ?`, j.ID); err != nil {
-		return err
-	}
-	if l.spec.Conditions != nil {
-		if _, err := l.s.exec(ctx, tx, `UPDATE jobs SET status = 'done', finished_at = ? WHERE id = ? AND status = 'running'
-			AND NOT EXISTS (SELECT 1 FROM job_chunks WHERE job_id = ? AND state != 'done')`, now(), j.ID, j.ID); err != nil {
+	if l.spec.Conditions != nil { // streamed: the loading mark goes, and the job may be done
+		if _, err := l.s.exec(ctx, tx, `DELETE FROM job_loading WHERE job_id = ?`, j.ID); err != nil {
 			return err
 		}
-		if err := l.s.queryRow(ctx, tx, `SELECT status FROM jobs WHERE id = ?`, j.ID).Scan(&j.Status); err != nil {
+		if j.Status, err = l.s.finishIfComplete(ctx, tx, j.ID); err != nil {
 			return err
 		}
 	}
@@ -641,14 +638,22 @@ func (s *Store) CompleteChunk(ctx context.Context, c batch.Chunk, outs []batch.O
 		if _, err := s.exec(ctx, tx, `UPDATE jobs SET done = done + ?, failed = failed + ? WHERE id = ?`, done, failed, c.JobID); err != nil {
 			return err
 		}
-		// a job still loading has more chunks to come: its load finishes it
-		if _, err := s.exec(ctx, tx, `UPDATE jobs SET status = 'done', finished_at = ? WHERE id = ? AND status = 'running'
-			AND NOT EXISTS (SELECT 1 FROM job_chunks WHERE job_id = ? AND state != 'done')
-			AND NOT EXISTS (SELECT 1 FROM job_loading WHERE job_id = ?)`, now(), c.JobID, c.JobID, c.JobID); err != nil {
-			return err
-		}
-		return s.queryRow(ctx, tx, `SELECT status FROM jobs WHERE id = ?`, c.JobID).Scan(&status)
+		status, err = s.finishIfComplete(ctx, tx, c.JobID)
+		return err
 	})
+	return status, err
+}
+
+// finishIfComplete marks a running job done when every chunk is done and it is not loading (a
+// job still loading has more chunks to come: its load finishes it), and returns its status.
+func (s *Store) finishIfComplete(ctx context.Context, tx *sql.Tx, jobID string) (string, error) {
+	if _, err := s.exec(ctx, tx, `UPDATE jobs SET status = 'done', finished_at = ? WHERE id = ? AND status = 'running'
+		AND NOT EXISTS (SELECT 1 FROM job_chunks WHERE job_id = ? AND state != 'done')
+		AND NOT EXISTS (SELECT 1 FROM job_loading WHERE job_id = ?)`, now(), jobID, jobID, jobID); err != nil {
+		return "", err
+	}
+	var status string
+	err := s.queryRow(ctx, tx, `SELECT status FROM jobs WHERE id = ?`, jobID).Scan(&status)
 	return status, err
 }
 

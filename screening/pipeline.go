@@ -10,7 +10,7 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"slices"
+	"sort"
 	"strings"
 	"sync"
 	"time"
@@ -314,15 +314,8 @@ func rankOlefins(ctx context.Context, s *Structure, base *Descriptors, c Conditi
 		r := judge.Judge(&d, &e, c)
 		cands = append(cands, olefinCand{o, r, e})
 	}
-	slices.SortStableFunc(cands, func(a, b olefinCand) int {
-		switch {
-		case judge.MoreReactive(&a.r, &b.r):
-			return -1
-		case judge.MoreReactive(&b.r, &a.r):
-			return 1
-		}
-		return 0
-	})
+	// by index: the candidates hold whole results, too large to copy per comparison
+	sort.SliceStable(cands, func(i, j int) bool { return judge.MoreReactive(&cands[i].r, &cands[j].r) })
 	return cands
 }
 

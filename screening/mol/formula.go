@@ -35,15 +35,13 @@ func (m *Molecule) FormulaOf(atoms []int) string {
 		write("C", counts[6])
 		write("H", counts[1])
 		for _, z := range alphabeticalZ {
-			if counts[z] != 0 && z != 6 && z != 1 {
+			if z != 6 && z != 1 {
 				write(elements[z-1].Symbol, counts[z])
 			}
 		}
 	} else {
 		for _, z := range alphabeticalZ {
-			if counts[z] != 0 {
-				write(elements[z-1].Symbol, counts[z])
-			}
+			write(elements[z-1].Symbol, counts[z])
 		}
 	}
 	write("*", counts[0])

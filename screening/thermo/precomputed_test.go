@@ -21,7 +21,11 @@ func TestPrecomputedTableFresh(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	want, err := writePrecomputed(full, cal)
+	fullMeasured, err := loadMeasured(nil)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want, err := writePrecomputed(full, fullMeasured, cal)
 	if err != nil {
 		t.Fatal(err)
 	}
@@ -47,10 +51,6 @@ func TestPrecomputedTableFresh(t *testing.T) {
 		if !reflect.DeepEqual(*r, *fast.rows[i]) {
 			t.Errorf("row %s: computed %+v, precomputed %+v", r.Name, *r, *fast.rows[i])
 		}
-	}
-	fullMeasured, err := loadMeasured(nil)
-	if err != nil {
-		t.Fatal(err)
 	}
 	fastMeasured, err := loadMeasured(pre)
 	if err != nil {

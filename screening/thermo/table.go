@@ -59,6 +59,7 @@ type RingRow struct {
 	Rings    int // rings in the row's system
 
 	constKey string // constitution key of the row's SMILES (to leave its own measurement out)
+	atoms    int    // ring atoms of the row's system
 }
 
 type ringTable struct {
@@ -191,7 +192,7 @@ func loadTable(pre *precomputed) (*ringTable, error) {
 				return nil, fmt.Errorf("ring_table.csv row %d (%s): %w", i, row.Name, err)
 			}
 		}
-		row.Key, row.constKey, row.Rings = rk.key, rk.constKey, rk.rings
+		row.Key, row.constKey, row.Rings, row.atoms = rk.key, rk.constKey, rk.rings, rk.atoms
 		t.maxAtoms = max(t.maxAtoms, rk.atoms)
 		if prev, dup := t.byKey[row.Key]; dup {
 			return nil, fmt.Errorf("ring_table.csv: %s and %s have the same skeleton key %s", prev.Name, row.Name, row.Key)
