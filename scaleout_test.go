@@ -2,7 +2,7 @@ package main
 
 import (
 	"bufio"
-	"database/sql"
+	"context"
 	"encoding/json"
 	"os"
 	"os/exec"
@@ -12,6 +12,7 @@ import (
 	"testing"
 	"time"
 
+	"ringsieve/data"
 	"ringsieve/data/pgtest"
 )
 
@@ -91,16 +92,17 @@ func TestScaleOutOnPostgres(t *testing.T) {
 	}
 	_, got, _ := call(t, "GET", a.base+"/v1/jobs/"+jc.ID+"/results?format=csv", "", nil)
 	sameAsOffline(t, got, path, jc.Total)
-	// every item stored exactly once in the results table, every chunk done
-	conn, err := sql.Open("pgx", db)
+	// every item stored exactly once, every chunk done
+	st, err := data.Open(context.Background(), db)
 	if err != nil {
 		t.Fatal(err)
 	}
-	defer conn.Close()
-	var rows, distinct, open int
-	conn.QueryRow(`SELECT count(*), count(DISTINCT seq) FROM job_results WHERE job_id = $1`, jc.ID).Scan(&rows, &distinct)
-	conn.QueryRow(`SELECT count(*) FROM job_chunks WHERE job_id = $1 AND state <> 'done'`, jc.ID).Scan(&open)
-	if rows != jc.Total || distinct != jc.Total || open != 0 {
-		t.Errorf("stored results %d (%d distinct items), open chunks %d; want %d, %d, 0", rows, distinct, open, jc.Total, jc.Total)
+	defer st.Close()
+	oc, err := st.CountOutcomes(context.Background(), jc.ID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if oc.Items != jc.Total || oc.Outcomes != jc.Total || oc.Distinct != jc.Total || oc.Open != 0 {
+		t.Errorf("stored %+v; want %d items, outcomes and distinct items, no open chunk", oc, jc.Total)
 	}
 }

@@ -1,12 +1,13 @@
 package data
 
 import (
+	"bytes"
 	"context"
 	"database/sql"
 	"encoding/json"
 	"errors"
 	"fmt"
-	"strings"
+	"slices"
 	"time"
 
 	"ringsieve/screening"
@@ -208,7 +209,8 @@ func (s *Store) createJobStreaming(ctx context.Context, j *batch.Job, ts string,
 	return err
 }
 
-// jobLoad writes one job's rows, in one transaction or in several (one at a time).
+// jobLoad writes one job's rows, in one transaction or in several (one at a time). Items are
+// packed per chunk (chunkpack.go) and written with their chunk's row.
 type jobLoad struct {
 	s    *Store
 	ctx  context.Context
@@ -216,8 +218,8 @@ type jobLoad struct {
 	ts   string
 	spec JobSpec
 	tx   *sql.Tx
-	ins  *bulkInsert
-	// n items stored so far, the first chunked of them in chunks numbered 0 … chunks−1
+	pack itemPacker // items not yet in a chunk
+	// n items read so far, the first chunked of them in chunks numbered 0 … chunks−1
 	n, chunked, chunks int
 	// err is the first failed write: every later add and finish return it, so a load whose
 	// producer ignored an error cannot complete with items missing
@@ -225,10 +227,7 @@ type jobLoad struct {
 }
 
 // begin continues the load in transaction tx.
-func (l *jobLoad) begin(tx *sql.Tx) {
-	l.tx = tx
-	l.ins = newBulkInsert(l.s, tx, `INSERT INTO job_items (job_id, seq, item_id, line, source, extra) VALUES `, 6, ``)
-}
+func (l *jobLoad) begin(tx *sql.Tx) { l.tx = tx }
 
 // insertJob inserts the job row: with its conditions when known, else completed by finish.
 func (l *jobLoad) insertJob(cond *screening.ConditionsOut) error {
@@ -247,26 +246,28 @@ func (l *jobLoad) add(it JobInput) error {
 	if l.err != nil {
 		return l.err
 	}
-	if l.err = insertItem(l.ctx, l.ins, l.job.ID, l.n, it); l.err != nil {
+	if l.err = l.pack.add(it); l.err != nil {
 		return l.err
 	}
 	l.n++
 	return nil
 }
 
-// writeChunks flushes the gathered items and writes chunks of size over every item not yet in
-// one (the last shorter when fewer remain), announcing them to other processes at commit.
+// writeChunks writes chunks of size over every item not yet in one (the last shorter when
+// fewer remain), announcing them to other processes at commit.
 func (l *jobLoad) writeChunks(size int) error {
-	if err := l.ins.flush(l.ctx); err != nil {
-		return err
-	}
 	for l.chunked < l.n {
-		last := min(l.chunked+size, l.n) - 1
-		if _, err := l.s.exec(l.ctx, l.tx, `INSERT INTO job_chunks (job_id, chunk_no, first_seq, last_seq) VALUES (?, ?, ?, ?)`, l.job.ID, l.chunks, l.chunked, last); err != nil {
+		k := min(size, l.n-l.chunked)
+		if _, err := l.s.exec(l.ctx, l.tx, `INSERT INTO job_chunks (job_id, chunk_no, first_seq, last_seq) VALUES (?, ?, ?, ?)`,
+			l.job.ID, l.chunks, l.chunked, l.chunked+k-1); err != nil {
 			return fmt.Errorf("insert chunk: %w", err)
 		}
+		if _, err := l.s.exec(l.ctx, l.tx, `INSERT INTO job_chunk_items (job_id, chunk_no, items) VALUES (?, ?, ?)`,
+			l.job.ID, l.chunks, l.pack.take(k)); err != nil {
+			return fmt.Errorf("insert chunk items: %w", err)
+		}
 		l.chunks++
-		l.chunked = last + 1
+		l.chunked += k
 	}
 	return l.s.notifyJob(l.ctx, l.tx, "new:"+l.job.ID)
 }
@@ -312,21 +313,6 @@ func (l *jobLoad) finish(meta JobMeta) error {
 		}
 	}
 	return l.s.claimIdempotency(ctx, tx, j.ID)
-}
-
-// insertItem encodes one job item and adds it to the bulk insert.
-func insertItem(ctx context.Context, ins *bulkInsert, jobID string, seq int, it JobInput) error {
-	src, err := encodeSource(it.Source)
-	if err != nil {
-		return err
-	}
-	ex := []byte("[]")
-	if len(it.Extra) > 0 {
-		if ex, err = json.Marshal(it.Extra); err != nil {
-			return err
-		}
-	}
-	return ins.add(ctx, jobID, seq, it.ItemID, it.Line, string(src), string(ex))
 }
 
 // encodeSource is json.Marshal of an item source; one holding only a SMILES (almost every
@@ -445,55 +431,153 @@ func (it *RankedItem) ResultOf(ctx context.Context, c screening.Conditions) (jso
 // order; failed and still-pending items share the key that puts them last), calling fn for each
 // from position offset, at most limit (limit ≤ 0: all). fn's error stops the stream and is
 // returned.
+//
+// The order is taken from the chunks' rank keys alone (KeyLen bytes per item); only the chunks
+// holding items of the window asked for are read and unpacked.
 func (s *Store) RankedItems(ctx context.Context, jobID string, offset, limit int, fn func(rank int, it RankedItem) error) error {
-	if limit <= 0 {
-		limit = -1
-		if s.dialect.numbered {
-			limit = 1 << 62
-		}
-	}
-	last := batch.FailedKey()
-	rows, err := s.db.QueryContext(ctx, s.q(`SELECT i.seq, i.item_id, i.line, i.extra, i.source, r.failed, r.result, COALESCE(r.summary, '')
-		FROM job_items i LEFT JOIN job_results r ON r.job_id = i.job_id AND r.seq = i.seq
-		WHERE i.job_id = ? ORDER BY COALESCE(r.rank_key, ?), i.seq LIMIT ? OFFSET ?`), jobID, last[:], limit, offset)
+	order, chunks, err := s.rankOrder(ctx, jobID)
 	if err != nil {
 		return fmt.Errorf("ranked items: %w", err)
 	}
-	defer rows.Close()
-	rank := offset
-	for rows.Next() {
-		var it RankedItem
-		var ex, src string
-		var failed sql.NullInt64
-		var res []byte
-		if err := rows.Scan(&it.Seq, &it.ItemID, &it.Line, &ex, &src, &failed, &res, &it.Summary); err != nil {
+	if offset < 0 {
+		offset = 0
+	}
+	end := len(order)
+	if limit > 0 && offset < end {
+		end = min(end, offset+limit)
+	}
+	for rank := offset; rank < end; rank++ {
+		e := order[rank]
+		ch := &chunks[e.chunk]
+		if ch.items == nil {
+			if err := s.unpackChunk(ctx, jobID, ch); err != nil {
+				return fmt.Errorf("ranked items: %w", err)
+			}
+		}
+		it, err := ch.ranked(int(e.off))
+		if err != nil {
 			return fmt.Errorf("ranked items: %w", err)
 		}
-		if batch.IsRecomputeMark(res) {
-			it.Recompute, res = true, nil
-			if it.Source, err = batch.DecodeItemSource(src); err != nil {
-				return fmt.Errorf("ranked items: item %d source: %w", it.Seq, err)
-			}
-		} else if res, err = batch.DecodeResult(res); err != nil {
-			return fmt.Errorf("ranked items: item %d: %w", it.Seq, err)
-		}
-		if err := json.Unmarshal([]byte(ex), &it.Extra); err != nil {
-			return fmt.Errorf("ranked items: item %d extra columns: %w", it.Seq, err)
-		}
-		switch {
-		case !failed.Valid:
-			it.State = batch.ItemPending
-		case failed.Int64 != 0:
-			it.State, it.Result = batch.ItemFailed, res
-		default:
-			it.State, it.Result = batch.ItemDone, res
-		}
-		rank++
-		if err := fn(rank, it); err != nil {
+		if err := fn(rank+1, it); err != nil {
 			return err
 		}
 	}
-	return rows.Err()
+	return nil
+}
+
+// rankEntry is one item in the rank order: its chunk (index into the job's chunks) and place
+// in it.
+type rankEntry struct{ chunk, off int32 }
+
+// rankedChunk is one chunk of a job being read in rank order: its keys, and once needed its
+// unpacked items and outcomes.
+type rankedChunk struct {
+	no, first, n int
+	keys         []byte
+	items        []packedItem
+	outcome      []int32 // per item, its index in outcomes or −1
+	outcomes     []packedOutcome
+}
+
+// rankOrder reads a job's chunks' rank keys and returns its items in rank order.
+func (s *Store) rankOrder(ctx context.Context, jobID string) ([]rankEntry, []rankedChunk, error) {
+	rows, err := s.db.QueryContext(ctx, s.q(`SELECT c.chunk_no, c.first_seq, c.last_seq, r.rank_keys FROM job_chunks c
+		LEFT JOIN job_chunk_results r ON r.job_id = c.job_id AND r.chunk_no = c.chunk_no
+		WHERE c.job_id = ? ORDER BY c.chunk_no`), jobID)
+	if err != nil {
+		return nil, nil, err
+	}
+	defer rows.Close()
+	var chunks []rankedChunk
+	total := 0
+	for rows.Next() {
+		var c rankedChunk
+		var last int
+		if err := rows.Scan(&c.no, &c.first, &last, &c.keys); err != nil {
+			return nil, nil, err
+		}
+		c.n = last - c.first + 1
+		if c.keys == nil { // no outcomes yet
+			c.keys = pendingKeys(c.n)
+		}
+		if err := checkKeys(c.keys, c.n); err != nil {
+			return nil, nil, fmt.Errorf("chunk %d: %w", c.no, err)
+		}
+		chunks = append(chunks, c)
+		total += c.n
+	}
+	if err := rows.Err(); err != nil {
+		return nil, nil, err
+	}
+	order := make([]rankEntry, 0, total)
+	for i := range chunks {
+		for k := range chunks[i].n {
+			order = append(order, rankEntry{int32(i), int32(k)})
+		}
+	}
+	key := func(e rankEntry) []byte {
+		return chunks[e.chunk].keys[int(e.off)*batch.KeyLen : int(e.off+1)*batch.KeyLen]
+	}
+	// chunks are in sequence order, so a stable sort by key keeps submission order in ties
+	slices.SortStableFunc(order, func(a, b rankEntry) int { return bytes.Compare(key(a), key(b)) })
+	return order, chunks, nil
+}
+
+// unpackChunk reads and unpacks a chunk's items and outcomes.
+func (s *Store) unpackChunk(ctx context.Context, jobID string, c *rankedChunk) error {
+	var items, results []byte
+	if err := s.db.QueryRowContext(ctx, s.q(chunkPayloadQuery), jobID, c.no).Scan(&items, &results); err != nil {
+		return fmt.Errorf("chunk %d: %w", c.no, err)
+	}
+	var err error
+	if c.items, err = unpackItems(items, c.n); err != nil {
+		return fmt.Errorf("chunk %d items: %w", c.no, err)
+	}
+	if c.outcomes, err = unpackResults(results, c.n); err != nil {
+		return fmt.Errorf("chunk %d results: %w", c.no, err)
+	}
+	c.outcome = make([]int32, c.n)
+	for i := range c.outcome {
+		c.outcome[i] = -1
+	}
+	for i, o := range c.outcomes {
+		c.outcome[o.seq] = int32(i)
+	}
+	return nil
+}
+
+// chunkPayloadQuery reads a chunk's packed items and outcomes (NULL when it has none).
+const chunkPayloadQuery = `SELECT i.items, r.results FROM job_chunk_items i
+	LEFT JOIN job_chunk_results r ON r.job_id = i.job_id AND r.chunk_no = i.chunk_no
+	WHERE i.job_id = ? AND i.chunk_no = ?`
+
+// ranked returns item off of an unpacked chunk.
+func (c *rankedChunk) ranked(off int) (RankedItem, error) {
+	p := &c.items[off]
+	it := RankedItem{Seq: c.first + off, ItemID: string(p.id), Line: p.line, Extra: p.extra, State: batch.ItemPending}
+	k := c.outcome[off]
+	if k < 0 {
+		return it, nil
+	}
+	o := &c.outcomes[k]
+	it.State, it.Summary = batch.ItemDone, string(o.summary)
+	if o.failed {
+		it.State = batch.ItemFailed
+	}
+	if batch.IsRecomputeMark(o.result) {
+		var err error
+		it.Recompute = true
+		if it.Source, err = batch.DecodeItemSource(string(p.source)); err != nil {
+			return RankedItem{}, fmt.Errorf("item %d source: %w", it.Seq, err)
+		}
+		return it, nil
+	}
+	res, err := batch.DecodeResult(o.result)
+	if err != nil {
+		return RankedItem{}, fmt.Errorf("item %d: %w", it.Seq, err)
+	}
+	it.Result = json.RawMessage(res)
+	return it, nil
 }
 
 // The batch.Store methods: chunk claims under leases.
@@ -534,46 +618,39 @@ func (s *Store) ClaimChunk(ctx context.Context, owner string, lease time.Duratio
 	return c, nil
 }
 
-// ChunkItems implements batch.Store: the chunk's items that have no result yet.
-//
-// A chunk's results are stored with its completion, so a chunk still to work has none — except
-// chunks of jobs carried over from versions that stored results item by item. One probe of the
-// results index tells which case it is, and only the second pays for an anti-join per item.
+// ChunkItems implements batch.Store: the chunk's items that have no outcome yet (a chunk's
+// outcomes are stored with its completion, so a chunk still to work has none — except chunks of
+// jobs carried over from versions that stored results item by item).
 func (s *Store) ChunkItems(ctx context.Context, c batch.Chunk) ([]batch.Item, error) {
-	var partly bool
-	if err := s.db.QueryRowContext(ctx, s.q(`SELECT EXISTS (SELECT 1 FROM job_results WHERE job_id = ? AND seq BETWEEN ? AND ?)`),
-		c.JobID, c.FirstSeq, c.LastSeq).Scan(&partly); err != nil {
+	var items, results []byte
+	if err := s.db.QueryRowContext(ctx, s.q(chunkPayloadQuery), c.JobID, c.No).Scan(&items, &results); err != nil {
 		return nil, err
 	}
-	q := `SELECT i.seq, i.item_id, i.line, i.source, i.extra FROM job_items i WHERE i.job_id = ? AND i.seq BETWEEN ? AND ? ORDER BY i.seq`
-	if partly {
-		q = `SELECT i.seq, i.item_id, i.line, i.source, i.extra FROM job_items i
-		WHERE i.job_id = ? AND i.seq BETWEEN ? AND ? AND NOT EXISTS (SELECT 1 FROM job_results r WHERE r.job_id = i.job_id AND r.seq = i.seq)
-		ORDER BY i.seq`
-	}
-	rows, err := s.db.QueryContext(ctx, s.q(q), c.JobID, c.FirstSeq, c.LastSeq)
+	n := c.LastSeq - c.FirstSeq + 1
+	packed, err := unpackItems(items, n)
 	if err != nil {
-		return nil, err
+		return nil, fmt.Errorf("chunk %d of job %s: %w", c.No, c.JobID, err)
 	}
-	defer rows.Close()
-	out := make([]batch.Item, 0, c.LastSeq-c.FirstSeq+1)
-	for rows.Next() {
-		var it batch.Item
-		var src, ex string
-		if err := rows.Scan(&it.Seq, &it.ItemID, &it.Line, &src, &ex); err != nil {
-			return nil, err
-		}
-		if it.Source, err = batch.DecodeItemSource(src); err != nil {
-			return nil, fmt.Errorf("item %d source: %w", it.Seq, err)
-		}
-		if ex == "[]" {
-			it.Extra = []string{} // what the decoder gives for an empty list
-		} else if err := json.Unmarshal([]byte(ex), &it.Extra); err != nil {
-			return nil, fmt.Errorf("item %d extra columns: %w", it.Seq, err)
-		}
-		out = append(out, it)
+	stored, err := unpackResults(results, n)
+	if err != nil {
+		return nil, fmt.Errorf("chunk %d of job %s: %w", c.No, c.JobID, err)
 	}
-	return out, rows.Err()
+	has := make([]bool, n)
+	for _, o := range stored {
+		has[o.seq] = true
+	}
+	out := make([]batch.Item, 0, n-len(stored))
+	for i, p := range packed {
+		if has[i] {
+			continue
+		}
+		src, err := batch.DecodeItemSource(string(p.source))
+		if err != nil {
+			return nil, fmt.Errorf("item %d source: %w", c.FirstSeq+i, err)
+		}
+		out = append(out, batch.Item{Seq: c.FirstSeq + i, ItemID: string(p.id), Line: p.line, Source: src, Extra: p.extra})
+	}
+	return out, nil
 }
 
 // RenewLease implements batch.Store.
@@ -596,43 +673,64 @@ func (s *Store) RenewLease(ctx context.Context, c batch.Chunk, lease time.Durati
 }
 
 // CompleteChunk implements batch.Store: outcomes of items already recorded are skipped, so a
-// chunk redone after a lost lease never counts an item twice.
+// chunk redone after a lost lease never counts an item twice. The outcomes are packed into the
+// chunk's row with its rank keys.
 func (s *Store) CompleteChunk(ctx context.Context, c batch.Chunk, outs []batch.Outcome) (string, error) {
 	var status string
 	err := s.tx(ctx, func(tx *sql.Tx) error {
-		res, err := s.exec(ctx, tx, `UPDATE job_chunks SET state = 'done', owner = '', lease_until_ms = 0 WHERE job_id = ? AND chunk_no = ? AND state = 'claimed' AND owner = ?`,
+		r, err := s.exec(ctx, tx, `UPDATE job_chunks SET state = 'done', owner = '', lease_until_ms = 0 WHERE job_id = ? AND chunk_no = ? AND state = 'claimed' AND owner = ?`,
 			c.JobID, c.No, c.Owner)
 		if err != nil {
 			return err
 		}
-		if n, err := res.RowsAffected(); err != nil {
+		if n, err := r.RowsAffected(); err != nil {
 			return err
 		} else if n == 0 {
 			return batch.ErrLeaseLost
 		}
-		// items of a redone chunk that were stored before are skipped (so never counted twice);
-		// the rest go in multi-row statements (one call per rows of a statement, not per item)
-		stored, err := s.storedSeqs(ctx, tx, c)
-		if err != nil {
+		n := c.LastSeq - c.FirstSeq + 1
+		var prev, keys []byte
+		err = s.queryRow(ctx, tx, `SELECT results, rank_keys FROM job_chunk_results WHERE job_id = ? AND chunk_no = ?`, c.JobID, c.No).Scan(&prev, &keys)
+		switch {
+		case errors.Is(err, sql.ErrNoRows): // the usual case: no outcomes before
+			prev, keys = nil, pendingKeys(n)
+		case err != nil:
 			return err
 		}
+		if err := checkKeys(keys, n); err != nil {
+			return fmt.Errorf("chunk %d of job %s: %w", c.No, c.JobID, err)
+		}
+		stored, err := unpackResults(prev, n)
+		if err != nil {
+			return fmt.Errorf("chunk %d of job %s: %w", c.No, c.JobID, err)
+		}
+		has := make([]bool, n)
+		for _, o := range stored {
+			has[o.seq] = true
+		}
+		res := prev
+		if res == nil {
+			res = newResults(len(outs) * 160)
+		}
 		done, failed := 0, 0
-		ins := newBulkInsert(s, tx, `INSERT INTO job_results (job_id, seq, rank_key, verdict, failed, result, summary) VALUES `, 7, ` ON CONFLICT DO NOTHING`)
 		for _, o := range outs {
-			if stored[o.Seq] {
+			off := o.Seq - c.FirstSeq
+			if off < 0 || off >= n {
+				return fmt.Errorf("outcome for item %d outside chunk %d (%d–%d)", o.Seq, c.No, c.FirstSeq, c.LastSeq)
+			}
+			if has[off] {
 				continue
 			}
-			f := 0
-			if o.Failed {
-				f = 1
-			}
-			if err := ins.add(ctx, c.JobID, o.Seq, o.Key[:], o.Verdict, f, o.Result, o.Summary); err != nil {
-				return err
-			}
+			has[off] = true
+			res = appendOutcome(res, off, o)
+			copy(keys[off*batch.KeyLen:], o.Key[:])
 			done++
-			failed += f
+			if o.Failed {
+				failed++
+			}
 		}
-		if err := ins.flush(ctx); err != nil {
+		if _, err := s.exec(ctx, tx, `INSERT INTO job_chunk_results (job_id, chunk_no, rank_keys, results) VALUES (?, ?, ?, ?)
+			ON CONFLICT (job_id, chunk_no) DO UPDATE SET rank_keys = excluded.rank_keys, results = excluded.results`, c.JobID, c.No, keys, res); err != nil {
 			return err
 		}
 		if _, err := s.exec(ctx, tx, `UPDATE jobs SET done = done + ?, failed = failed + ? WHERE id = ?`, done, failed, c.JobID); err != nil {
@@ -657,89 +755,6 @@ func (s *Store) finishIfComplete(ctx context.Context, tx *sql.Tx, jobID string) 
 	return status, err
 }
 
-// storedSeqs returns the sequence numbers of a chunk's items that already have a result.
-func (s *Store) storedSeqs(ctx context.Context, tx *sql.Tx, c batch.Chunk) (map[int]bool, error) {
-	rows, err := tx.QueryContext(ctx, s.q(`SELECT seq FROM job_results WHERE job_id = ? AND seq BETWEEN ? AND ?`), c.JobID, c.FirstSeq, c.LastSeq)
-	if err != nil {
-		return nil, err
-	}
-	defer rows.Close()
-	out := map[int]bool{}
-	for rows.Next() {
-		var q int
-		if err := rows.Scan(&q); err != nil {
-			return nil, err
-		}
-		out[q] = true
-	}
-	return out, rows.Err()
-}
-
-// bulkInsert gathers rows and writes them bulkRows at a time in one multi-row INSERT.
-type bulkInsert struct {
-	s          *Store
-	tx         *sql.Tx
-	head, tail string
-	cols, n    int
-	args       []any
-	stmt       *sql.Stmt // the prepared full-size statement
-}
-
-// bulkRows is the rows per statement (design choice: well under both engines' parameter limits).
-const bulkRows = 64
-
-func newBulkInsert(s *Store, tx *sql.Tx, head string, cols int, tail string) *bulkInsert {
-	return &bulkInsert{s: s, tx: tx, head: head, tail: tail, cols: cols}
-}
-
-func (b *bulkInsert) query(rows int) string {
-	var q strings.Builder
-	q.WriteString(b.head)
-	row := "(" + strings.TrimSuffix(strings.Repeat("?, ", b.cols), ", ") + ")"
-	for i := 0; i < rows; i++ {
-		if i > 0 {
-			q.WriteString(", ")
-		}
-		q.WriteString(row)
-	}
-	q.WriteString(b.tail)
-	return b.s.q(q.String())
-}
-
-func (b *bulkInsert) add(ctx context.Context, vals ...any) error {
-	b.args = append(b.args, vals...)
-	b.n++
-	if b.n < bulkRows {
-		return nil
-	}
-	if b.stmt == nil {
-		st, err := b.tx.PrepareContext(ctx, b.query(bulkRows))
-		if err != nil {
-			return err
-		}
-		b.stmt = st
-	}
-	_, err := b.stmt.ExecContext(ctx, b.args...)
-	b.args, b.n = b.args[:0], 0
-	return err
-}
-
-// flush writes the rows gathered since the last full statement and closes the statement.
-func (b *bulkInsert) flush(ctx context.Context) error {
-	defer func() {
-		if b.stmt != nil {
-			b.stmt.Close()
-			b.stmt = nil
-		}
-	}()
-	if b.n == 0 {
-		return nil
-	}
-	_, err := b.tx.ExecContext(ctx, b.query(b.n), b.args...)
-	b.args, b.n = b.args[:0], 0
-	return err
-}
-
 // ReleaseChunk implements batch.Store.
 func (s *Store) ReleaseChunk(ctx context.Context, c batch.Chunk) error {
 	return s.tx(ctx, func(tx *sql.Tx) error {
@@ -755,4 +770,51 @@ func (s *Store) FailJob(ctx context.Context, jobID, msg string) error {
 		_, err := s.exec(ctx, tx, `UPDATE jobs SET status = 'failed', error = ?, finished_at = ? WHERE id = ? AND status IN ('queued', 'running')`, msg, now(), jobID)
 		return err
 	})
+}
+
+// OutcomeCount is what a job's packed chunks hold (CountOutcomes).
+type OutcomeCount struct {
+	Items    int // items over all chunks
+	Outcomes int // outcomes stored
+	Distinct int // items with at least one outcome
+	Open     int // chunks not done
+}
+
+// CountOutcomes unpacks every chunk of a job and counts its items and outcomes: a consistency
+// check (each item recorded once: Outcomes == Distinct == Items once the job is done) for tests
+// and diagnosis.
+func (s *Store) CountOutcomes(ctx context.Context, jobID string) (OutcomeCount, error) {
+	rows, err := s.db.QueryContext(ctx, s.q(`SELECT c.first_seq, c.last_seq, c.state, r.results FROM job_chunks c
+		LEFT JOIN job_chunk_results r ON r.job_id = c.job_id AND r.chunk_no = c.chunk_no WHERE c.job_id = ?`), jobID)
+	if err != nil {
+		return OutcomeCount{}, err
+	}
+	defer rows.Close()
+	var oc OutcomeCount
+	for rows.Next() {
+		var first, last int
+		var state string
+		var res []byte
+		if err := rows.Scan(&first, &last, &state, &res); err != nil {
+			return OutcomeCount{}, err
+		}
+		n := last - first + 1
+		outs, err := unpackResults(res, n)
+		if err != nil {
+			return OutcomeCount{}, fmt.Errorf("chunk from item %d: %w", first, err)
+		}
+		seen := make([]bool, n)
+		for _, o := range outs {
+			if !seen[o.seq] {
+				seen[o.seq] = true
+				oc.Distinct++
+			}
+		}
+		oc.Items += n
+		oc.Outcomes += len(outs)
+		if state != "done" {
+			oc.Open++
+		}
+	}
+	return oc, rows.Err()
 }

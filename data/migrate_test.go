@@ -4,9 +4,13 @@ import (
 	"context"
 	"database/sql"
 	"encoding/json"
+	"fmt"
 	"os"
 	"path/filepath"
+	"slices"
+	"strings"
 	"testing"
+	"time"
 
 	"github.com/pressly/goose/v3"
 
@@ -98,5 +102,120 @@ func TestDatabaseFileIsPrivate(t *testing.T) {
 	}
 	if mode := fi.Mode().Perm(); mode != 0o600 {
 		t.Errorf("database file mode %o, want 600", mode)
+	}
+}
+
+// TestPackMigrationKeepsJobs builds a database at the layout before packed chunks (SQLite 11,
+// PostgreSQL 4: a row per item in job_items and job_results) on both engines, opens it with
+// this version and checks that every item, outcome and rank survives the packing: a running
+// job with one done chunk and one holding an outcome stored item by item (as jobs carried over
+// from the first version do), and a finished job that never had chunks (SQLite's oldest jobs).
+func TestPackMigrationKeepsJobs(t *testing.T) {
+	ctx := context.Background()
+	for _, e := range engines {
+		t.Run(e.name, func(t *testing.T) {
+			dsn := e.dsn(t)
+			raw := &Store{dialect: sqliteDialect}
+			var err error
+			dialect, fsys, before := goose.DialectSQLite3, migrations.SQLite, int64(11)
+			if IsPostgresURL(dsn) {
+				raw.dialect, dialect, fsys, before = postgresDialect, goose.DialectPostgres, migrations.Postgres, 4
+				raw.db, err = sql.Open("pgx", dsn)
+			} else {
+				raw.db, err = sql.Open("sqlite3", "file:"+dsn+"?_foreign_keys=on")
+			}
+			if err != nil {
+				t.Fatal(err)
+			}
+			prov, err := raw.migrations(dialect, fsys)
+			if err != nil {
+				t.Fatal(err)
+			}
+			if _, err := prov.UpTo(ctx, before); err != nil {
+				t.Fatal(err)
+			}
+			key := func(score, dg float64) []byte { k := batch.ScoreKey(score, dg); return k[:] }
+			failed := batch.FailedKey()
+			for _, st := range []struct {
+				q    string
+				args []any
+			}{
+				{`INSERT INTO jobs (id, status, conditions, total, done, failed, source_format, extra_columns, created_at) VALUES (?, 'running', '{}', 4, 3, 1, 'csv', '["lab"]', '2026-11-01T00:00:00Z')`, []any{"job_run"}},
+				{`INSERT INTO jobs (id, status, conditions, total, done, failed, source_format, created_at) VALUES (?, 'done', '{}', 2, 2, 0, 'json', '2026-10-01T00:00:00Z')`, []any{"job_bare"}},
+				{`INSERT INTO job_chunks (job_id, chunk_no, first_seq, last_seq, state) VALUES ('job_run', 0, 0, 1, 'done'), ('job_run', 1, 2, 3, 'pending')`, nil},
+				{`INSERT INTO job_items (job_id, seq, item_id, line, source, extra) VALUES (?, 0, 'a', 2, '{"smiles":"C1=CCCC1"}', '["east"]'), (?, 1, 'b', 3, '{"smiles":"C1=CC("}', '["west"]'),
+					(?, 2, 'c', 4, '{"smiles":"C1=CC2CCC1C2"}', '[""]'), (?, 3, 'd', 5, '{"monomer_id":"mon_1"}', '["x,y"]')`, []any{"job_run", "job_run", "job_run", "job_run"}},
+				{`INSERT INTO job_results (job_id, seq, rank_key, verdict, failed, result, summary) VALUES (?, 0, ?, 'equilibrium_limited', 0, ?, 'equilibrium_limited'),
+					(?, 1, ?, '', 1, ?, ''), (?, 2, ?, 'polymerizes', 0, ?, 'polymerizes')`,
+					[]any{"job_run", key(0.5, -1.5), []byte(`{"verdict":"equilibrium_limited"}`), "job_run", failed[:], []byte(`{"code":"invalid_smiles"}`),
+						"job_run", key(0.9, -40), []byte(`{"verdict":"polymerizes"}`)}},
+				{`INSERT INTO job_items (job_id, seq, item_id, source) VALUES (?, 0, 'p', '{"smiles":"C1=CCCCCCC1"}'), (?, 1, 'q', '{"smiles":"C1=CCCC1"}')`, []any{"job_bare", "job_bare"}},
+				{`INSERT INTO job_results (job_id, seq, rank_key, verdict, failed, result, summary) VALUES (?, 0, ?, 'polymerizes', 0, ?, 's0'), (?, 1, ?, 'polymerizes', 0, ?, 's1')`,
+					[]any{"job_bare", key(0.2, -10), []byte(`{"n":0}`), "job_bare", key(0.8, -20), []byte(`{"n":1}`)}},
+			} {
+				if _, err := raw.db.ExecContext(ctx, raw.q(st.q), st.args...); err != nil {
+					t.Fatalf("%s: %v", st.q, err)
+				}
+			}
+			raw.db.Close()
+
+			s, err := Open(ctx, dsn)
+			if err != nil {
+				t.Fatal(err)
+			}
+			defer s.Close()
+			ranked := func(job string) []string {
+				var out []string
+				err := s.RankedItems(ctx, job, 0, 0, func(rank int, it RankedItem) error {
+					out = append(out, fmt.Sprintf("%d %s line %d %q %s %s %s", rank, it.ItemID, it.Line, it.Extra, it.State, it.Result, it.Summary))
+					return nil
+				})
+				if err != nil {
+					t.Fatal(err)
+				}
+				return out
+			}
+			want := []string{
+				`1 c line 4 [""] done {"verdict":"polymerizes"} polymerizes`,
+				`2 a line 2 ["east"] done {"verdict":"equilibrium_limited"} equilibrium_limited`,
+				`3 b line 3 ["west"] failed {"code":"invalid_smiles"} `,
+				`4 d line 5 ["x,y"] pending  `,
+			}
+			if got := ranked("job_run"); !slices.Equal(got, want) {
+				t.Errorf("running job after packing:\n%s\nwant\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))
+			}
+			want = []string{`1 q line 0 [] done {"n":1} s1`, `2 p line 0 [] done {"n":0} s0`}
+			if got := ranked("job_bare"); !slices.Equal(got, want) {
+				t.Errorf("finished job without chunks after packing:\n%s\nwant\n%s", strings.Join(got, "\n"), strings.Join(want, "\n"))
+			}
+			var page []string
+			if err := s.RankedItems(ctx, "job_run", 1, 2, func(rank int, it RankedItem) error {
+				page = append(page, fmt.Sprintf("%d %s", rank, it.ItemID))
+				return nil
+			}); err != nil || !slices.Equal(page, []string{"2 a", "3 b"}) {
+				t.Errorf("page from 1, 2 items: %v %v", page, err)
+			}
+			c, err := s.ClaimChunk(ctx, "w", time.Minute)
+			if err != nil {
+				t.Fatal(err)
+			}
+			items, err := s.ChunkItems(ctx, c)
+			if err != nil || len(items) != 1 || items[0].ItemID != "d" || items[0].Source.MonomerID != "mon_1" || !slices.Equal(items[0].Extra, []string{"x,y"}) {
+				t.Fatalf("resumed items %+v %v", items, err)
+			}
+			if st, err := s.CompleteChunk(ctx, c, []batch.Outcome{{Seq: 3, Key: batch.ScoreKey(0.7, -5), Result: []byte(`{}`), Summary: "d"}}); err != nil || st != batch.JobDone {
+				t.Fatalf("resumed job: %s %v", st, err)
+			}
+			if j, _ := s.GetJob(ctx, "job_run"); j.Done != 4 || j.Failed != 1 {
+				t.Errorf("counters after resume: %+v", j)
+			}
+			if got := ranked("job_run"); len(got) != 4 || !strings.HasPrefix(got[1], "2 d ") {
+				t.Errorf("after resume: %q", got)
+			}
+			var n int
+			if err := s.DB().QueryRow(`SELECT count(*) FROM job_items`).Scan(&n); err == nil {
+				t.Errorf("job_items still there (%d rows)", n)
+			}
+		})
 	}
 }

@@ -113,21 +113,35 @@ func createPrivate(path string) error {
 	return f.Close()
 }
 
-// migrate applies every pending migration of the engine's folder; on SQLite also the data
-// migrations that move job results of earlier versions into the chunked layout and backfill
-// structure keys (a PostgreSQL store starts at the current layout).
+// migrate applies every pending migration of the engine's folder and the data migrations
+// written in Go: on SQLite moving job results of earlier versions into the chunked layout and
+// backfilling structure keys (a PostgreSQL store started at that layout), on both packing job
+// items and outcomes into their chunks.
 func (s *Store) migrate(ctx context.Context, d goose.Dialect, fsys fs.FS) error {
+	prov, err := s.migrations(d, fsys)
+	if err != nil {
+		return err
+	}
+	_, err = prov.Up(ctx)
+	return err
+}
+
+// migrations returns the engine's migrations with the Go ones registered.
+func (s *Store) migrations(d goose.Dialect, fsys fs.FS) (*goose.Provider, error) {
+	pack := &goose.GoFunc{RunTx: s.packJobRows}
 	var opts []goose.ProviderOption
 	if d == goose.DialectSQLite3 {
 		opts = append(opts, goose.WithGoMigrations(
 			goose.NewGoMigration(4, &goose.GoFunc{RunTx: s.moveLegacyJobResults}, nil),
 			goose.NewGoMigration(7, &goose.GoFunc{RunTx: s.backfillStructureKeys}, nil),
+			goose.NewGoMigration(13, pack, nil),
 		))
+	} else {
+		opts = append(opts, goose.WithGoMigrations(goose.NewGoMigration(6, pack, nil)))
 	}
 	prov, err := goose.NewProvider(d, s.db, fsys, opts...)
 	if err != nil {
-		return fmt.Errorf("migrations: %w", err)
+		return nil, fmt.Errorf("migrations: %w", err)
 	}
-	_, err = prov.Up(ctx)
-	return err
+	return prov, nil
 }

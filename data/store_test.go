@@ -264,9 +264,7 @@ func behaviourChunksClaimedOnceAndRecordedOnce(t *testing.T, e engine) {
 	if got.Done != 3 || got.Status != batch.JobDone || got.FinishedAt == nil {
 		t.Fatalf("finished job %+v", got)
 	}
-	var n int
-	s.DB().QueryRow(s.q(`SELECT count(*) FROM job_results WHERE job_id = ?`), j.ID).Scan(&n)
-	if n != 3 {
+	if n := storedOutcomes(t, s, j.ID); n != 3 {
 		t.Fatalf("%d results stored, want 3", n)
 	}
 	if _, err := s.CancelJob(ctx, j.ID); !errors.Is(err, ErrJobFinished) {
@@ -341,10 +339,21 @@ func behaviourJobStreamRollsBack(t *testing.T, e engine) {
 		t.Fatal("no error")
 	}
 	var n int
-	s.DB().QueryRow(s.q(`SELECT (SELECT count(*) FROM jobs) + (SELECT count(*) FROM job_items) + (SELECT count(*) FROM job_chunks)`)).Scan(&n)
+	s.DB().QueryRow(s.q(`SELECT (SELECT count(*) FROM jobs) + (SELECT count(*) FROM job_chunks)
+		+ (SELECT count(*) FROM job_chunk_items) + (SELECT count(*) FROM job_chunk_results)`)).Scan(&n)
 	if n != 0 {
 		t.Fatalf("%d rows left behind", n)
 	}
+}
+
+// storedOutcomes counts the outcomes stored in a job's chunks.
+func storedOutcomes(t *testing.T, s *Store, jobID string) int {
+	t.Helper()
+	oc, err := s.CountOutcomes(context.Background(), jobID)
+	if err != nil {
+		t.Fatal(err)
+	}
+	return oc.Outcomes
 }
 
 // streamSpec is a JobSpec with the conditions known before the items (a file upload).
@@ -357,8 +366,8 @@ func streamSpec(size int, onChunk func()) JobSpec {
 func jobRowCount(t *testing.T, s *Store, jobID string) int {
 	t.Helper()
 	var n int
-	if err := s.DB().QueryRow(s.q(`SELECT (SELECT count(*) FROM jobs WHERE id = ?) + (SELECT count(*) FROM job_items WHERE job_id = ?)
-		+ (SELECT count(*) FROM job_chunks WHERE job_id = ?) + (SELECT count(*) FROM job_results WHERE job_id = ?)
+	if err := s.DB().QueryRow(s.q(`SELECT (SELECT count(*) FROM jobs WHERE id = ?) + (SELECT count(*) FROM job_chunks WHERE job_id = ?)
+		+ (SELECT count(*) FROM job_chunk_items WHERE job_id = ?) + (SELECT count(*) FROM job_chunk_results WHERE job_id = ?)
 		+ (SELECT count(*) FROM job_loading WHERE job_id = ?)`), jobID, jobID, jobID, jobID, jobID).Scan(&n); err != nil {
 		t.Fatal(err)
 	}
@@ -465,9 +474,10 @@ func behaviourFailedLoadLeavesNothing(t *testing.T, e engine) {
 		if _, err := s.CompleteChunk(ctx, c, outcomes(items)); err != nil {
 			return JobMeta{}, err
 		}
-		// job, loading mark, four items, two chunks, two results
-		if n := jobRowCount(t, s, jobID); n != 1+1+4+2+2 {
-			return JobMeta{}, fmt.Errorf("%d rows committed while loading, want 10", n)
+		// job, loading mark, two chunks with their packed items (two each), one with its
+		// packed outcomes (two)
+		if n, o := jobRowCount(t, s, jobID), storedOutcomes(t, s, jobID); n != 1+1+2+2+1 || o != 2 {
+			return JobMeta{}, fmt.Errorf("%d rows and %d outcomes committed while loading, want 7 and 2", n, o)
 		}
 		// one more item (in a transaction not committed yet), then the file turns out bad
 		if err := add(JobInput{ItemID: "4", Source: batch.ItemSource{SMILES: "C1=CCCC1"}}); err != nil {
@@ -511,7 +521,8 @@ func behaviourIgnoredWriteErrorFailsTheLoad(t *testing.T, e engine) {
 			t.Fatalf("streamed %v: add error %v, job error %v", spec.Conditions != nil, ignored, err)
 		}
 		var n int
-		s.DB().QueryRow(s.q(`SELECT (SELECT count(*) FROM jobs) + (SELECT count(*) FROM job_items) + (SELECT count(*) FROM job_chunks)`)).Scan(&n)
+		s.DB().QueryRow(s.q(`SELECT (SELECT count(*) FROM jobs) + (SELECT count(*) FROM job_chunks)
+		+ (SELECT count(*) FROM job_chunk_items) + (SELECT count(*) FROM job_chunk_results)`)).Scan(&n)
 		if n != 0 {
 			t.Fatalf("streamed %v: %d rows left behind", spec.Conditions != nil, n)
 		}

@@ -1,6 +1,6 @@
 // Package migrations holds the numbered SQL migrations of the ringsieve store, one folder per
-// engine (goose format), embedded so the binary migrates its database on start. Version 4 is a
-// data migration written in Go (data/migrate_jobs.go).
+// engine (goose format), embedded so the binary migrates its database on start. Some versions
+// are data migrations written in Go (data/open.go lists them): SQLite 4, 7 and 13, PostgreSQL 6.
 package migrations
 
 import (

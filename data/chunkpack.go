@@ -1,0 +1,243 @@
+package data
+
+import (
+	"encoding/binary"
+	"errors"
+	"fmt"
+
+	"ringsieve/screening/batch"
+)
+
+// A job's items and outcomes are stored packed, one row per chunk (job_chunk_items.items,
+// job_chunk_results.rank_keys and .results) instead of one row per item: per-row work in the
+// database (a B-tree insert per item and index, a read-back through the index, foreign-key
+// probes) cost about as much as screening an item of the fast tier. The packing is our own,
+// versioned by a leading byte where it has one:
+//
+//	items:   'i' 1, then per item in sequence order:
+//	         str item id, uvarint input line, str source (JSON, batch.DecodeItemSource),
+//	         uvarint number of extra columns, str each
+//	rank_keys: per item in sequence order its rank key (batch.KeyLen bytes; batch.FailedKey for
+//	         an item without an outcome, which ranks it last as a pending item)
+//	results: 'r' 1, then per outcome: uvarint seq − first seq, str verdict, byte failed (0/1),
+//	         str stored result (batch.EncodeResult form, or a JSON item error), str CSV summary
+//
+// where str is a uvarint length and that many bytes. Outcomes of a chunk are stored with its
+// completion; a chunk carried over from earlier versions may hold some before it is done.
+
+// errBadPack marks a packed chunk that cannot be read (a damaged database).
+var errBadPack = errors.New("packed job chunk unreadable")
+
+const (
+	itemsPackV1   = 'i'
+	resultsPackV1 = 'r'
+)
+
+func putStr(b []byte, s string) []byte {
+	b = binary.AppendUvarint(b, uint64(len(s)))
+	return append(b, s...)
+}
+
+// itemPacker gathers encoded items.
+type itemPacker struct {
+	buf  []byte // encoded items, no header
+	ends []int  // end offset in buf of each item
+}
+
+func (p *itemPacker) add(it JobInput) error {
+	src, err := encodeSource(it.Source)
+	if err != nil {
+		return err
+	}
+	b := putStr(p.buf, it.ItemID)
+	b = binary.AppendUvarint(b, uint64(max(it.Line, 0)))
+	b = binary.AppendUvarint(b, uint64(len(src)))
+	b = append(b, src...)
+	b = binary.AppendUvarint(b, uint64(len(it.Extra)))
+	for _, e := range it.Extra {
+		b = putStr(b, e)
+	}
+	p.buf = b
+	p.ends = append(p.ends, len(b))
+	return nil
+}
+
+// take removes the first n items and returns them packed.
+func (p *itemPacker) take(n int) []byte {
+	end := p.ends[n-1]
+	items := make([]byte, 0, end+2)
+	items = append(items, itemsPackV1, 1)
+	items = append(items, p.buf[:end]...)
+	p.buf = p.buf[:copy(p.buf, p.buf[end:])]
+	p.ends = p.ends[:copy(p.ends, p.ends[n:])]
+	for i := range p.ends {
+		p.ends[i] -= end
+	}
+	return items
+}
+
+// pendingKeys is the keys column of n items without outcomes.
+func pendingKeys(n int) []byte {
+	k := batch.FailedKey()
+	b := make([]byte, 0, n*batch.KeyLen)
+	for range n {
+		b = append(b, k[:]...)
+	}
+	return b
+}
+
+// unpack reads packed fields in order; the first error sticks.
+type unpack struct {
+	b   []byte
+	err error
+}
+
+func (u *unpack) uvarint() uint64 {
+	if u.err != nil {
+		return 0
+	}
+	v, n := binary.Uvarint(u.b)
+	if n <= 0 {
+		u.err = errBadPack
+		return 0
+	}
+	u.b = u.b[n:]
+	return v
+}
+
+func (u *unpack) bytes() []byte {
+	n := u.uvarint()
+	if u.err != nil {
+		return nil
+	}
+	if n > uint64(len(u.b)) {
+		u.err = errBadPack
+		return nil
+	}
+	v := u.b[:n:n]
+	u.b = u.b[n:]
+	return v
+}
+
+func (u *unpack) byte() byte {
+	if u.err != nil {
+		return 0
+	}
+	if len(u.b) == 0 {
+		u.err = errBadPack
+		return 0
+	}
+	v := u.b[0]
+	u.b = u.b[1:]
+	return v
+}
+
+// header checks the version bytes.
+func (u *unpack) header(kind byte) {
+	if len(u.b) < 2 || u.b[0] != kind || u.b[1] != 1 {
+		u.err = fmt.Errorf("%w: unknown packing", errBadPack)
+		return
+	}
+	u.b = u.b[2:]
+}
+
+// packedItem is one item read from a packed chunk; its strings alias the packed bytes.
+type packedItem struct {
+	id     []byte
+	line   int
+	source []byte
+	extra  []string
+}
+
+// unpackItems reads the n items of a packed chunk.
+func unpackItems(b []byte, n int) ([]packedItem, error) {
+	u := unpack{b: b}
+	u.header(itemsPackV1)
+	out := make([]packedItem, n)
+	for i := range out {
+		it := &out[i]
+		it.id = u.bytes()
+		it.line = int(u.uvarint())
+		it.source = u.bytes()
+		ne := u.uvarint()
+		if ne > uint64(len(u.b)) {
+			u.err = errBadPack
+		}
+		if u.err != nil {
+			break
+		}
+		it.extra = make([]string, ne) // an empty list, as the JSON decoder gives
+		for k := range it.extra {
+			it.extra[k] = string(u.bytes())
+		}
+	}
+	if u.err == nil && len(u.b) != 0 {
+		u.err = fmt.Errorf("%w: %d bytes after the last item", errBadPack, len(u.b))
+	}
+	if u.err != nil {
+		return nil, u.err
+	}
+	return out, nil
+}
+
+// packedOutcome is one stored outcome of a packed chunk; its slices alias the packed bytes.
+type packedOutcome struct {
+	seq     int // within the chunk (seq − first seq)
+	verdict []byte
+	failed  bool
+	result  []byte
+	summary []byte
+}
+
+// appendOutcome appends one outcome to a results column (started with newResults).
+func appendOutcome(b []byte, off int, o batch.Outcome) []byte {
+	b = binary.AppendUvarint(b, uint64(off))
+	b = putStr(b, o.Verdict)
+	f := byte(0)
+	if o.Failed {
+		f = 1
+	}
+	b = append(b, f)
+	b = binary.AppendUvarint(b, uint64(len(o.Result)))
+	b = append(b, o.Result...)
+	return putStr(b, o.Summary)
+}
+
+func newResults(capacity int) []byte {
+	return append(make([]byte, 0, capacity), resultsPackV1, 1)
+}
+
+// unpackResults reads a results column (nil: no outcomes) of a chunk of n items.
+func unpackResults(b []byte, n int) ([]packedOutcome, error) {
+	if b == nil {
+		return nil, nil
+	}
+	u := unpack{b: b}
+	u.header(resultsPackV1)
+	var out []packedOutcome
+	for u.err == nil && len(u.b) > 0 {
+		var o packedOutcome
+		off := u.uvarint()
+		o.verdict = u.bytes()
+		o.failed = u.byte() == 1
+		o.result = u.bytes()
+		o.summary = u.bytes()
+		if u.err == nil && off >= uint64(n) {
+			u.err = fmt.Errorf("%w: outcome for item %d of %d", errBadPack, off, n)
+		}
+		o.seq = int(off)
+		out = append(out, o)
+	}
+	if u.err != nil {
+		return nil, u.err
+	}
+	return out, nil
+}
+
+// checkKeys checks that a keys column holds n keys.
+func checkKeys(b []byte, n int) error {
+	if len(b) != n*batch.KeyLen {
+		return fmt.Errorf("%w: %d bytes of rank keys for %d items", errBadPack, len(b), n)
+	}
+	return nil
+}
