@@ -78,10 +78,9 @@ func (p *itemPacker) take(n int) []byte {
 
 // pendingKeys is the keys column of n items without outcomes.
 func pendingKeys(n int) []byte {
-	k := batch.FailedKey()
 	b := make([]byte, 0, n*batch.KeyLen)
 	for range n {
-		b = append(b, k[:]...)
+		b = append(b, pendingKey[:]...)
 	}
 	return b
 }

@@ -465,6 +465,9 @@ func (s *Store) RankedItems(ctx context.Context, jobID string, offset, limit int
 	return nil
 }
 
+// pendingKey is the rank key of an item without an outcome.
+var pendingKey = batch.FailedKey()
+
 // rankEntry is one item in the rank order: its chunk (index into the job's chunks) and place
 // in it.
 type rankEntry struct{ chunk, off int32 }
@@ -560,6 +563,11 @@ func (c *rankedChunk) ranked(off int) (RankedItem, error) {
 		return it, nil
 	}
 	o := &c.outcomes[k]
+	// an outcome stored after the rank keys were read (a chunk finished while a running job is
+	// read) waits for the next read, so each row stands where its state ranks it
+	if !o.failed && bytes.Equal(c.keys[off*batch.KeyLen:(off+1)*batch.KeyLen], pendingKey[:]) {
+		return it, nil
+	}
 	it.State, it.Summary = batch.ItemDone, string(o.summary)
 	if o.failed {
 		it.State = batch.ItemFailed

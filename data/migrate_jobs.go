@@ -65,24 +65,8 @@ func (s *Store) moveLegacyJobResults(ctx context.Context, tx *sql.Tx) error {
 		}
 	}
 	// chunks for unfinished jobs; items already done are skipped when their chunk is claimed
-	jrows, err := tx.QueryContext(ctx, `SELECT id, total FROM jobs WHERE status IN ('queued', 'running')`)
+	jobs, err := jobTotals(ctx, tx, `SELECT id, total FROM jobs WHERE status IN ('queued', 'running')`)
 	if err != nil {
-		return err
-	}
-	type job struct {
-		id    string
-		total int
-	}
-	var jobs []job
-	for jrows.Next() {
-		var j job
-		if err := jrows.Scan(&j.id, &j.total); err != nil {
-			jrows.Close()
-			return err
-		}
-		jobs = append(jobs, j)
-	}
-	if err := jrows.Close(); err != nil {
 		return err
 	}
 	for _, j := range jobs {
@@ -95,6 +79,30 @@ func (s *Store) moveLegacyJobResults(ctx context.Context, tx *sql.Tx) error {
 		}
 	}
 	return nil
+}
+
+// jobTotal is a job's id and item count.
+type jobTotal struct {
+	id    string
+	total int
+}
+
+// jobTotals runs a query for jobs' ids and totals (a data migration's list of jobs to change).
+func jobTotals(ctx context.Context, tx *sql.Tx, query string) ([]jobTotal, error) {
+	rows, err := tx.QueryContext(ctx, query)
+	if err != nil {
+		return nil, err
+	}
+	defer rows.Close()
+	var out []jobTotal
+	for rows.Next() {
+		var j jobTotal
+		if err := rows.Scan(&j.id, &j.total); err != nil {
+			return nil, err
+		}
+		out = append(out, j)
+	}
+	return out, rows.Err()
 }
 
 // legacyItemError turns an HTTP problem stored by earlier versions into an item error.

@@ -17,25 +17,9 @@ import (
 // none of their items is lost.
 func (s *Store) packJobRows(ctx context.Context, tx *sql.Tx) error {
 	// finished jobs without chunks (SQLite databases older than chunks)
-	rows, err := tx.QueryContext(ctx, `SELECT id, total FROM jobs j WHERE NOT EXISTS (SELECT 1 FROM job_chunks c WHERE c.job_id = j.id)`)
+	bare, err := jobTotals(ctx, tx, `SELECT id, total FROM jobs j WHERE NOT EXISTS (SELECT 1 FROM job_chunks c WHERE c.job_id = j.id)`)
 	if err != nil {
 		return fmt.Errorf("pack job rows: %w", err)
-	}
-	type job struct {
-		id    string
-		total int
-	}
-	var bare []job
-	for rows.Next() {
-		var j job
-		if err := rows.Scan(&j.id, &j.total); err != nil {
-			rows.Close()
-			return err
-		}
-		bare = append(bare, j)
-	}
-	if err := rows.Close(); err != nil {
-		return err
 	}
 	for _, j := range bare {
 		if err := s.insertChunks(ctx, tx, j.id, j.total, legacyChunk); err != nil {

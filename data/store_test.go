@@ -56,6 +56,7 @@ var behaviour = []struct {
 	{"ChunksClaimedOnceAndRecordedOnce", behaviourChunksClaimedOnceAndRecordedOnce},
 	{"CancelKeepsResults", behaviourCancelKeepsResults},
 	{"RankedItems", behaviourRankedItems},
+	{"RankedItemsWhileChunksFinish", behaviourRankedItemsWhileChunksFinish},
 	{"JobStreamRollsBack", behaviourJobStreamRollsBack},
 	{"UploadScreenedWhileLoading", behaviourUploadScreenedWhileLoading},
 	{"FailedLoadLeavesNothing", behaviourFailedLoadLeavesNothing},
@@ -324,6 +325,45 @@ func behaviourRankedItems(t *testing.T, e engine) {
 	want := "[1:3:done 2:0:done 3:1:failed 4:2:pending]"
 	if fmt.Sprint(order) != want {
 		t.Fatalf("order %v, want %s", order, want)
+	}
+}
+
+// TestRankedItemsWhileChunksFinish: a chunk finished while a running job is being read does not
+// put a done row among the pending ones; the next read ranks it.
+func behaviourRankedItemsWhileChunksFinish(t *testing.T, e engine) {
+	ctx := context.Background()
+	s, _ := e.open(t)
+	j := newJob(t, s, 1, "a", "b", "c")
+	complete := func(score float64) {
+		t.Helper()
+		c, err := s.ClaimChunk(ctx, "A", time.Minute)
+		if err != nil {
+			t.Fatal(err)
+		}
+		if _, err := s.CompleteChunk(ctx, c, []batch.Outcome{{Seq: c.FirstSeq, Key: batch.ScoreKey(score, -1), Result: []byte(`{}`)}}); err != nil {
+			t.Fatal(err)
+		}
+	}
+	complete(0.5)
+	read := func(during func()) string {
+		var order []string
+		err := s.RankedItems(ctx, j.ID, 0, 0, func(rank int, it RankedItem) error {
+			order = append(order, fmt.Sprintf("%d:%d:%s", rank, it.Seq, it.State))
+			if rank == 1 && during != nil {
+				during()
+			}
+			return nil
+		})
+		if err != nil {
+			t.Fatal(err)
+		}
+		return fmt.Sprint(order)
+	}
+	if got, want := read(func() { complete(0.9) }), "[1:0:done 2:1:pending 3:2:pending]"; got != want {
+		t.Errorf("read while the second chunk finished: %s, want %s", got, want)
+	}
+	if got, want := read(nil), "[1:1:done 2:0:done 3:2:pending]"; got != want {
+		t.Errorf("next read: %s, want %s", got, want)
 	}
 }
 
