@@ -132,9 +132,12 @@ func StructureKeyOf(s *describe.Structure) string {
 }
 
 // ConstitutionKey is the canonical key of the screened component's constitution (no stereo).
+// It is computed on the component in place, with the structure's own ring perception (rings,
+// aromaticity and hydrogen counts are each component's own, and canonical keys do not depend on
+// atom numbering; TestConstitutionKeyInPlace holds it equal to the key of the component taken
+// out as a molecule of its own).
 func ConstitutionKey(s *describe.Structure) string {
-	sub, _ := subMolecule(s.Mol, s.Main, false)
-	return canon.StructureKey(sub, rings.Perceive(sub), seq(len(sub.Atoms)))
+	return canon.StructureKey(s.Mol, s.Rings, s.Main)
 }
 
 func hasStereoMarks(m *mol.Molecule) bool {
