@@ -38,10 +38,11 @@ func putStr(b []byte, s string) []byte {
 	return append(b, s...)
 }
 
-// itemPacker gathers encoded items.
+// itemPacker gathers encoded items until they are taken a chunk at a time.
 type itemPacker struct {
-	buf  []byte // encoded items, no header
-	ends []int  // end offset in buf of each item
+	buf   []byte // encoded items, no header
+	ends  []int  // end offset in buf of each item
+	taken int    // items already taken (the first ends[taken−1] bytes of buf)
 }
 
 func (p *itemPacker) add(it JobInput) error {
@@ -62,16 +63,19 @@ func (p *itemPacker) add(it JobInput) error {
 	return nil
 }
 
-// take removes the first n items and returns them packed.
+// take removes the next n items and returns them packed.
 func (p *itemPacker) take(n int) []byte {
-	end := p.ends[n-1]
-	items := make([]byte, 0, end+2)
+	start := 0
+	if p.taken > 0 {
+		start = p.ends[p.taken-1]
+	}
+	end := p.ends[p.taken+n-1]
+	items := make([]byte, 0, end-start+2)
 	items = append(items, itemsPackV1, 1)
-	items = append(items, p.buf[:end]...)
-	p.buf = p.buf[:copy(p.buf, p.buf[end:])]
-	p.ends = p.ends[:copy(p.ends, p.ends[n:])]
-	for i := range p.ends {
-		p.ends[i] -= end
+	items = append(items, p.buf[start:end]...)
+	p.taken += n
+	if p.taken == len(p.ends) { // all taken: start again at the front
+		p.buf, p.ends, p.taken = p.buf[:0], p.ends[:0], 0
 	}
 	return items
 }

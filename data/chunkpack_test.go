@@ -28,7 +28,7 @@ func TestPackedItemsRoundTrip(t *testing.T) {
 	}
 	first := p.take(3)
 	rest := p.take(1)
-	if len(p.buf) != 0 || len(p.ends) != 0 {
+	if len(p.buf) != 0 || len(p.ends) != 0 || p.taken != 0 {
 		t.Fatalf("packer keeps %d bytes, %d items after taking all", len(p.buf), len(p.ends))
 	}
 	got, err := unpackItems(first, 3)
