@@ -18,7 +18,6 @@ import (
 	"ringsieve/screening/depict"
 	"ringsieve/screening/describe"
 	"ringsieve/screening/judge"
-	"ringsieve/screening/mol"
 	"ringsieve/screening/molfile"
 	"ringsieve/screening/smiles"
 	"ringsieve/screening/thermo"
@@ -154,31 +153,32 @@ func ScreenSMILES(text string, c Conditions) (Result, error) {
 
 // ScreenSMILESContext is ScreenSMILES under ctx.
 func ScreenSMILESContext(ctx context.Context, text string, c Conditions) (Result, error) {
-	m := molPool.Get().(*mol.Molecule)
-	defer putMolecule(m)
-	s, err := describe.DescribeInto(m, text)
+	w := workspaces.Get().(*describe.Workspace)
+	defer putWorkspace(w)
+	s, err := describe.DescribeInto(w, text)
 	if err != nil {
 		return Result{}, err
 	}
 	return ScreenStructureContext(ctx, s, c)
 }
 
-// molPool holds molecules whose storage (atom, bond and index arrays) screening reuses: a
+// workspaces holds the molecules and ring perceptions whose storage (atom, bond and index
+// arrays, ring sizes, rings, aromaticity flags and perception scratch) screening reuses: a
 // result keeps nothing of the molecule it was computed from (its descriptors are values and
-// strings, and the caches keep copies), so the arrays go back to the pool once the result is
+// strings, and the caches keep copies), so the storage goes back to the pool once the result is
 // built.
-var molPool = sync.Pool{New: func() any { return &mol.Molecule{} }}
+var workspaces = sync.Pool{New: func() any { return &describe.Workspace{} }}
 
-// pooledAtomsMax bounds the molecules kept for reuse (design choice: a rare huge structure is
-// left to the collector rather than pinned in the pool).
+// pooledAtomsMax bounds the structures whose storage is kept for reuse (design choice: a rare
+// huge structure is left to the collector rather than pinned in the pool).
 const pooledAtomsMax = 256
 
-func putMolecule(m *mol.Molecule) {
-	if cap(m.Atoms) > pooledAtomsMax {
+func putWorkspace(w *describe.Workspace) {
+	if cap(w.Mol.Atoms) > pooledAtomsMax {
 		return
 	}
-	m.Reset()
-	molPool.Put(m)
+	w.Mol.Reset()
+	workspaces.Put(w)
 }
 
 // ScreenMolfile screens a V2000 molfile. Errors are *MolfileError values (an atom beyond its

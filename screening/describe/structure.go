@@ -67,17 +67,25 @@ type Olefin struct {
 // Describe reads a SMILES and derives everything ROMP screening needs from it. Errors are
 // *smiles.Error values with the character offset.
 func Describe(text string) (*Structure, error) {
-	return DescribeInto(&mol.Molecule{}, text)
+	return DescribeInto(&Workspace{}, text)
 }
 
-// DescribeInto is Describe reading the SMILES into m, whose storage is reused (a caller that
-// screens many structures keeps one per worker; the Structure refers to m, so m may be reused
-// only once the Structure and everything taken from its molecule are no longer used).
-func DescribeInto(m *mol.Molecule, text string) (*Structure, error) {
+// Workspace is the storage a caller that describes many structures reuses from one to the next
+// (one per worker): the molecule read and its ring perception, neither allocated again once
+// grown to the largest structure seen.
+type Workspace struct {
+	Mol   mol.Molecule
+	Rings rings.Rings
+}
+
+// DescribeInto is Describe into w. The Structure refers to w's molecule and rings, so w may be
+// reused only once the Structure and everything taken from it are no longer used.
+func DescribeInto(w *Workspace, text string) (*Structure, error) {
+	m := &w.Mol
 	if err := smiles.ParseInto(m, text); err != nil {
 		return nil, err
 	}
-	s, err := DescribeMolecule(m, text)
+	s, err := describeMolecule(m, &w.Rings, text)
 	var ve *ValenceError
 	if errors.As(err, &ve) {
 		return nil, smiles.Errorf(m.Atoms[ve.Atom].Pos, "%s", ve.Msg)
@@ -101,13 +109,22 @@ func (e *ValenceError) Is(target error) bool { return target == units.ErrInvalid
 // SMILES it came from, or "" when there is none. The molecule is not changed. Errors are
 // *ValenceError values, or one matching units.ErrInvalid for a molecule without atoms.
 func DescribeMolecule(m *mol.Molecule, text string) (*Structure, error) {
+	return describeMolecule(m, nil, text)
+}
+
+// describeMolecule is DescribeMolecule perceiving rings into p (nil: a new perception).
+func describeMolecule(m *mol.Molecule, p *rings.Rings, text string) (*Structure, error) {
 	if len(m.Atoms) == 0 {
 		return nil, fmt.Errorf("the structure has no atoms: %w", units.ErrInvalid)
 	}
 	if err := checkValence(m); err != nil {
 		return nil, err
 	}
-	p := rings.Perceive(m)
+	if p == nil {
+		p = rings.Perceive(m)
+	} else {
+		rings.PerceiveInto(p, m)
+	}
 	s := &Structure{Mol: m, Rings: p}
 	s.pickMain(text)
 	s.ringSystem, s.systems = rings.Systems(p.SSSR)

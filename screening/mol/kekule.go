@@ -58,27 +58,40 @@ func Abs(x int) int {
 // unmatched system and false, leaving the bond orders unchanged.
 func (m *Molecule) Kekulize() (failedAtom int, ok bool) {
 	n := len(m.Atoms)
-	need := make([]bool, n)
-	var order []int
-	any := false
+	aromatic := false
 	for i := range m.Atoms {
 		if m.Atoms[i].Aromatic {
-			any = true
-			if m.needsDouble(i) {
-				need[i] = true
-			}
+			aromatic = true
+			break
 		}
 	}
-	if !any {
+	if !aromatic {
 		return -1, true
 	}
+	// scratch reused from the molecule's earlier use: two flag sets, the matching, the visiting
+	// order and the queue
+	if cap(m.kekFlags) < 2*n {
+		m.kekFlags = make([]bool, 2*n)
+	}
+	flags := m.kekFlags[:2*n]
+	clear(flags)
+	need, seen := flags[:n], flags[n:]
+	if cap(m.kekInts) < 3*n {
+		m.kekInts = make([]int, 3*n)
+	}
+	ints := m.kekInts[:3*n]
+	mate, order, queue := ints[:n], ints[n:n:2*n], ints[2*n:2*n:3*n]
+	for i := range m.Atoms {
+		if m.Atoms[i].Aromatic && m.needsDouble(i) {
+			need[i] = true
+		}
+	}
 	// visit needing atoms in breadth-first order so assignments propagate along rings
-	seen := make([]bool, n)
 	for s := 0; s < n; s++ {
 		if !need[s] || seen[s] {
 			continue
 		}
-		q := []int{s}
+		q := append(queue[:0], s)
 		seen[s] = true
 		for k := 0; k < len(q); k++ {
 			a := q[k]
@@ -92,7 +105,6 @@ func (m *Molecule) Kekulize() (failedAtom int, ok bool) {
 			}
 		}
 	}
-	mate := make([]int, n)
 	for i := range mate {
 		mate[i] = -1
 	}

@@ -89,6 +89,9 @@ type Molecule struct {
 	compAtom   []int
 	// indexBuf backs all the index arrays above (one allocation per molecule, reused by Reset)
 	indexBuf []int
+	// kekFlags and kekInts are Kekulize's scratch, kept for the molecule's next use
+	kekFlags []bool
+	kekInts  []int
 }
 
 // Reset empties the molecule, keeping its storage for reuse.

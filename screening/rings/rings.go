@@ -8,6 +8,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"sync"
 
 	"ringsieve/screening/mol"
 )
@@ -31,23 +32,78 @@ type Rings struct {
 	// Aromatic atoms and bonds after Hückel perception.
 	AromaticAtom []bool
 	AromaticBond []bool
+
+	ws *workspace // storage reused by PerceiveInto (nil after Perceive)
 }
 
 // Perceive computes rings and aromaticity of m. It never fails on an indexed molecule and
 // never changes it.
 func Perceive(m *mol.Molecule) *Rings {
-	p := &Rings{}
+	w := workspaces.Get().(*workspace)
+	tmp := Rings{ws: w}
+	PerceiveInto(&tmp, m)
+	p := tmp.clone()
+	if len(m.Atoms) <= pooledAtomsMax {
+		workspaces.Put(w)
+	}
+	return p
+}
+
+// workspaces are the scratch of Perceive, reused across calls; pooledAtomsMax bounds the
+// molecules whose scratch is kept (design choice: a rare huge one is left to the collector).
+var workspaces = sync.Pool{New: func() any { return &workspace{} }}
+
+const pooledAtomsMax = 256
+
+// clone copies a perception into storage of its own: one array for the ring sizes and the
+// rings' atoms and bonds, one for the rings, one for the aromaticity flags.
+func (p *Rings) clone() *Rings {
+	nb, na := len(p.BondRingSize), len(p.AtomRingSize)
+	n := nb + na
+	for _, r := range p.SSSR {
+		n += len(r.Atoms) + len(r.Bonds)
+	}
+	ints := make([]int, n)
+	q := &Rings{BondRingSize: ints[:nb:nb], AtomRingSize: ints[nb : nb+na : nb+na]}
+	copy(q.BondRingSize, p.BondRingSize)
+	copy(q.AtomRingSize, p.AtomRingSize)
+	rest := ints[nb+na:]
+	if len(p.SSSR) > 0 {
+		q.SSSR = make([]Ring, len(p.SSSR))
+		for i, r := range p.SSSR {
+			a, b := len(r.Atoms), len(r.Bonds)
+			q.SSSR[i] = Ring{Atoms: rest[:a:a], Bonds: rest[a : a+b : a+b]}
+			copy(q.SSSR[i].Atoms, r.Atoms)
+			copy(q.SSSR[i].Bonds, r.Bonds)
+			rest = rest[a+b:]
+		}
+	}
+	flags := make([]bool, na+nb)
+	q.AromaticAtom, q.AromaticBond = flags[:na:na], flags[na:]
+	copy(q.AromaticAtom, p.AromaticAtom)
+	copy(q.AromaticBond, p.AromaticBond)
+	return q
+}
+
+// PerceiveInto is Perceive into p, reusing the storage of p's earlier perceptions: in the steady
+// state of a worker that perceives one molecule after another into the same Rings it allocates
+// nothing (TestPerceiveIntoAllocatesNothing). Everything p held before is overwritten, slices
+// taken from it included.
+func PerceiveInto(p *Rings, m *mol.Molecule) {
+	if p.ws == nil {
+		p.ws = &workspace{}
+	}
+	w := p.ws
 	nb, na := len(m.Bonds), len(m.Atoms)
-	// one allocation for both size lists and the path scratch (which perception alone uses)
-	ints := make([]int, nb+na+3*na)
-	p.BondRingSize, p.AtomRingSize = ints[:nb:nb], ints[nb:nb+na:nb+na]
-	scratch := ints[nb+na:]
-	var candidates []Ring
-	inRing := ringBonds(m)
-	var seenMasks []uint64 // bond masks of the rings found, when the molecule has at most 64 bonds
+	// the size lists and the path scratch (which perception alone uses) in one array
+	w.ints = resize(w.ints, nb+na+3*na)
+	p.BondRingSize, p.AtomRingSize = w.ints[:nb:nb], w.ints[nb:nb+na:nb+na]
+	scratch := w.ints[nb+na:]
+	w.arena, w.spans, w.seenMasks = w.arena[:0], w.spans[:0], w.seenMasks[:0]
+	inRing := w.ringBonds(m)
 	small := len(m.Bonds) <= 64
 	var seenHash map[[2]uint64]bool // larger molecules: bond-set hashes of the rings found
-	cycleOf := simpleCycles(m, inRing)
+	cycleOf := w.simpleCycles(m, inRing)
 	for bi := range m.Bonds {
 		if !inRing[bi] {
 			continue
@@ -59,11 +115,11 @@ func Perceive(m *mol.Molecule) *Rings {
 				continue // already listed
 			}
 			path = c[1:]
-			for _, b := range ringBondsOfPath(m, path) {
-				p.BondRingSize[b] = len(path)
+			for i := range path {
+				p.BondRingSize[m.BondBetween(path[i], path[(i+1)%len(path)])] = len(path)
 			}
 			c[0] = -1
-			candidates = append(candidates, ringFromPath(m, path))
+			w.addCandidate(m, path)
 			continue
 		}
 		path = shortestPathAvoiding(m, m.Bonds[bi].A, m.Bonds[bi].B, bi, scratch)
@@ -72,22 +128,15 @@ func Perceive(m *mol.Molecule) *Rings {
 		}
 		p.BondRingSize[bi] = len(path)
 		if small {
-			// skip a ring already found through another of its bonds before allocating it
+			// skip a ring already found through another of its bonds before storing it
 			var mask uint64
 			for i := range path {
 				mask |= 1 << uint(m.BondBetween(path[i], path[(i+1)%len(path)]))
 			}
-			dup := false
-			for _, s := range seenMasks {
-				if s == mask {
-					dup = true
-					break
-				}
-			}
-			if dup {
+			if slices.Contains(w.seenMasks, mask) {
 				continue
 			}
-			seenMasks = append(seenMasks, mask)
+			w.seenMasks = append(w.seenMasks, mask)
 		} else {
 			// the same ring is found through each of its bonds: keep it once (a large macrocycle
 			// would otherwise give as many candidate copies as it has bonds)
@@ -100,33 +149,94 @@ func Perceive(m *mol.Molecule) *Rings {
 			}
 			seenHash[h] = true
 		}
-		candidates = append(candidates, ringFromPath(m, path))
+		w.addCandidate(m, path)
 	}
 	for bi, sz := range p.BondRingSize {
 		if sz == 0 {
 			continue
 		}
-		for _, a := range []int{m.Bonds[bi].A, m.Bonds[bi].B} {
+		for _, a := range [2]int{m.Bonds[bi].A, m.Bonds[bi].B} {
 			if p.AtomRingSize[a] == 0 || sz < p.AtomRingSize[a] {
 				p.AtomRingSize[a] = sz
 			}
 		}
 	}
-	p.SSSR = selectSSSR(m, candidates)
+	p.SSSR = w.selectSSSR(m, w.candidates())
 	p.perceiveAromaticity(m)
-	return p
+}
+
+// workspace is the storage one Rings reuses from one perception to the next.
+type workspace struct {
+	ints      []int      // bond and atom ring sizes, path scratch
+	inRing    []bool     // per bond: on a cycle
+	lowLink   []int      // ringBonds: discovery order and low link per atom
+	frames    []dfsFrame // ringBonds: the depth-first stack
+	cycleOf   [][]int    // simpleCycles: per bond its plain cycle
+	cycles    []int      // simpleCycles: degrees, cycles found, the walk in progress
+	seen      []bool     // simpleCycles: atoms walked
+	visited   []bool     // markComponent
+	stack     []int      // markComponent
+	arena     []int      // candidate rings' atoms then bonds, one span each
+	spans     []span     // candidate rings as spans of arena
+	cands     []Ring     // candidate rings, slices of arena
+	seenMasks []uint64   // bond masks of the candidates (molecules of at most 64 bonds)
+	vecs      []uint64   // selectSSSR: candidates' bond vectors
+	basis     [][]uint64 // selectSSSR: reduced rows
+	pivots    []int      // selectSSSR
+	picked    []Ring     // selectSSSR: the rings chosen (the SSSR)
+	pickMasks []uint64   // selectSSSR: one-word bond masks seen
+	flags     []bool     // aromatic atoms and bonds, and two scratch sets
+	union     []int      // perceiveAromaticity: atoms of two fused rings
+}
+
+// span is a candidate ring's place in the arena: n atoms from off, then its n bonds.
+type span struct{ off, n int }
+
+// resize returns s with length n and every element zero, reusing its array when it is large
+// enough.
+func resize[T any](s []T, n int) []T {
+	if cap(s) < n {
+		return make([]T, n)
+	}
+	s = s[:n]
+	clear(s)
+	return s
+}
+
+// addCandidate stores a closed path as a candidate ring: its atoms and bonds.
+func (w *workspace) addCandidate(m *mol.Molecule, path []int) {
+	n := len(path)
+	w.spans = append(w.spans, span{len(w.arena), n})
+	w.arena = append(w.arena, path...)
+	for i := range path {
+		w.arena = append(w.arena, m.BondBetween(path[i], path[(i+1)%n]))
+	}
+}
+
+// candidates returns the candidate rings as slices of the arena (taken once the arena stops
+// growing, so none refers to an array left behind).
+func (w *workspace) candidates() []Ring {
+	w.cands = w.cands[:0]
+	for _, sp := range w.spans {
+		at := w.arena[sp.off : sp.off+sp.n : sp.off+sp.n]
+		bo := w.arena[sp.off+sp.n : sp.off+2*sp.n : sp.off+2*sp.n]
+		w.cands = append(w.cands, Ring{Atoms: at, Bonds: bo})
+	}
+	return w.cands
 }
 
 // simpleCycles finds the ring systems that are one plain cycle (as many ring bonds as atoms, every
 // atom on two of them) and returns, per ring bond of such a system, the cycle as a slice whose
 // first element is a marker (0) followed by the atoms in ring order; other bonds get nil. Rings
 // of such systems need no shortest-path search, which keeps a 1,000-membered macrocycle linear.
-func simpleCycles(m *mol.Molecule, inRing []bool) [][]int {
-	out := make([][]int, len(m.Bonds))
+func (w *workspace) simpleCycles(m *mol.Molecule, inRing []bool) [][]int {
+	w.cycleOf = resize(w.cycleOf, len(m.Bonds))
+	out := w.cycleOf
 	n := len(m.Atoms)
 	// deg, then every cycle found (each a marker and its atoms: at most 2n in all, so cycles
 	// carved from it never move), then the bonds of the walk in progress
-	buf := make([]int, n+2*n+n)
+	w.cycles = resize(w.cycles, n+2*n+n)
+	buf := w.cycles
 	deg, cycles, walk := buf[:n], buf[n:n:3*n], buf[3*n:3*n]
 	for bi, r := range inRing {
 		if r {
@@ -140,7 +250,8 @@ func simpleCycles(m *mol.Molecule, inRing []bool) [][]int {
 			continue
 		}
 		if seen == nil {
-			seen = make([]bool, n)
+			w.seen = resize(w.seen, n)
+			seen = w.seen
 		}
 		// walk the ring-bond component from start; it is a plain cycle when every atom on it has
 		// ring degree 2 and the walk returns to start
@@ -177,7 +288,7 @@ func simpleCycles(m *mol.Molecule, inRing []bool) [][]int {
 		if !plain {
 			cycles = cycles[:from]
 			// mark the rest of this component as seen so it is not walked again
-			markComponent(m, inRing, start, seen)
+			w.markComponent(m, inRing, start, seen)
 			continue
 		}
 		cyc := cycles[from:len(cycles):len(cycles)]
@@ -189,9 +300,11 @@ func simpleCycles(m *mol.Molecule, inRing []bool) [][]int {
 }
 
 // markComponent marks every atom reachable from s over ring bonds.
-func markComponent(m *mol.Molecule, inRing []bool, s int, seen []bool) {
-	visited := make([]bool, len(m.Atoms))
-	stack := []int{s}
+func (w *workspace) markComponent(m *mol.Molecule, inRing []bool, s int, seen []bool) {
+	w.visited = resize(w.visited, len(m.Atoms))
+	visited := w.visited
+	stack := append(w.stack[:0], s)
+	defer func() { w.stack = stack[:0] }()
 	visited[s], seen[s] = true, true
 	for len(stack) > 0 {
 		x := stack[len(stack)-1]
@@ -205,36 +318,28 @@ func markComponent(m *mol.Molecule, inRing []bool, s int, seen []bool) {
 	}
 }
 
-// ringBondsOfPath lists the bonds of a closed path.
-func ringBondsOfPath(m *mol.Molecule, path []int) []int {
-	out := make([]int, len(path))
-	for i := range path {
-		out[i] = m.BondBetween(path[i], path[(i+1)%len(path)])
-	}
-	return out
-}
-
 // ringBonds marks the bonds that lie on a cycle: every bond that is not a bridge of the graph
 // (Tarjan's low-link, iterative depth-first search).
-func ringBonds(m *mol.Molecule) []bool {
+func (ws *workspace) ringBonds(m *mol.Molecule) []bool {
 	n := len(m.Atoms)
-	inRing := make([]bool, len(m.Bonds))
+	ws.inRing = resize(ws.inRing, len(m.Bonds))
+	inRing := ws.inRing
 	for i := range inRing {
 		inRing[i] = true
 	}
-	work := make([]int, 2*n)
-	disc, low := work[:n], work[n:]
+	ws.lowLink = resize(ws.lowLink, 2*n)
+	disc, low := ws.lowLink[:n], ws.lowLink[n:]
 	for i := range disc {
 		disc[i] = -1
 	}
-	type frame struct{ v, parentBond, next int }
 	t := 0
-	stack := make([]frame, 0, min(n, 64)) // the depth-first stack, reused for every component
+	stack := ws.frames[:0] // the depth-first stack, reused for every component
+	defer func() { ws.frames = stack[:0] }()
 	for s := 0; s < n; s++ {
 		if disc[s] >= 0 {
 			continue
 		}
-		stack = append(stack[:0], frame{s, -1, 0})
+		stack = append(stack[:0], dfsFrame{s, -1, 0})
 		disc[s], low[s] = t, t
 		t++
 		for len(stack) > 0 {
@@ -249,7 +354,7 @@ func ringBonds(m *mol.Molecule) []bool {
 				if disc[w] < 0 {
 					disc[w], low[w] = t, t
 					t++
-					stack = append(stack, frame{w, bi, 0})
+					stack = append(stack, dfsFrame{w, bi, 0})
 				} else if disc[w] < low[f.v] {
 					low[f.v] = disc[w]
 				}
@@ -271,6 +376,10 @@ func ringBonds(m *mol.Molecule) []bool {
 	}
 	return inRing
 }
+
+// dfsFrame is one atom on ringBonds' depth-first stack: the bond it was reached by and the next
+// of its bonds to follow.
+type dfsFrame struct{ v, parentBond, next int }
 
 // shortestPathAvoiding returns the atoms on a shortest path from a to b that does not use bond
 // skip (a first, b last), or nil. scratch must hold 3 × atoms ints; the path returned lives in
@@ -354,7 +463,7 @@ const hortonBudget = 2_000_000
 // selectSSSR picks linearly independent rings (over GF(2) on bond sets), smallest first, until the
 // cyclomatic number is reached; if the per-bond candidates do not span the cycle space, candidates
 // through every atom are added (a Horton-type set).
-func selectSSSR(m *mol.Molecule, cands []Ring) []Ring {
+func (w *workspace) selectSSSR(m *mol.Molecule, cands []Ring) []Ring {
 	need := m.Cyclomatic()
 	if need <= 0 {
 		return nil
@@ -362,13 +471,16 @@ func selectSSSR(m *mol.Molecule, cands []Ring) []Ring {
 	pick := func(cands []Ring) []Ring {
 		slices.SortStableFunc(cands, func(a, b Ring) int { return len(a.Bonds) - len(b.Bonds) })
 		words := (len(m.Bonds) + 63) / 64
-		basis := make([][]uint64, 0, need) // reduced rows with pivot
-		pivots := make([]int, 0, need)
-		out := make([]Ring, 0, need)
+		basis := w.basis[:0] // reduced rows with pivot
+		pivots := w.pivots[:0]
+		out := w.picked[:0]
+		defer func() { w.basis, w.pivots, w.picked = basis[:0], pivots[:0], out[:0] }()
 		var seen map[string]bool
-		var seenMask []uint64 // one-word bond masks when the molecule has at most 64 bonds
+		seenMask := w.pickMasks[:0] // one-word bond masks when the molecule has at most 64 bonds
+		defer func() { w.pickMasks = seenMask[:0] }()
 		// the candidates' bond vectors, carved from one array
-		vecs := make([]uint64, words*len(cands))
+		w.vecs = resize(w.vecs, words*len(cands))
+		vecs := w.vecs
 		for ci, c := range cands {
 			v := vecs[ci*words : (ci+1)*words : (ci+1)*words]
 			for _, bi := range c.Bonds {
@@ -443,6 +555,8 @@ func selectSSSR(m *mol.Molecule, cands []Ring) []Ring {
 	// Horton-type candidates: for each atom v and bond (x,y), P(v,x) + (x,y) + P(y,v). The work
 	// is bounded (hortonBudget path steps) so that no input can make perception slow; a cycle
 	// space that needs more is left with the rings found so far.
+	// (rare: the candidates through each bond almost always span the cycle space, so this part
+	// allocates as it goes)
 	more := append([]Ring(nil), cands...)
 	work := 0
 	for v := range m.Atoms {
@@ -613,8 +727,9 @@ func piElectrons(m *mol.Molecule, a int, ring []bool) int {
 // bond-sharing SSSR rings, whose π-electron count is 4n+2 with every atom contributing.
 func (p *Rings) perceiveAromaticity(m *mol.Molecule) {
 	na := len(m.Atoms)
-	// the result flags and two scratch sets in one allocation
-	flags := make([]bool, 3*na+len(m.Bonds))
+	// the result flags and two scratch sets in one array
+	p.ws.flags = resize(p.ws.flags, 3*na+len(m.Bonds))
+	flags := p.ws.flags
 	p.AromaticAtom, p.AromaticBond = flags[:na:na], flags[na:na+len(m.Bonds):na+len(m.Bonds)]
 	set, sp2 := flags[na+len(m.Bonds):2*na+len(m.Bonds)], flags[2*na+len(m.Bonds):]
 	mark := func(atoms []int, bonds []int) {
@@ -698,7 +813,8 @@ func (p *Rings) perceiveAromaticity(m *mol.Molecule) {
 			if shared != 1 {
 				continue
 			}
-			atoms := unionInts(ri.Atoms, rj.Atoms)
+			p.ws.union = unionInts(p.ws.union[:0], ri.Atoms, rj.Atoms)
+			atoms := p.ws.union
 			if huckel(atoms) {
 				mark(atoms, ri.Bonds)
 				mark(nil, rj.Bonds)
@@ -707,12 +823,12 @@ func (p *Rings) perceiveAromaticity(m *mol.Molecule) {
 	}
 }
 
-func unionInts(a, b []int) []int {
-	set := map[int]bool{}
-	var out []int
-	for _, x := range append(append([]int(nil), a...), b...) {
-		if !set[x] {
-			set[x] = true
+// unionInts appends to out the elements of a, then those of b not in a (a and b hold no repeats:
+// ring atoms).
+func unionInts(out, a, b []int) []int {
+	out = append(out, a...)
+	for _, x := range b {
+		if !slices.Contains(a, x) {
 			out = append(out, x)
 		}
 	}

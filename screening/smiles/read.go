@@ -344,7 +344,7 @@ func (r *smilesReader) readAtom() (mol.Atom, error) {
 		return mol.Atom{Z: mol.ElementBySymbol(string(c)).Z}, nil
 	case 'b', 'c', 'n', 'o', 'p', 's':
 		r.i++
-		return mol.Atom{Z: mol.ElementBySymbol(strings.ToUpper(string(c))).Z, Aromatic: true}, nil
+		return mol.Atom{Z: mol.ElementBySymbol(string(c - 'a' + 'A')).Z, Aromatic: true}, nil
 	}
 	if c == ']' {
 		return mol.Atom{}, smilesErr(r.i, "']' without '['")

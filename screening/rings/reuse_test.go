@@ -1,0 +1,81 @@
+package rings
+
+import (
+	"fmt"
+	"reflect"
+	"testing"
+
+	"ringsieve/screening/mol"
+	"ringsieve/screening/smiles"
+)
+
+// reuseMolecules parses the RDKit reference structures (fused, bridged, spiro, aromatic,
+// macrocyclic and acyclic ones).
+func reuseMolecules(t *testing.T) []*mol.Molecule {
+	var ms []*mol.Molecule
+	for _, r := range loadRDKitRefs(t) {
+		if m, err := smiles.Parse(r.SMILES); err == nil {
+			ms = append(ms, m)
+		}
+	}
+	if len(ms) < 2000 {
+		t.Fatalf("only %d structures", len(ms))
+	}
+	return ms
+}
+
+// exported is what a caller sees of a perception.
+func exported(p *Rings) string {
+	return fmt.Sprint(p.BondRingSize, p.AtomRingSize, p.SSSR, p.AromaticAtom, p.AromaticBond)
+}
+
+// TestPerceiveIntoMatchesPerceive: one Rings reused from molecule to molecule (large after small,
+// small after large) gives what a fresh perception gives every time.
+func TestPerceiveIntoMatchesPerceive(t *testing.T) {
+	ms := reuseMolecules(t)
+	var p Rings
+	for pass := 0; pass < 2; pass++ {
+		for i := range ms {
+			m := ms[i]
+			if pass == 1 {
+				m = ms[len(ms)-1-i]
+			}
+			PerceiveInto(&p, m)
+			if got, want := exported(&p), exported(Perceive(m)); got != want {
+				t.Fatalf("reused perception of molecule %d differs:\n%s\nfresh:\n%s", i, got, want)
+			}
+		}
+	}
+	if fresh := Perceive(ms[0]); fresh.ws != nil {
+		t.Error("Perceive keeps its scratch")
+	}
+	if !reflect.DeepEqual(Perceive(ms[0]).SSSR, Perceive(ms[0]).SSSR) {
+		t.Error("two perceptions of one molecule differ")
+	}
+}
+
+// TestPerceiveIntoAllocatesNothing: perceiving one molecule after another into the same Rings
+// allocates nothing once its storage has grown to the largest of them — except for molecules of
+// more than 64 bonds (bond sets hashed in a map) and cycle spaces the per-bond rings do not span
+// (the Horton-type search), neither of which a typical monomer has.
+func TestPerceiveIntoAllocatesNothing(t *testing.T) {
+	var typical []*mol.Molecule
+	for _, m := range reuseMolecules(t) {
+		if len(m.Bonds) <= 64 {
+			typical = append(typical, m)
+		}
+	}
+	var p Rings
+	for _, m := range typical {
+		PerceiveInto(&p, m)
+	}
+	allocs := testing.AllocsPerRun(2, func() {
+		for _, m := range typical {
+			PerceiveInto(&p, m)
+		}
+	})
+	t.Logf("%.0f allocations over %d perceptions", allocs, len(typical))
+	if allocs > float64(len(typical))/100 {
+		t.Errorf("%.0f allocations over %d perceptions into a reused Rings", allocs, len(typical))
+	}
+}
