@@ -79,3 +79,28 @@ func TestPerceiveIntoAllocatesNothing(t *testing.T) {
 		t.Errorf("%.0f allocations over %d perceptions into a reused Rings", allocs, len(typical))
 	}
 }
+
+// FuzzPerceiveInto: perceiving a structure into a Rings that last held another gives what a
+// fresh perception gives (no state carried over), for any pair of SMILES that parse.
+func FuzzPerceiveInto(f *testing.F) {
+	f.Add("C1=CC2CCC1C2", "c1ccc2ccccc2c1")
+	f.Add("C1CC2CC1C1CCCC21", "C1=CCCC1")
+	f.Add("C12C3C4C1C5C2C3C45", "C1CCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCC1")
+	f.Add("c1cc2ccc3cccc4ccc(c1)c2c34", "[nH]1cccc1")
+	f.Fuzz(func(t *testing.T, first, second string) {
+		a, err := smiles.Parse(first)
+		if err != nil || len(a.Atoms) > 300 {
+			return
+		}
+		b, err := smiles.Parse(second)
+		if err != nil || len(b.Atoms) > 300 {
+			return
+		}
+		var p Rings
+		PerceiveInto(&p, a)
+		PerceiveInto(&p, b)
+		if got, want := exported(&p), exported(Perceive(b)); got != want {
+			t.Fatalf("%s after %s:\n%s\nfresh:\n%s", second, first, got, want)
+		}
+	})
+}
