@@ -4,7 +4,6 @@ import (
 	"bufio"
 	"bytes"
 	"context"
-	"encoding/csv"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -62,8 +61,7 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 		go func() {
 			defer wg.Done()
 			var batches [][]compactRow
-			var buf bytes.Buffer
-			cw := csv.NewWriter(&buf) // one writer per worker: its buffer is not re-made per row
+			var buf bytes.Buffer // one per worker: not re-made per row
 			for w := range work {
 				items := w.items
 				rows := make([]compactRow, 0, len(items))
@@ -72,7 +70,7 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 						break
 					}
 					res, err := batch.ScreenItemContext(ctx, it, cond)
-					rows = append(rows, renderRow(&buf, cw, format, w.first+k, it, res, err, filter))
+					rows = append(rows, renderRow(&buf, format, w.first+k, it, res, err, filter))
 				}
 				batches = append(batches, rows)
 				if bar != nil {
@@ -137,15 +135,14 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 	return st, writeCompact(out, format, rows, in.ExtraColumns)
 }
 
-// renderRow screens nothing: it renders one outcome for the output format into buf (cw writes
-// CSV into buf).
+// renderRow screens nothing: it renders one outcome for the output format into buf.
 //
 //	csv:   the CSV record with rank 0 (the rank is put in front when writing)
 //	jsonl: the JSON object's members after "rank" — {"error"|"extra","id","line" before it and
 //	       "result" after it, in the order encoding/json writes a map}; stored as
 //	       prefix \x00 suffix
 //	table: the tab-separated cells after the rank
-func renderRow(buf *bytes.Buffer, cw *csv.Writer, format string, seq int, it batch.InputItem, res screening.Result, err error, f batch.ResultFilter) compactRow {
+func renderRow(buf *bytes.Buffer, format string, seq int, it batch.InputItem, res screening.Result, err error, f batch.ResultFilter) compactRow {
 	line := it.Line
 	row := batch.NewRow(seq, res, err)
 	cr := compactRow{key: row.Key, seq: seq, failed: err != nil, keep: !f.Active() || (row.Result != nil && f.Keeps(row.Result))}
@@ -156,8 +153,7 @@ func renderRow(buf *bytes.Buffer, cw *csv.Writer, format string, seq int, it bat
 	}
 	switch format {
 	case "csv":
-		cw.Write(batch.CSVRow(0, it.ID, line, row.Result, msg, it.Extra))
-		cw.Flush()
+		buf.Write(batch.AppendCSVRow(buf.AvailableBuffer(), 0, it.ID, line, row.Result, msg, it.Extra))
 	case "jsonl":
 		// members before "rank": error?, extra?, id, line; after: result?
 		if err != nil {
@@ -221,9 +217,7 @@ func writeCompact(out io.Writer, format string, rows []compactRow, extraCols []s
 	switch format {
 	case "csv":
 		bw := bufioWriter(out)
-		w := csv.NewWriter(bw)
-		w.Write(batch.CSVHeader(extraCols))
-		w.Flush()
+		bw.Write(batch.AppendCSVRecord(nil, batch.CSVHeader(extraCols)))
 		rank := 0
 		for _, r := range rows {
 			rank++

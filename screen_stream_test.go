@@ -74,7 +74,13 @@ func writeRanked(out io.Writer, format string, items []batch.InputItem, rs []bat
 				msg = r.Err.Error()
 			}
 			it := items[r.Seq]
-			w.Write(batch.CSVRow(i+1, it.ID, it.Line, r.Result, msg, it.Extra))
+			// the row's fields read back from the appended record and written again by
+			// encoding/csv (the fields themselves are checked in screening/batch)
+			fields, err := csv.NewReader(bytes.NewReader(batch.AppendCSVRow(nil, i+1, it.ID, it.Line, r.Result, msg, it.Extra))).Read()
+			if err != nil {
+				return err
+			}
+			w.Write(fields)
 		}
 		w.Flush()
 		return w.Error()

@@ -1,9 +1,9 @@
 package api
 
 import (
+	"bufio"
 	"bytes"
 	"context"
-	"encoding/csv"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -525,16 +525,17 @@ func (s *Server) jobResults(c *gin.Context) {
 		c.Header("Content-Type", "text/csv; charset=utf-8")
 		c.Header("Content-Disposition", fmt.Sprintf(`attachment; filename="%s.csv"`, j.ID))
 		c.Status(http.StatusOK)
-		w := csv.NewWriter(c.Writer)
-		w.Write(batch.CSVHeader(j.ExtraColumns))
+		// rows appended as bytes (byte for byte what encoding/csv writes) into one buffered writer
+		w := bufio.NewWriterSize(c.Writer, 64<<10)
+		var line []byte
+		w.Write(batch.AppendCSVRecord(line[:0], batch.CSVHeader(j.ExtraColumns)))
 		err := s.store.RankedItems(ctx, j.ID, 0, 0, func(rank int, it data.RankedItem) error {
 			if drop, err := skip(&it); drop || err != nil {
 				return err
 			}
-			var row []string
 			switch {
 			case it.State == batch.ItemDone && it.Summary != "":
-				row = batch.CSVRowFromSummary(rank, it.ItemID, it.Line, it.Summary, it.Extra)
+				line = batch.AppendCSVRowFromSummary(line[:0], rank, it.ItemID, it.Line, it.Summary, it.Extra)
 			case it.State == batch.ItemDone:
 				if err := fill(&it); err != nil {
 					return err
@@ -543,20 +544,22 @@ func (s *Server) jobResults(c *gin.Context) {
 				if err := json.Unmarshal(it.Result, &r); err != nil {
 					return fmt.Errorf("stored result of item %d: %w", it.Seq, err)
 				}
-				row = batch.CSVRow(rank, it.ItemID, it.Line, &r, "", it.Extra)
+				line = batch.AppendCSVRow(line[:0], rank, it.ItemID, it.Line, &r, "", it.Extra)
 			case it.State == batch.ItemFailed:
 				var ie batch.ItemError
 				if err := json.Unmarshal(it.Result, &ie); err != nil {
 					return fmt.Errorf("stored error of item %d: %w", it.Seq, err)
 				}
-				row = batch.CSVRow(rank, it.ItemID, it.Line, nil, problemFor(&ie).Detail, it.Extra)
+				line = batch.AppendCSVRow(line[:0], rank, it.ItemID, it.Line, nil, problemFor(&ie).Detail, it.Extra)
 			default:
-				row = batch.CSVRow(rank, it.ItemID, it.Line, nil, "pending", it.Extra)
+				line = batch.AppendCSVRow(line[:0], rank, it.ItemID, it.Line, nil, "pending", it.Extra)
 			}
-			w.Write(row)
-			return w.Error()
+			_, err := w.Write(line)
+			return err
 		})
-		w.Flush()
+		if ferr := w.Flush(); err == nil {
+			err = ferr
+		}
 		s.streamError(c, err)
 	default:
 		fail(c, &screening.FieldError{Field: "format", Msg: "must be json, jsonl or csv"})
