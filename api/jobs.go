@@ -8,10 +8,12 @@ import (
 	"errors"
 	"fmt"
 	"io"
+	"maps"
 	"math"
 	"mime"
 	"mime/multipart"
 	"net/http"
+	"slices"
 	"strconv"
 	"strings"
 	"time"
@@ -21,6 +23,7 @@ import (
 	"ringsieve/data"
 	"ringsieve/screening"
 	"ringsieve/screening/batch"
+	"ringsieve/screening/judge"
 )
 
 // JobCreated is the 202 answer to a job submission.
@@ -340,6 +343,44 @@ func resultRow(rank int, it data.RankedItem, cols []string) JobResultRow {
 	return row
 }
 
+// appendResultRow appends a row as encoding/json writes it (TestAppendResultRowMatchesMarshal),
+// the result and error as they are: both are already compact JSON with HTML characters escaped
+// (written by Result.AppendJSON or encoding/json), which encoding/json would scan again to
+// compact them — a fifth of a JSON Lines download's CPU.
+func appendResultRow(b []byte, row JobResultRow) []byte {
+	b = append(b, `{"rank":`...)
+	b = strconv.AppendInt(b, int64(row.Rank), 10)
+	b = append(b, `,"id":`...)
+	b = judge.AppendJSONString(b, row.ID)
+	if row.Line != 0 {
+		b = append(b, `,"line":`...)
+		b = strconv.AppendInt(b, int64(row.Line), 10)
+	}
+	b = append(b, `,"state":`...)
+	b = judge.AppendJSONString(b, row.State)
+	if len(row.Extra) > 0 {
+		b = append(b, `,"extra":{`...)
+		for i, k := range slices.Sorted(maps.Keys(row.Extra)) { // encoding/json sorts map keys
+			if i > 0 {
+				b = append(b, ',')
+			}
+			b = judge.AppendJSONString(b, k)
+			b = append(b, ':')
+			b = judge.AppendJSONString(b, row.Extra[k])
+		}
+		b = append(b, '}')
+	}
+	if len(row.Result) > 0 {
+		b = append(b, `,"result":`...)
+		b = append(b, row.Result...)
+	}
+	if len(row.Error) > 0 {
+		b = append(b, `,"error":`...)
+		b = append(b, row.Error...)
+	}
+	return append(b, '}')
+}
+
 // itemProblem renders a stored item error as a problem (the one error table decides).
 func itemProblem(stored []byte) json.RawMessage {
 	var ie batch.ItemError
@@ -492,9 +533,7 @@ func (s *Server) jobResults(c *gin.Context) {
 					w.err = err
 					return
 				}
-				if w.line, w.err = json.Marshal(resultRow(w.rank, w.it, j.ExtraColumns)); w.err == nil {
-					w.line = append(w.line, '\n')
-				}
+				w.line = append(appendResultRow(nil, resultRow(w.rank, w.it, j.ExtraColumns)), '\n')
 			})
 			for _, w := range window {
 				if w.err != nil {

@@ -223,7 +223,7 @@ func (w *jsonWriter) key(name string) {
 
 func (w *jsonWriter) null() { w.b = append(w.b, "null"...) }
 
-func (w *jsonWriter) str(name, v string) { w.key(name); w.b = appendJSONString(w.b, v) }
+func (w *jsonWriter) str(name, v string) { w.key(name); w.b = AppendJSONString(w.b, v) }
 
 func (w *jsonWriter) strOmit(name, v string) {
 	if v != "" {
@@ -246,7 +246,7 @@ func (w *jsonWriter) strList(name string, v []string, omit bool) {
 		if i > 0 {
 			w.b = append(w.b, ',')
 		}
-		w.b = appendJSONString(w.b, s)
+		w.b = AppendJSONString(w.b, s)
 	}
 	w.b = append(w.b, ']')
 }
@@ -335,9 +335,10 @@ var jsonEscape = func() (t [utf8.RuneSelf]byte) {
 
 const hexDigits = "0123456789abcdef"
 
-// appendJSONString appends s as a JSON string: invalid UTF-8 bytes become U+FFFD, and the line
-// and paragraph separators U+2028 and U+2029 are escaped (JavaScript cannot hold them raw).
-func appendJSONString(b []byte, s string) []byte {
+// AppendJSONString appends s as a JSON string, byte for byte as encoding/json writes it: HTML
+// characters escaped, invalid UTF-8 bytes become U+FFFD, and the line and paragraph separators
+// U+2028 and U+2029 are escaped (JavaScript cannot hold them raw).
+func AppendJSONString(b []byte, s string) []byte {
 	b = append(b, '"')
 	done := 0 // s[:done] is written
 	for i := 0; i < len(s); {

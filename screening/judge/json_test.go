@@ -96,7 +96,7 @@ func TestJSONStringsAndNumbers(t *testing.T) {
 	for _, s := range []string{"", "plain", "ΔH_p ≈ -62 kJ/mol (200–500 K) → ok", "a\"b\\c", "tab\tnew\nline\rcr\bbs\fff",
 		"\x00\x01\x1f\x7f", "<b>&amp;</b>", "bad \xff\xfe utf-8 \xe2\x82", "line\u2028para\u2029end", "\u00e9\U0001F600"} {
 		want, _ := json.Marshal(s)
-		if got := appendJSONString(nil, s); string(got) != string(want) {
+		if got := AppendJSONString(nil, s); string(got) != string(want) {
 			t.Errorf("string %q: got %s, want %s", s, got, want)
 		}
 	}
