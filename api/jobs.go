@@ -566,8 +566,8 @@ func (s *Server) jobResults(c *gin.Context) {
 		c.Status(http.StatusOK)
 		// rows appended as bytes (byte for byte what encoding/csv writes) into one buffered writer
 		w := bufio.NewWriterSize(c.Writer, 64<<10)
-		var line []byte
-		w.Write(batch.AppendCSVRecord(line[:0], batch.CSVHeader(j.ExtraColumns)))
+		line := batch.AppendCSVRecord(nil, batch.CSVHeader(j.ExtraColumns))
+		w.Write(line)
 		err := s.store.RankedItems(ctx, j.ID, 0, 0, func(rank int, it data.RankedItem) error {
 			if drop, err := skip(&it); drop || err != nil {
 				return err

@@ -50,17 +50,23 @@ func (p *itemPacker) add(it JobInput) error {
 	if err != nil {
 		return err
 	}
-	b := putStr(p.buf, it.ItemID)
-	b = binary.AppendUvarint(b, uint64(max(it.Line, 0)))
+	p.addEncoded(it.ItemID, it.Line, src, it.Extra)
+	return nil
+}
+
+// addEncoded adds an item whose source is already encoded (batch.DecodeItemSource reads it):
+// the one place the packed item format is written.
+func (p *itemPacker) addEncoded(id string, line int, src []byte, extra []string) {
+	b := putStr(p.buf, id)
+	b = binary.AppendUvarint(b, uint64(max(line, 0)))
 	b = binary.AppendUvarint(b, uint64(len(src)))
 	b = append(b, src...)
-	b = binary.AppendUvarint(b, uint64(len(it.Extra)))
-	for _, e := range it.Extra {
+	b = binary.AppendUvarint(b, uint64(len(extra)))
+	for _, e := range extra {
 		b = putStr(b, e)
 	}
 	p.buf = b
 	p.ends = append(p.ends, len(b))
-	return nil
 }
 
 // take removes the next n items and returns them packed.
@@ -79,6 +85,9 @@ func (p *itemPacker) take(n int) []byte {
 	}
 	return items
 }
+
+// pendingKey is the rank key of an item without an outcome (it ranks it last, with the failed).
+var pendingKey = batch.FailedKey()
 
 // pendingKeys is the keys column of n items without outcomes.
 func pendingKeys(n int) []byte {
@@ -190,6 +199,18 @@ type packedOutcome struct {
 	failed  bool
 	result  []byte
 	summary []byte
+}
+
+// outcomeIndex returns, per item of a chunk of n, the index of its outcome in outs, or −1.
+func outcomeIndex(outs []packedOutcome, n int) []int32 {
+	idx := make([]int32, n)
+	for i := range idx {
+		idx[i] = -1
+	}
+	for i, o := range outs {
+		idx[o.seq] = int32(i)
+	}
+	return idx
 }
 
 // appendOutcome appends one outcome to a results column (started with newResults).

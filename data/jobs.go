@@ -465,9 +465,6 @@ func (s *Store) RankedItems(ctx context.Context, jobID string, offset, limit int
 	return nil
 }
 
-// pendingKey is the rank key of an item without an outcome.
-var pendingKey = batch.FailedKey()
-
 // rankEntry is one item in the rank order: its chunk (index into the job's chunks) and place
 // in it.
 type rankEntry struct{ chunk, off int32 }
@@ -539,13 +536,7 @@ func (s *Store) unpackChunk(ctx context.Context, jobID string, c *rankedChunk) e
 	if c.outcomes, err = unpackResults(results, c.n); err != nil {
 		return fmt.Errorf("chunk %d results: %w", c.no, err)
 	}
-	c.outcome = make([]int32, c.n)
-	for i := range c.outcome {
-		c.outcome[i] = -1
-	}
-	for i, o := range c.outcomes {
-		c.outcome[o.seq] = int32(i)
-	}
+	c.outcome = outcomeIndex(c.outcomes, c.n)
 	return nil
 }
 
@@ -643,13 +634,10 @@ func (s *Store) ChunkItems(ctx context.Context, c batch.Chunk) ([]batch.Item, er
 	if err != nil {
 		return nil, fmt.Errorf("chunk %d of job %s: %w", c.No, c.JobID, err)
 	}
-	has := make([]bool, n)
-	for _, o := range stored {
-		has[o.seq] = true
-	}
+	has := outcomeIndex(stored, n)
 	out := make([]batch.Item, 0, n-len(stored))
 	for i, p := range packed {
-		if has[i] {
+		if has[i] >= 0 {
 			continue
 		}
 		src, err := batch.DecodeItemSource(string(p.source))
@@ -712,13 +700,10 @@ func (s *Store) CompleteChunk(ctx context.Context, c batch.Chunk, outs []batch.O
 		if err != nil {
 			return fmt.Errorf("chunk %d of job %s: %w", c.No, c.JobID, err)
 		}
-		has := make([]bool, n)
-		for _, o := range stored {
-			has[o.seq] = true
-		}
+		has := outcomeIndex(stored, n)
 		res := prev
 		if res == nil {
-			res = newResults(len(outs) * 160)
+			res = newResults(len(outs) * 200) // a fast-tier outcome packs to about 200 bytes, most of it CSV fields
 		}
 		done, failed := 0, 0
 		for _, o := range outs {
@@ -726,10 +711,10 @@ func (s *Store) CompleteChunk(ctx context.Context, c batch.Chunk, outs []batch.O
 			if off < 0 || off >= n {
 				return fmt.Errorf("outcome for item %d outside chunk %d (%d–%d)", o.Seq, c.No, c.FirstSeq, c.LastSeq)
 			}
-			if has[off] {
+			if has[off] >= 0 {
 				continue
 			}
-			has[off] = true
+			has[off] = 0 // any index ≥ 0 marks the item as having an outcome from now on
 			res = appendOutcome(res, off, o)
 			copy(keys[off*batch.KeyLen:], o.Key[:])
 			done++
@@ -811,10 +796,8 @@ func (s *Store) CountOutcomes(ctx context.Context, jobID string) (OutcomeCount, 
 		if err != nil {
 			return OutcomeCount{}, fmt.Errorf("chunk from item %d: %w", first, err)
 		}
-		seen := make([]bool, n)
-		for _, o := range outs {
-			if !seen[o.seq] {
-				seen[o.seq] = true
+		for _, k := range outcomeIndex(outs, n) {
+			if k >= 0 {
 				oc.Distinct++
 			}
 		}

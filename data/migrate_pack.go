@@ -3,7 +3,6 @@ package data
 import (
 	"context"
 	"database/sql"
-	"encoding/binary"
 	"encoding/json"
 	"fmt"
 
@@ -73,7 +72,7 @@ func (s *Store) packLegacyChunk(ctx context.Context, tx *sql.Tx, c batch.Chunk) 
 	if err != nil {
 		return nil, nil, nil, err
 	}
-	items = []byte{itemsPackV1, 1}
+	var pack itemPacker
 	want := c.FirstSeq
 	for rows.Next() {
 		var seq, line int
@@ -92,13 +91,7 @@ func (s *Store) packLegacyChunk(ctx context.Context, tx *sql.Tx, c batch.Chunk) 
 			rows.Close()
 			return nil, nil, nil, fmt.Errorf("item %d extra columns: %w", seq, err)
 		}
-		items = putStr(items, id)
-		items = binary.AppendUvarint(items, uint64(max(line, 0)))
-		items = putStr(items, src)
-		items = binary.AppendUvarint(items, uint64(len(extra)))
-		for _, e := range extra {
-			items = putStr(items, e)
-		}
+		pack.addEncoded(id, line, []byte(src), extra)
 	}
 	if err := rows.Close(); err != nil {
 		return nil, nil, nil, err
@@ -106,6 +99,7 @@ func (s *Store) packLegacyChunk(ctx context.Context, tx *sql.Tx, c batch.Chunk) 
 	if want != c.LastSeq+1 {
 		return nil, nil, nil, fmt.Errorf("item %d missing", want)
 	}
+	items = pack.take(n)
 
 	keys = pendingKeys(n)
 	rrows, err := tx.QueryContext(ctx, s.q(`SELECT seq, rank_key, verdict, failed, result, summary FROM job_results WHERE job_id = ? AND seq BETWEEN ? AND ? ORDER BY seq`),

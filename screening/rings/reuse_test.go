@@ -1,8 +1,10 @@
 package rings
 
 import (
+	"cmp"
 	"fmt"
 	"reflect"
+	"slices"
 	"testing"
 
 	"ringsieve/screening/mol"
@@ -103,4 +105,49 @@ func FuzzPerceiveInto(f *testing.F) {
 			t.Fatalf("%s after %s:\n%s\nfresh:\n%s", second, first, got, want)
 		}
 	})
+}
+
+// TestHortonCandidatesCompleteTheBasis: two cage graphs whose shortest rings through each bond
+// do not span the cycle space, so the Horton-type search runs (found by trying cages); the rings
+// it adds complete an independent set of cyclomatic-number size (bonds − atoms + components,
+// common practice), freshly and into a reused Rings alike.
+func TestHortonCandidatesCompleteTheBasis(t *testing.T) {
+	var p Rings
+	other, err := smiles.Parse("C1=CC2CCC1C2")
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, s := range []string{"C12C3C4C5C1C6C2C7C3C8C4C5C678", "C12C3C4C5C6C1C7C2C3C4C5C67"} {
+		m, err := smiles.Parse(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		PerceiveInto(&p, other) // something else first
+		PerceiveInto(&p, m)
+		fresh := Perceive(m)
+		if exported(&p) != exported(fresh) {
+			t.Errorf("%s: reused and fresh perceptions differ", s)
+		}
+		if len(fresh.SSSR) != m.Cyclomatic() {
+			t.Fatalf("%s: %d rings, cyclomatic number %d", s, len(fresh.SSSR), m.Cyclomatic())
+		}
+		// independence over GF(2): Gaussian elimination on the rings' bond sets
+		var rows []uint64
+		for _, r := range fresh.SSSR {
+			var v uint64
+			for _, b := range r.Bonds {
+				v ^= 1 << uint(b)
+			}
+			for _, row := range rows {
+				if v^row < v {
+					v ^= row
+				}
+			}
+			if v == 0 {
+				t.Fatalf("%s: ring %v depends on the others", s, r.Atoms)
+			}
+			rows = append(rows, v)
+			slices.SortFunc(rows, func(a, b uint64) int { return cmp.Compare(b, a) })
+		}
+	}
 }

@@ -445,18 +445,6 @@ func mix64(x uint64) uint64 {
 	return x ^ x>>31
 }
 
-// ringFromPath copies a closed path into a Ring: its atoms and bonds share one allocation.
-func ringFromPath(m *mol.Molecule, path []int) Ring {
-	n := len(path)
-	buf := make([]int, 2*n)
-	r := Ring{Atoms: buf[:n:n], Bonds: buf[n:]}
-	copy(r.Atoms, path)
-	for i := range path {
-		r.Bonds[i] = m.BondBetween(path[i], path[(i+1)%n])
-	}
-	return r
-}
-
 // hortonBudget bounds the extra ring search of selectSSSR (path steps).
 const hortonBudget = 2_000_000
 
@@ -556,11 +544,11 @@ func (w *workspace) selectSSSR(m *mol.Molecule, cands []Ring) []Ring {
 	// is bounded (hortonBudget path steps) so that no input can make perception slow; a cycle
 	// space that needs more is left with the rings found so far.
 	// (rare: the candidates through each bond almost always span the cycle space, so this part
-	// allocates as it goes)
-	more := append([]Ring(nil), cands...)
+	// allocates as it goes). They join the candidates already stored: a stable sort by size puts
+	// them after those of the same size, as before.
 	work := 0
 	for v := range m.Atoms {
-		if work > hortonBudget || len(more) > 20000 {
+		if work > hortonBudget || len(w.spans) > 20000 {
 			break
 		}
 		prev := bfsTree(m, v)
@@ -599,10 +587,10 @@ func (w *workspace) selectSSSR(m *mol.Molecule, cands []Ring) []Ring {
 			if len(path) < 3 {
 				continue
 			}
-			more = append(more, ringFromPath(m, path))
+			w.addCandidate(m, path)
 		}
 	}
-	return pick(more)
+	return pick(w.candidates())
 }
 
 func bfsTree(m *mol.Molecule, s int) []int {
