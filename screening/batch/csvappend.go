@@ -66,13 +66,16 @@ func csvNeedsQuotes(s string) bool {
 		return true
 	}
 	for i := 0; i < len(s); i++ {
-		if c := s[i]; c == '\n' || c == '\r' || c == '"' || c == ',' {
+		if csvSpecial[s[i]] {
 			return true
 		}
 	}
 	r, _ := utf8.DecodeRuneInString(s)
 	return unicode.IsSpace(r)
 }
+
+// csvSpecial marks the bytes that make a field need quotes wherever they stand.
+var csvSpecial = [256]bool{'\n': true, '\r': true, '"': true, ',': true}
 
 // appendCSVQuoted appends s in quotes with its quotes doubled (line breaks kept as they are, as
 // encoding/csv's Writer does without UseCRLF).

@@ -20,7 +20,14 @@ func FuzzReadInput(f *testing.F) {
 		if err != nil || in == nil {
 			return
 		}
+		lines := strings.Split(content, "\n")
 		for _, it := range in.Items {
+			if in.Format == FormatSMILES && it.Line-1 < len(lines) {
+				smi, id := splitLineReference(lines[it.Line-1], it.Line)
+				if it.SMILES != smi || it.ID != id {
+					t.Errorf("line %d: %q %q, strings.Fields reads %q %q", it.Line, it.SMILES, it.ID, smi, id)
+				}
+			}
 			ScreenItem(it, screening.DefaultConditions())
 		}
 	})

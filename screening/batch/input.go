@@ -13,6 +13,7 @@ import (
 	"io"
 	"strconv"
 	"strings"
+	"unicode"
 
 	"ringsieve/screening"
 	"ringsieve/screening/molfile"
@@ -138,12 +139,17 @@ func readSMILESLines(r *bufio.Reader, in *Input, max int) error {
 		if t == "" || strings.HasPrefix(t, "#") {
 			continue
 		}
-		f := strings.Fields(t)
-		id := strconv.Itoa(line)
-		if len(f) > 1 {
-			id = strings.Join(f[1:], " ")
+		// the SMILES, then the id: the other whitespace-separated fields joined by one space
+		smi, id := t, ""
+		if i := strings.IndexFunc(t, unicode.IsSpace); i >= 0 {
+			smi, id = t[:i], strings.TrimSpace(t[i:])
+			if strings.IndexFunc(id, unicode.IsSpace) >= 0 {
+				id = strings.Join(strings.Fields(id), " ")
+			}
+		} else {
+			id = strconv.Itoa(line)
 		}
-		if err := in.add(InputItem{ID: id, SMILES: f[0], Line: line}, max); err != nil {
+		if err := in.add(InputItem{ID: id, SMILES: smi, Line: line}, max); err != nil {
 			return err
 		}
 	}

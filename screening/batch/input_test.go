@@ -89,3 +89,45 @@ func TestDecodeItemSourceAsJSON(t *testing.T) {
 		}
 	}
 }
+
+// splitLineReference is the reading of one SMILES line by strings.Fields: the first field is
+// the SMILES, the others joined by one space the id (the line number when there are none).
+func splitLineReference(line string, n int) (smi, id string) {
+	f := strings.Fields(line)
+	id = strconv.Itoa(n)
+	if len(f) > 1 {
+		id = strings.Join(f[1:], " ")
+	}
+	return f[0], id
+}
+
+// TestReadSMILESLines: ids after any run of whitespace (tabs, several spaces, Unicode spaces),
+// ids of several words joined by one space, the line number when there is no id; blank and
+// comment lines skipped (the reading is compared with splitLineReference as well).
+func TestReadSMILESLines(t *testing.T) {
+	content := "C1=CCCC1 cp-1\n\n# a comment\n  C1=CC2CCC1C2\tnb  run 4 \r\nC1=CCCCCCC1\u00a0coe\nC1=CC=CC1\n"
+	in, err := ReadInput(strings.NewReader(content), FormatSMILES, "", 100)
+	if err != nil {
+		t.Fatal(err)
+	}
+	want := []InputItem{
+		{ID: "cp-1", SMILES: "C1=CCCC1", Line: 1},
+		{ID: "nb run 4", SMILES: "C1=CC2CCC1C2", Line: 4},
+		{ID: "coe", SMILES: "C1=CCCCCCC1", Line: 5},
+		{ID: "6", SMILES: "C1=CC=CC1", Line: 6},
+	}
+	if len(in.Items) != len(want) {
+		t.Fatalf("%d items: %+v", len(in.Items), in.Items)
+	}
+	lines := strings.Split(content, "\n")
+	for i, w := range want {
+		got := in.Items[i]
+		if got.ID != w.ID || got.SMILES != w.SMILES || got.Line != w.Line {
+			t.Errorf("item %d: %+v, want %+v", i, got, w)
+		}
+		smi, id := splitLineReference(lines[got.Line-1], got.Line)
+		if got.ID != id || got.SMILES != smi {
+			t.Errorf("item %d: %q %q, strings.Fields reads %q %q", i, got.SMILES, got.ID, smi, id)
+		}
+	}
+}

@@ -20,17 +20,29 @@ func WrittenSignature(m *mol.Molecule, r *rings.Rings, atoms []int, skip int, ex
 	// built on the stack when it fits (the common case); only the string is allocated
 	var stack [512]byte
 	sb := stack[:0]
-	// atoms is sorted: local numbers by binary search
+	// local numbers: a sparse index (loc[a] is a's position in atoms when atoms holds a there)
+	// for molecules of up to 256 atoms, else binary search (atoms is sorted)
+	var locStack [256]uint16
+	sparse := len(m.Atoms) <= len(locStack)
+	if sparse {
+		for i, a := range atoms {
+			locStack[a] = uint16(i)
+		}
+	}
 	local := func(a int) (int, bool) {
+		if sparse {
+			i := int(locStack[a])
+			return i, i < len(atoms) && atoms[i] == a
+		}
 		i := sort.SearchInts(atoms, a)
 		return i, i < len(atoms) && atoms[i] == a
 	}
 	for _, a := range atoms {
-		sb = strconv.AppendInt(sb, int64(m.Atoms[a].Z), 10)
+		at := &m.Atoms[a]
+		sb = appendSmallInt(sb, at.Z)
 		if r.AromaticAtom[a] {
 			sb = append(sb, 'a')
 		}
-		at := &m.Atoms[a]
 		if at.Charge != 0 {
 			sb = append(sb, 'q')
 			sb = strconv.AppendInt(sb, int64(at.Charge), 10)
@@ -51,9 +63,9 @@ func WrittenSignature(m *mol.Molecule, r *rings.Rings, atoms []int, skip int, ex
 				continue
 			}
 			b := &m.Bonds[bi]
-			sb = strconv.AppendInt(sb, int64(i), 10)
+			sb = appendSmallInt(sb, i)
 			sb = append(sb, '-')
-			sb = strconv.AppendInt(sb, int64(j), 10)
+			sb = appendSmallInt(sb, j)
 			sb = append(sb, byte('0'+b.Order))
 			if r.AromaticBond[bi] {
 				sb = append(sb, 'a')
@@ -63,6 +75,18 @@ func WrittenSignature(m *mol.Molecule, r *rings.Rings, atoms []int, skip int, ex
 	}
 	sb = append(sb, extra...)
 	return string(sb)
+}
+
+// appendSmallInt appends v in decimal as strconv.AppendInt does, without its call for the
+// numbers below 100 that atomic numbers and local atom numbers mostly are.
+func appendSmallInt(b []byte, v int) []byte {
+	switch {
+	case v >= 0 && v < 10:
+		return append(b, byte('0'+v))
+	case v >= 10 && v < 100:
+		return append(b, byte('0'+v/10), byte('0'+v%10))
+	}
+	return strconv.AppendInt(b, int64(v), 10)
 }
 
 // keyMemo caches skeleton keys by written signature (50,000 entries: a design choice, a few

@@ -119,3 +119,29 @@ func TestWrittenSignatureHoldsWhatSubgraphsDependOn(t *testing.T) {
 		t.Errorf("a substituent outside the ring changed its signature: %q %q", a, b)
 	}
 }
+
+// TestWrittenSignatureText pins the signature's layout (atoms, then bonds with local numbers and
+// orders) and checks that a molecule too large for the sparse local index (over 256 atoms) gives
+// the same signature for the same subgraph.
+func TestWrittenSignatureText(t *testing.T) {
+	m, r, all := perceived(t, "C1=CCCC1")
+	if got, want := canon.WrittenSignature(m, r, all, -1, "x"), "6,6,6,6,6,|0-12 0-41 1-21 2-31 3-41 x"; got != want {
+		t.Errorf("cyclopentene: %q, want %q", got, want)
+	}
+	small := "C1=CC2CC1C2N(C)C(=O)c1ccccc1"
+	long := small + "CCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCCC"
+	for len(long) < 400 {
+		long += "CCCCCCCCCC"
+	}
+	ms, rs, _ := perceived(t, small)
+	ml, rl, _ := perceived(t, long)
+	if len(ml.Atoms) <= 256 {
+		t.Fatalf("the long molecule has only %d atoms", len(ml.Atoms))
+	}
+	for _, atoms := range [][]int{{0, 1, 2, 3, 4, 5, 6}, {0, 1, 2, 3, 4, 5}, {2, 5, 6, 7, 8}, {10, 11, 12, 13, 14, 15}} {
+		a, b := canon.WrittenSignature(ms, rs, atoms, -1, ""), canon.WrittenSignature(ml, rl, atoms, -1, "")
+		if a != b || len(a) < 2*len(atoms) {
+			t.Errorf("atoms %v: %q (%d atoms) and %q (%d atoms)", atoms, a, len(ms.Atoms), b, len(ml.Atoms))
+		}
+	}
+}

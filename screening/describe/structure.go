@@ -179,10 +179,6 @@ func bredt(m *mol.Molecule, p *rings.Rings, o *Olefin) error {
 	if len(o.CoreRings) < 2 || len(o.CoreAtoms) == len(o.SmallRing) {
 		return nil
 	}
-	in := make(map[int]bool, len(o.CoreAtoms))
-	for _, a := range o.CoreAtoms {
-		in[a] = true
-	}
 	// bridged: two of the core's rings share three or more atoms
 	bridged := false
 	for i := 0; i < len(o.CoreRings) && !bridged; i++ {
@@ -199,7 +195,7 @@ func bredt(m *mol.Molecule, p *rings.Rings, o *Olefin) error {
 	for _, a := range [2]int{o.A, o.B} {
 		n := 0
 		for _, x := range m.HeavyNbrs(a) {
-			if in[x] {
+			if _, ok := slices.BinarySearch(o.CoreAtoms, x); ok { // CoreAtoms is sorted
 				n++
 			}
 		}

@@ -100,7 +100,7 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 	r.Conditions.MonomerConcMolL = round(float64(c.Conc), 4)
 	in := ruleInput{Desc: d, Cond: c}
 	for _, rl := range rules {
-		r.Reasons = append(r.Reasons, rl(in)...)
+		r.Reasons = rl(in, r.Reasons)
 	}
 	if d.RingSize == 0 {
 		r.Verdict = VerdictNotMonomer
@@ -161,7 +161,7 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 			Detail: "T_c = " + fixed(v, 0) + " K lies far outside any measured ceiling temperature (200–500 K): a formal number, read it as \"no ceiling in practice\" or \"never above\""})
 	}
 	r.Thermo = &th
-	r.Reasons = append(r.Reasons, strainReasons(d, *e)...)
+	r.Reasons = strainReasons(d, *e, r.Reasons)
 	for _, n := range e.Notes {
 		r.Reasons = append(r.Reasons, Reason{Code: n.Code, Effect: EffectNote, Detail: n.Detail, Value: n.Value, Unit: n.Unit})
 	}

@@ -58,12 +58,11 @@ var coreKeys = sync.OnceValue(func() map[string]string {
 	return out
 })
 
-func ruleTemperatureWindow(in ruleInput) []Reason {
+func ruleTemperatureWindow(in ruleInput, out []Reason) []Reason {
 	d, c := in.Desc, in.Cond
 	if d.RingSize == 0 {
-		return nil
+		return out
 	}
-	var out []Reason
 	tc := c.Temp.Celsius()
 	if top, ok := classWindowC[c.Catalyst]; ok && tc > top {
 		v := tc

@@ -1,6 +1,7 @@
 package mol
 
 import (
+	"slices"
 	"sort"
 	"strconv"
 )
@@ -12,17 +13,36 @@ func (m *Molecule) Formula() string { return m.FormulaOf(nil) }
 
 // FormulaOf is Formula over the atoms listed (nil: all).
 func (m *Molecule) FormulaOf(atoms []int) string {
-	var counts [NumElements + 1]int // index 0: wildcard atoms
+	var counts [NumElements + 1]int32 // index 0: wildcard atoms
+	var zs [16]uint8                  // the elements present other than C and H, in order of first sight
+	present := zs[:0]
 	charge := 0
-	m.eachAtom(atoms, func(a *Atom) {
+	count := func(a *Atom) {
 		if a.Z >= 0 && a.Z <= NumElements {
+			if counts[a.Z] == 0 && a.Z > 1 && a.Z != 6 {
+				present = append(present, uint8(a.Z))
+			}
 			counts[a.Z]++
 		}
-		counts[1] += a.HCount
+		counts[1] += int32(a.HCount)
 		charge += a.Charge
-	})
+	}
+	if atoms == nil {
+		for i := range m.Atoms {
+			count(&m.Atoms[i])
+		}
+	} else {
+		for _, i := range atoms {
+			count(&m.Atoms[i])
+		}
+	}
+	// Hill order: C and H first when there is carbon, else H among the others alphabetically
+	if counts[6] == 0 && counts[1] > 0 {
+		present = append(present, 1)
+	}
+	slices.SortFunc(present, func(a, b uint8) int { return int(alphabeticalRank[a]) - int(alphabeticalRank[b]) })
 	sb := make([]byte, 0, 32)
-	write := func(sym string, n int) {
+	write := func(sym string, n int32) {
 		if n == 0 {
 			return
 		}
@@ -34,15 +54,9 @@ func (m *Molecule) FormulaOf(atoms []int) string {
 	if counts[6] > 0 {
 		write("C", counts[6])
 		write("H", counts[1])
-		for _, z := range alphabeticalZ {
-			if z != 6 && z != 1 {
-				write(elements[z-1].Symbol, counts[z])
-			}
-		}
-	} else {
-		for _, z := range alphabeticalZ {
-			write(elements[z-1].Symbol, counts[z])
-		}
+	}
+	for _, z := range present {
+		write(elements[z-1].Symbol, counts[z])
 	}
 	write("*", counts[0])
 	switch {
@@ -59,15 +73,19 @@ func (m *Molecule) FormulaOf(atoms []int) string {
 	return string(sb)
 }
 
-// alphabeticalZ lists atomic numbers in alphabetical order of their symbols (Hill order after
-// carbon and hydrogen).
-var alphabeticalZ = func() []int {
+// alphabeticalRank is each atomic number's place in the alphabetical order of the element
+// symbols (Hill order after carbon and hydrogen).
+var alphabeticalRank = func() [NumElements + 1]uint8 {
 	z := make([]int, len(elements))
 	for i := range z {
 		z[i] = i + 1
 	}
 	sort.Slice(z, func(a, b int) bool { return elements[z[a]-1].Symbol < elements[z[b]-1].Symbol })
-	return z
+	var rank [NumElements + 1]uint8
+	for i, x := range z {
+		rank[x] = uint8(i)
+	}
+	return rank
 }()
 
 // MolWeight returns the average molar mass in g/mol (IUPAC 2021 standard atomic weights; an

@@ -1,6 +1,9 @@
 package rings
 
-import "sort"
+import (
+	"slices"
+	"sort"
+)
 
 // Ring-system kinds.
 const (
@@ -130,19 +133,34 @@ func Kind(rings []Ring, idx []int) string {
 // atoms with them (the bridged core); rings fused by one bond or spiro-joined stay outside. The
 // result is sorted.
 func Core(rings []Ring, system []int, seed []int) []int {
-	in := map[int]bool{}
-	core := append([]int(nil), seed...)
+	// the closure is the same whatever order rings join in (joining only adds atoms), so atoms
+	// are marked as their rings join
+	maxAtom := 0
+	for _, r := range system {
+		for _, a := range rings[r].Atoms {
+			maxAtom = max(maxAtom, a)
+		}
+	}
 	for _, r := range seed {
+		for _, a := range rings[r].Atoms {
+			maxAtom = max(maxAtom, a)
+		}
+	}
+	marks := make([]bool, maxAtom+1+len(rings))
+	atoms, in := marks[:maxAtom+1], marks[maxAtom+1:]
+	core := make([]int, 0, len(system))
+	join := func(r int) {
 		in[r] = true
+		core = append(core, r)
+		for _, a := range rings[r].Atoms {
+			atoms[a] = true
+		}
+	}
+	for _, r := range seed {
+		join(r)
 	}
 	for changed := true; changed; {
 		changed = false
-		atoms := map[int]bool{}
-		for _, r := range core {
-			for _, a := range rings[r].Atoms {
-				atoms[a] = true
-			}
-		}
 		for _, r := range system {
 			if in[r] {
 				continue
@@ -154,13 +172,12 @@ func Core(rings []Ring, system []int, seed []int) []int {
 				}
 			}
 			if n >= 3 {
-				in[r] = true
-				core = append(core, r)
+				join(r)
 				changed = true
 			}
 		}
 	}
-	sort.Ints(core)
+	slices.Sort(core)
 	return core
 }
 

@@ -321,8 +321,6 @@ func (r *smilesReader) addBond(b mol.Bond) {
 	r.m.Bonds = append(r.m.Bonds, b)
 }
 
-var organicTwo = map[string]bool{"Cl": true, "Br": true}
-
 func (r *smilesReader) readAtom() (mol.Atom, error) {
 	s := r.s
 	c := s[r.i]
@@ -333,18 +331,21 @@ func (r *smilesReader) readAtom() (mol.Atom, error) {
 		r.i++
 		return mol.Atom{Z: 0}, nil
 	}
-	if r.i+1 < len(s) && organicTwo[s[r.i:r.i+2]] {
-		sym := s[r.i : r.i+2]
-		r.i += 2
-		return mol.Atom{Z: mol.ElementBySymbol(sym).Z}, nil
+	if r.i+1 < len(s) {
+		if z := organicTwoZ(c, s[r.i+1]); z != 0 {
+			r.i += 2
+			return mol.Atom{Z: z}, nil
+		}
 	}
-	switch c {
-	case 'B', 'C', 'N', 'O', 'P', 'S', 'F', 'I':
+	if z := organicZ[c]; z != 0 {
 		r.i++
-		return mol.Atom{Z: mol.ElementBySymbol(string(c)).Z}, nil
-	case 'b', 'c', 'n', 'o', 'p', 's':
-		r.i++
-		return mol.Atom{Z: mol.ElementBySymbol(string(c - 'a' + 'A')).Z, Aromatic: true}, nil
+		return mol.Atom{Z: int(z)}, nil
+	}
+	if c >= 'a' && c <= 'z' {
+		if z := organicZ[c-'a'+'A']; z != 0 && z != 9 && z != 53 {
+			r.i++
+			return mol.Atom{Z: int(z), Aromatic: true}, nil
+		}
 	}
 	if c == ']' {
 		return mol.Atom{}, smilesErr(r.i, "']' without '['")
@@ -353,6 +354,21 @@ func (r *smilesReader) readAtom() (mol.Atom, error) {
 		return mol.Atom{}, smilesErr(r.i, "non-ASCII character")
 	}
 	return mol.Atom{}, smilesErr(r.i, "unexpected character %q", c)
+}
+
+// organicZ maps the one-letter symbols of the organic subset (B, C, N, O, P, S, F, I) to their
+// atomic numbers; 0 elsewhere. Their lower-case forms, but for f and i, are the aromatic atoms.
+var organicZ = [256]uint8{'B': 5, 'C': 6, 'N': 7, 'O': 8, 'P': 15, 'S': 16, 'F': 9, 'I': 53}
+
+// organicTwoZ is the atomic number of the two-letter organic-subset symbol c1 c2 (Cl, Br), or 0.
+func organicTwoZ(c1, c2 byte) int {
+	switch {
+	case c1 == 'C' && c2 == 'l':
+		return 17
+	case c1 == 'B' && c2 == 'r':
+		return 35
+	}
+	return 0
 }
 
 var aromaticBracket = map[string]int{"b": 5, "c": 6, "n": 7, "o": 8, "p": 15, "s": 16, "se": 34, "as": 33, "te": 52, "si": 14, "ge": 32, "sb": 51}

@@ -596,17 +596,13 @@ func (t *ringTable) oxaBridge(s *describe.Structure, o *describe.Olefin) bool {
 	if o.Desc.RingSystem != describe.SystemBridged || len(o.CoreAtoms) != 7 {
 		return false
 	}
-	in := map[int]bool{}
-	for _, a := range o.CoreAtoms {
-		in[a] = true
-	}
 	for _, a := range o.CoreAtoms {
 		if s.Mol.Atoms[a].Z != 8 {
 			continue
 		}
 		n := 0
 		for _, x := range s.Mol.HeavyNbrs(a) {
-			if in[x] {
+			if slices.Contains(o.CoreAtoms, x) {
 				n++
 			}
 		}
