@@ -4,6 +4,7 @@ go 1.26.8
 
 require (
 	github.com/chromedp/chromedp v0.14.2
+	github.com/edsrzf/mmap-go v1.2.0
 	github.com/gin-gonic/gin v1.12.0
 	github.com/jackc/pgx/v5 v5.12.0
 	github.com/mattn/go-sqlite3 v1.14.53

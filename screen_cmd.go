@@ -134,7 +134,7 @@ func screenCmd() *cobra.Command {
 						progressbar.OptionSetDescription("screening"), progressbar.OptionShowCount(), progressbar.OptionThrottle(100*1e6),
 						progressbar.OptionClearOnFinish())
 				}
-				st, err := screenStream(cmd.Context(), f, inFormat, idField, cond, format, filter, out, bar)
+				st, err := screenStream(cmd.Context(), f, inFormat, idField, cond, format, filter, out, bar, spoolConfig{})
 				if err != nil {
 					return err
 				}

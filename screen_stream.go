@@ -22,17 +22,20 @@ import (
 )
 
 // Streaming offline screening: the input is read as a stream, items are screened on every
-// core as they arrive, and each result is kept only as a compact row — its rank key and its
-// output already rendered — so memory grows by a few hundred bytes per item instead of a whole
-// result, and reading, screening and rendering overlap. Ranking sorts the compact rows.
+// core as they arrive, and each result is kept only as a compact row — its rank key and the
+// place of its output, already rendered, in a spool (screen_spool.go) — so the heap grows by
+// about 40 bytes per item instead of a whole result, and reading, screening and rendering
+// overlap. Ranking sorts the compact rows; the ranked write reads each row's text back.
 
-// compactRow is one screened item as the output needs it.
+// compactRow is one screened item as the ranking needs it. It holds no pointer, so the
+// garbage collector does not scan the rows.
 type compactRow struct {
 	key    batch.Key
-	seq    int
 	failed bool
-	keep   bool   // passes the output filter
-	text   []byte // the rendered row without its rank (format-specific, see renderRow)
+	keep   bool // passes the output filter
+	seq    int
+	off    int64 // the rendered row without its rank in the spool (format-specific, see renderRow)
+	n      int32 // its length; 0 for a row the filter drops
 }
 
 // streamStats is what the summary line reports.
@@ -44,8 +47,16 @@ type streamStats struct {
 
 // screenStream screens the input read from r and writes the ranked output.
 func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, cond screening.Conditions, format string,
-	filter batch.ResultFilter, out io.Writer, bar *progressbar.ProgressBar) (streamStats, error) {
+	filter batch.ResultFilter, out io.Writer, bar *progressbar.ProgressBar, spool spoolConfig) (st streamStats, err error) {
 	const batchSize = 256
+	sp := newRowSpool(spool)
+	defer func() {
+		if cerr := sp.close(); err == nil && cerr != nil {
+			err = cerr
+		}
+	}()
+	ctx, cancel := context.WithCancelCause(ctx)
+	defer cancel(nil)
 	// a batch of items read in a row: the first one's submission sequence and the items
 	type run struct {
 		first int
@@ -62,15 +73,29 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 			defer wg.Done()
 			var batches [][]compactRow
 			var buf bytes.Buffer // one per worker: not re-made per row
+			var text []byte      // a batch's rendered rows, spooled at once
 			for w := range work {
 				items := w.items
 				rows := make([]compactRow, 0, len(items))
+				text = text[:0]
 				for k, it := range items {
 					if ctx.Err() != nil {
 						break
 					}
 					res, err := batch.ScreenItemContext(ctx, it, cond)
-					rows = append(rows, renderRow(&buf, format, w.first+k, it, res, err, filter))
+					cr := renderRow(&buf, format, w.first+k, it, res, err, filter)
+					if cr.keep {
+						cr.off, cr.n = int64(len(text)), int32(buf.Len())
+						text = append(text, buf.Bytes()...)
+					}
+					rows = append(rows, cr)
+				}
+				base, err := sp.add(text)
+				if err != nil {
+					cancel(err)
+				}
+				for k := range rows {
+					rows[k].off += base
 				}
 				batches = append(batches, rows)
 				if bar != nil {
@@ -112,10 +137,13 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 	if bar != nil {
 		bar.Finish()
 	}
+	if err := context.Cause(ctx); err != nil {
+		return streamStats{}, err // canceled, or the spool failed
+	}
 	if readErr != nil {
 		return streamStats{}, readErr
 	}
-	if err := ctx.Err(); err != nil {
+	if err := sp.seal(); err != nil {
 		return streamStats{}, err
 	}
 	slices.SortFunc(rows, func(a, b compactRow) int {
@@ -124,7 +152,7 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 		}
 		return a.seq - b.seq
 	})
-	st := streamStats{inputErrors: in.Errors, extraColumns: in.ExtraColumns}
+	st = streamStats{inputErrors: in.Errors, extraColumns: in.ExtraColumns}
 	for _, r := range rows {
 		if r.failed {
 			st.failed++
@@ -132,10 +160,11 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 			st.screened++
 		}
 	}
-	return st, writeCompact(out, format, rows, in.ExtraColumns)
+	return st, writeCompact(out, format, rows, sp, in.ExtraColumns)
 }
 
-// renderRow screens nothing: it renders one outcome for the output format into buf.
+// renderRow screens nothing: it renders one outcome for the output format into buf (nothing
+// for a row the filter drops: only its rank key and place count).
 //
 //	csv:   the CSV record with rank 0 (the rank is put in front when writing)
 //	jsonl: the JSON object's members after "rank" — {"error"|"extra","id","line" before it and
@@ -147,6 +176,9 @@ func renderRow(buf *bytes.Buffer, format string, seq int, it batch.InputItem, re
 	row := batch.NewRow(seq, res, err)
 	cr := compactRow{key: row.Key, seq: seq, failed: err != nil, keep: !f.Active() || (row.Result != nil && f.Keeps(row.Result))}
 	buf.Reset()
+	if !cr.keep {
+		return cr
+	}
 	msg := ""
 	if err != nil {
 		msg = err.Error()
@@ -183,7 +215,6 @@ func renderRow(buf *bytes.Buffer, format string, seq int, it batch.InputItem, re
 	default:
 		buf.WriteString(tableCells(it.ID, row.Result, err))
 	}
-	cr.text = bytes.Clone(buf.Bytes())
 	return cr
 }
 
@@ -213,30 +244,42 @@ func writeJSON(buf *bytes.Buffer, v any) {
 }
 
 // writeCompact writes the ranked compact rows.
-func writeCompact(out io.Writer, format string, rows []compactRow, extraCols []string) error {
+func writeCompact(out io.Writer, format string, rows []compactRow, sp *rowSpool, extraCols []string) error {
+	var scratch []byte
+	text := func(r *compactRow) ([]byte, error) { return sp.bytes(r.off, int(r.n), &scratch) }
 	switch format {
 	case "csv":
 		bw := bufioWriter(out)
 		bw.Write(batch.AppendCSVRecord(nil, batch.CSVHeader(extraCols)))
 		rank := 0
-		for _, r := range rows {
+		for i := range rows {
+			r := &rows[i]
 			rank++
 			if !r.keep {
 				continue
 			}
+			t, err := text(r)
+			if err != nil {
+				return err
+			}
 			bw.WriteString(strconv.Itoa(rank))
-			bw.Write(r.text[1:]) // the record after its "0"
+			bw.Write(t[1:]) // the record after its "0"
 		}
 		return bw.Flush()
 	case "jsonl":
 		bw := bufioWriter(out)
 		rank := 0
-		for _, r := range rows {
+		for i := range rows {
+			r := &rows[i]
 			rank++
 			if !r.keep {
 				continue
 			}
-			pre, post, _ := bytes.Cut(r.text, []byte{0})
+			t, err := text(r)
+			if err != nil {
+				return err
+			}
+			pre, post, _ := bytes.Cut(t, []byte{0})
 			bw.WriteByte('{')
 			a, rest, _ := bytes.Cut(pre, []byte{1})
 			vals, b, _ := bytes.Cut(rest, []byte{1})
@@ -277,12 +320,17 @@ func writeCompact(out io.Writer, format string, rows []compactRow, extraCols []s
 		tw := tabwriter.NewWriter(out, 2, 4, 2, ' ', 0)
 		fmt.Fprintln(tw, "RANK\tID\tVERDICT\tSCORE\tΔH_p kJ/mol\tT_c K\tX_eq\tMAIN REASONS")
 		rank := 0
-		for _, r := range rows {
+		for i := range rows {
+			r := &rows[i]
 			rank++
 			if !r.keep {
 				continue
 			}
-			fmt.Fprintf(tw, "%d\t%s\n", rank, r.text)
+			t, err := text(r)
+			if err != nil {
+				return err
+			}
+			fmt.Fprintf(tw, "%d\t%s\n", rank, t)
 		}
 		if err := tw.Flush(); err != nil {
 			return err

@@ -48,11 +48,20 @@ func TestStreamedOutputUnchanged(t *testing.T) {
 			if err := writeRanked(&want, format, in.Items, rows, in.ExtraColumns, f); err != nil {
 				t.Fatal(err)
 			}
-			if _, err := screenStream(context.Background(), strings.NewReader(input), "", "", cond, format, f, &got, nil); err != nil {
-				t.Fatal(err)
-			}
-			if got.String() != want.String() {
-				t.Errorf("%s (filter %v): streamed output differs\n got: %.600s\nwant: %.600s", format, f.Active(), got.String(), want.String())
+			// rows in memory, in the spool's file (mapped), and split between the two
+			for _, sc := range []spoolConfig{{}, {MemBytes: -1, Dir: t.TempDir()}, {MemBytes: 700, Dir: t.TempDir()}} {
+				got.Reset()
+				if _, err := screenStream(context.Background(), strings.NewReader(input), "", "", cond, format, f, &got, nil, sc); err != nil {
+					t.Fatal(err)
+				}
+				if got.String() != want.String() {
+					t.Errorf("%s (filter %v, spool %+v): streamed output differs\n got: %.600s\nwant: %.600s", format, f.Active(), sc, got.String(), want.String())
+				}
+				if sc.Dir != "" {
+					if left, _ := os.ReadDir(sc.Dir); len(left) != 0 {
+						t.Errorf("the spool left %d files in its directory", len(left))
+					}
+				}
 			}
 		}
 	}
