@@ -315,7 +315,9 @@ func rankOlefins(ctx context.Context, s *Structure, base *Descriptors, c Conditi
 		cands = append(cands, olefinCand{o, r, e})
 	}
 	// by index: the candidates hold whole results, too large to copy per comparison
-	sort.SliceStable(cands, func(i, j int) bool { return judge.MoreReactive(&cands[i].r, &cands[j].r) })
+	if len(cands) > 1 {
+		sort.SliceStable(cands, func(i, j int) bool { return judge.MoreReactive(&cands[i].r, &cands[j].r) })
+	}
 	return cands
 }
 

@@ -3,6 +3,7 @@ package describe
 import (
 	"encoding/json"
 	"math"
+	"slices"
 	"sort"
 	"strings"
 	"testing"
@@ -108,5 +109,18 @@ func TestBulkConcentration(t *testing.T) {
 	}
 	if math.Abs(float64(c)-11.318)/11.318 > rel+0.01 {
 		t.Errorf("neat cyclopentene %.2f mol/L, reference 11.318 ± %.0f%%", float64(c), 100*rel)
+	}
+}
+
+// The conjugation kinds are listed sorted, each at its bit (ConjugatedWith is sorted by name).
+func TestConjKindsSorted(t *testing.T) {
+	if !slices.IsSorted(conjKinds[:]) {
+		t.Errorf("conjugation kinds not sorted: %v", conjKinds)
+	}
+	for bit, kind := range map[int]string{conjAromaticBit: ConjAromatic, conjCarbonylBit: ConjCarbonyl, conjNitrileBit: ConjNitrile,
+		conjOlefinBit: ConjOlefin, conjRingOlefinBit: ConjRingOlefin} {
+		if conjKinds[bit] != kind {
+			t.Errorf("bit %d is %s, want %s", bit, conjKinds[bit], kind)
+		}
 	}
 }

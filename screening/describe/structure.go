@@ -261,9 +261,13 @@ func (s *Structure) pickMain(text string) {
 		s.MainSMILES = text
 		return
 	}
-	parts := strings.Split(text, ".")
-	if text != "" && len(parts) == m.NumComponents() {
-		s.MainSMILES = parts[best]
+	if text != "" && strings.Count(text, ".")+1 == m.NumComponents() {
+		// the best component's part of the text, split at its dots
+		rest := text
+		for range best {
+			_, rest, _ = strings.Cut(rest, ".")
+		}
+		s.MainSMILES, _, _ = strings.Cut(rest, ".")
 	} else {
 		s.MainSMILES = text
 	}
@@ -274,6 +278,18 @@ func (s *Structure) pickMain(text string) {
 		s.CounterIons = append(s.CounterIons, m.FormulaOf(m.Component(ci)))
 	}
 }
+
+// conjKinds lists the conjugation kinds in the order ConjugatedWith lists them (sorted by
+// name); the bits below index it.
+var conjKinds = [...]string{ConjAromatic, ConjCarbonyl, ConjNitrile, ConjOlefin, ConjRingOlefin}
+
+const (
+	conjAromaticBit = iota
+	conjCarbonylBit
+	conjNitrileBit
+	conjOlefinBit
+	conjRingOlefinBit
+)
 
 func (s *Structure) analyse(bi int) *Olefin {
 	m, p := s.Mol, s.Rings
@@ -333,7 +349,7 @@ func (s *Structure) analyse(bi int) *Olefin {
 	d.RingSystemRings = len(system)
 	d.FunctionalGroups = append([]string(nil), s.Groups...)
 	// substitution and conjugation
-	conj := map[string]bool{}
+	var conj uint8 // bit k: conjugated with conjKinds[k]
 	for _, end := range []int{o.A, o.B} {
 		other := o.B
 		if end == o.B {
@@ -349,11 +365,11 @@ func (s *Structure) analyse(bi int) *Olefin {
 				d.EWGOnOlefin = true
 			}
 			if p.AromaticAtom[n] {
-				conj[ConjAromatic] = true
+				conj |= 1 << conjAromaticBit
 				continue
 			}
 			if g.isCarbonyl(n) {
-				conj[ConjCarbonyl] = true
+				conj |= 1 << conjCarbonylBit
 			}
 			for _, nb2 := range m.Neighbors(n) {
 				bb := &m.Bonds[nb2]
@@ -362,22 +378,23 @@ func (s *Structure) analyse(bi int) *Olefin {
 					continue
 				}
 				if bb.Order == mol.BondTriple && m.Atoms[x].Z == 7 {
-					conj[ConjNitrile] = true
+					conj |= 1 << conjNitrileBit
 				}
 				if bb.Order == mol.BondDouble && !p.AromaticBond[nb2] && m.Atoms[x].Z == 6 {
 					if inSmall[n] && inSmall[x] {
-						conj[ConjRingOlefin] = true
+						conj |= 1 << conjRingOlefinBit
 					} else {
-						conj[ConjOlefin] = true
+						conj |= 1 << conjOlefinBit
 					}
 				}
 			}
 		}
 	}
-	for c := range conj {
-		d.ConjugatedWith = append(d.ConjugatedWith, c)
+	for k, c := range conjKinds { // sorted
+		if conj&(1<<k) != 0 {
+			d.ConjugatedWith = append(d.ConjugatedWith, c)
+		}
 	}
-	sort.Strings(d.ConjugatedWith)
 	d.Conjugated = len(d.ConjugatedWith) > 0
 	// EWG on the olefin's own (smallest) ring
 	for _, a := range o.SmallRing {
