@@ -6,6 +6,7 @@ import (
 	"fmt"
 	"io"
 	"os"
+	"runtime"
 	"sync"
 
 	"github.com/edsrzf/mmap-go"
@@ -40,7 +41,9 @@ type rowSpool struct {
 	size   int64 // bytes in the file
 	mapped mmap.MMap
 	sealed bool
-	err    error
+	// unlinked: the file's name is already removed (it lives on while open)
+	unlinked bool
+	err      error
 }
 
 func newRowSpool(cfg spoolConfig) *rowSpool {
@@ -77,6 +80,9 @@ func (s *rowSpool) add(b []byte) (int64, error) {
 			return 0, s.err
 		}
 		s.f, s.w = f, bufio.NewWriterSize(f, 1<<20)
+		// unlinked at once where an open file can be (Unix): nothing is left behind even when
+		// the process is killed; elsewhere close removes it
+		s.unlinked = runtime.GOOS != "windows" && os.Remove(f.Name()) == nil
 	}
 	off := int64(len(s.mem)) + s.size
 	if _, err := s.w.Write(b); err != nil {
@@ -138,7 +144,10 @@ func (s *rowSpool) close() error {
 		s.mapped = nil
 	}
 	if s.f != nil {
-		errs = append(errs, s.f.Close(), os.Remove(s.f.Name()))
+		errs = append(errs, s.f.Close())
+		if !s.unlinked {
+			errs = append(errs, os.Remove(s.f.Name()))
+		}
 		s.f = nil
 	}
 	return errors.Join(errs...)

@@ -4,6 +4,7 @@ import (
 	"context"
 	"fmt"
 	"os"
+	"runtime"
 	"strings"
 	"sync"
 	"testing"
@@ -68,6 +69,9 @@ func TestRowSpool(t *testing.T) {
 				if string(b) != p.want {
 					t.Fatalf("memory budget %d, mapped %v: at %d %q, want %q", mem, mapped, p.off, b, p.want)
 				}
+			}
+			if left, _ := os.ReadDir(dir); runtime.GOOS != "windows" && len(left) != 0 {
+				t.Errorf("the spool's file has a name while in use (%d entries): a killed process would leave it", len(left))
 			}
 			if err := sp.close(); err != nil {
 				t.Error(err)
