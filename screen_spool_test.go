@@ -8,6 +8,7 @@ import (
 	"strings"
 	"sync"
 	"testing"
+	"unsafe"
 
 	"ringsieve/screening"
 	"ringsieve/screening/batch"
@@ -101,5 +102,13 @@ func TestRowSpoolFileError(t *testing.T) {
 		batch.ResultFilter{}, &out, nil, spoolConfig{Dir: t.TempDir() + "/missing", MemBytes: -1})
 	if err == nil || !strings.Contains(err.Error(), "spooling ranked rows") || out.Len() != 0 {
 		t.Errorf("screen with a failing spool: %v, %d bytes written", err, out.Len())
+	}
+}
+
+// The compact rows stay at 40 bytes (17 of rank key, the place, the sequence and two flags):
+// the whole of what a screened item costs the process until ranking.
+func TestCompactRowSize(t *testing.T) {
+	if n := unsafe.Sizeof(compactRow{}); n != 40 {
+		t.Errorf("compactRow is %d bytes", n)
 	}
 }

@@ -32,10 +32,10 @@ import (
 type compactRow struct {
 	key    batch.Key
 	failed bool
-	keep   bool // passes the output filter
+	keep   bool  // passes the output filter
+	n      int32 // the length of the rendered row; 0 for a row the filter drops
 	seq    int
 	off    int64 // the rendered row without its rank in the spool (format-specific, see renderRow)
-	n      int32 // its length; 0 for a row the filter drops
 }
 
 // streamStats is what the summary line reports.
