@@ -392,11 +392,11 @@ func shortestPathAvoiding(m *mol.Molecule, a, b, skip int, scratch []int) []int 
 	prev[a] = -1
 	q := scratch[len(m.Atoms):len(m.Atoms)]
 	q = append(q, a)
+	// breadth first; stop as b is reached: its first discovery fixes its predecessor, so the
+	// rest of the level would change nothing
+search:
 	for k := 0; k < len(q); k++ {
 		x := q[k]
-		if x == b {
-			break
-		}
 		for _, bi := range m.Neighbors(x) {
 			if bi == skip {
 				continue
@@ -404,6 +404,9 @@ func shortestPathAvoiding(m *mol.Molecule, a, b, skip int, scratch []int) []int 
 			o := m.Other(bi, x)
 			if prev[o] == -2 {
 				prev[o] = x
+				if o == b {
+					break search
+				}
 				q = append(q, o)
 			}
 		}
