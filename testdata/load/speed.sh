@@ -7,8 +7,8 @@
 #   1. offline screening of 100,000 SMILES (the corpus ten times, distinct ids), whole process:
 #      ringsieve's fast tier against RDKit parsing, ring perception, aromaticity, formula and
 #      substructure counts (testdata/load/rdkit_reference_screen.py);
-#      the same for its first 10,000 lines (where cold caches weigh more), and a cold start
-#      (one structure, whole process);
+#      the same for its first 10,000 lines (where cold caches weigh more), a cold start
+#      (one structure, whole process), and the memory of 10,000 and 100,000 in CSV and JSON Lines;
 #   2. the 100,000 as a job: upload, screen and store, CSV and JSON Lines downloads; then the job
 #      and the offline screen alternately, three rounds, in wall and CPU time;
 #   3. POST /v1/screen against GET /healthz on one server (wrk, 2 threads, 16 connections, three
@@ -46,6 +46,19 @@ echo "== 1c. a cold start: one structure, whole process (hyperfine, 50 runs)"
 head -n 1 "$work/100k.smi" > "$work/one.smi"
 hyperfine -N -w 5 -r 50 --export-json "$work/cold.json" "$work/ringsieve screen --thermo-method table --format csv $work/one.smi" > /dev/null
 python3 -c "import json,sys; r=json.load(open(sys.argv[1]))['results'][0]; print(f\"one SMILES, whole process: {1000*r['mean']:.1f} ms mean (sd {1000*r['stddev']:.1f}), user {1000*r['user']:.1f} ms, system {1000*r['system']:.1f} ms\")" "$work/cold.json"
+
+echo "== 1d. memory of the offline screen: 10,000 and 100,000, CSV and JSON Lines"
+# peak resident size and page faults (GNU time), and the Go heap left after the last collection
+# (the runtime's gctrace line: live MB after the cycle), which stays flat in the input's size
+for f in 10k 100k; do
+  [ "$f" = 10k ] && in="$work/10k.smi" || in="$work/100k.smi"
+  for fmt in csv jsonl; do
+    GODEBUG=gctrace=1 /usr/bin/time -f "%M %R" -o "$work/mem" "$work/ringsieve" screen --thermo-method table --format "$fmt" "$in" 2>"$work/gc" >/dev/null || true
+    read -r peak faults < "$work/mem"
+    live=$(grep '^gc ' "$work/gc" | tail -1 | sed -E 's/.*->([0-9]+) MB,.*/\1/')
+    echo "$f $fmt: peak resident $((peak / 1024)) MB, $faults page faults, Go heap after the last collection ${live:-?} MB"
+  done
+done
 
 echo "== 2. the same file as a job (SQLite store)"
 port=$(python3 -c 'import socket; s=socket.socket(); s.bind(("127.0.0.1",0)); print(s.getsockname()[1]); s.close()')
