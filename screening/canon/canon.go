@@ -123,16 +123,16 @@ func (g *subgraph) refine(col []int) []int {
 		buf = buf[:0]
 		for i := 0; i < n; i++ {
 			off[i] = len(buf)
-			buf = strconv.AppendInt(buf, int64(cur[i]), 10)
+			buf = appendSmallInt(buf, cur[i])
 			buf = append(buf, '|')
 			// the neighbour pieces, then sorted in byte order
 			parts, pOff, pOrder = parts[:0], pOff[:0], pOrder[:0]
 			for k, j := range g.nbr[i] {
 				pOff = append(pOff, len(parts))
 				pOrder = append(pOrder, k)
-				parts = strconv.AppendInt(parts, int64(cur[j]), 10)
+				parts = appendSmallInt(parts, cur[j])
 				parts = append(parts, '/')
-				parts = strconv.AppendInt(parts, int64(g.ord[i][k]), 10)
+				parts = appendSmallInt(parts, g.ord[i][k])
 			}
 			pOff = append(pOff, len(parts))
 			piece := func(k int) []byte { return parts[pOff[k]:pOff[k+1]] }
