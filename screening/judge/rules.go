@@ -215,7 +215,8 @@ func ruleTransCyclooctene(in ruleInput, out []Reason) []Reason {
 		Detail: "trans olefin in a medium ring: large extra strain, very fast living ring opening"})
 }
 
-// strainReasons turn the thermodynamics into favor/penalize reasons with the numbers.
+// strainReasons appends the reason that turns the estimate's ΔH_p into a favor, note or penalty,
+// with the number, to out.
 func strainReasons(d *describe.Descriptors, e thermo.Estimate, out []Reason) []Reason {
 	dh := e.DHkJmol
 	if e.Measured != nil {
