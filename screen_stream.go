@@ -245,40 +245,28 @@ func writeJSON(buf *bytes.Buffer, v any) {
 
 // writeCompact writes the ranked compact rows.
 func writeCompact(out io.Writer, format string, rows []compactRow, sp *rowSpool, extraCols []string) error {
-	var scratch []byte
-	text := func(r *compactRow) ([]byte, error) { return sp.bytes(r.off, int(r.n), &scratch) }
 	switch format {
 	case "csv":
 		bw := bufioWriter(out)
 		bw.Write(batch.AppendCSVRecord(nil, batch.CSVHeader(extraCols)))
-		rank := 0
-		for i := range rows {
-			r := &rows[i]
-			rank++
-			if !r.keep {
-				continue
-			}
-			t, err := text(r)
-			if err != nil {
-				return err
-			}
+		if err := eachKeptRow(rows, sp, func(rank int, t []byte) {
 			bw.WriteString(strconv.Itoa(rank))
 			bw.Write(t[1:]) // the record after its "0"
+		}); err != nil {
+			return err
 		}
 		return bw.Flush()
 	case "jsonl":
 		bw := bufioWriter(out)
-		rank := 0
-		for i := range rows {
-			r := &rows[i]
-			rank++
-			if !r.keep {
-				continue
-			}
-			t, err := text(r)
-			if err != nil {
-				return err
-			}
+		// the extra columns as a map writes them: keys sorted, each key encoded once
+		byName := make([]int, len(extraCols))
+		keys := make([][]byte, len(extraCols))
+		for k, c := range extraCols {
+			byName[k] = k
+			keys[k], _ = json.Marshal(c)
+		}
+		sort.Slice(byName, func(i, j int) bool { return extraCols[byName[i]] < extraCols[byName[j]] })
+		if err := eachKeptRow(rows, sp, func(rank int, t []byte) {
 			pre, post, _ := bytes.Cut(t, []byte{0})
 			bw.WriteByte('{')
 			a, rest, _ := bytes.Cut(pre, []byte{1})
@@ -290,20 +278,16 @@ func writeCompact(out io.Writer, format string, rows []compactRow, sp *rowSpool,
 				if len(vals) > 0 {
 					parts = bytes.Split(bytes.TrimSuffix(vals, []byte{2}), []byte{2})
 				}
-				// a map is written with its keys sorted
-				idx := make([]int, 0, len(extraCols))
-				for k := range extraCols {
-					if k < len(parts) {
-						idx = append(idx, k)
+				n := 0
+				for _, k := range byName {
+					if k >= len(parts) {
+						continue
 					}
-				}
-				sort.Slice(idx, func(i, j int) bool { return extraCols[idx[i]] < extraCols[idx[j]] })
-				for n, k := range idx {
 					if n > 0 {
 						bw.WriteByte(',')
 					}
-					kb, _ := json.Marshal(extraCols[k])
-					bw.Write(kb)
+					n++
+					bw.Write(keys[k])
 					bw.WriteByte(':')
 					bw.Write(parts[k])
 				}
@@ -314,23 +298,15 @@ func writeCompact(out io.Writer, format string, rows []compactRow, sp *rowSpool,
 			bw.WriteString(strconv.Itoa(rank))
 			bw.Write(post)
 			bw.WriteString("}\n")
+		}); err != nil {
+			return err
 		}
 		return bw.Flush()
 	default:
 		tw := tabwriter.NewWriter(out, 2, 4, 2, ' ', 0)
 		fmt.Fprintln(tw, "RANK\tID\tVERDICT\tSCORE\tΔH_p kJ/mol\tT_c K\tX_eq\tMAIN REASONS")
-		rank := 0
-		for i := range rows {
-			r := &rows[i]
-			rank++
-			if !r.keep {
-				continue
-			}
-			t, err := text(r)
-			if err != nil {
-				return err
-			}
-			fmt.Fprintf(tw, "%d\t%s\n", rank, t)
+		if err := eachKeptRow(rows, sp, func(rank int, t []byte) { fmt.Fprintf(tw, "%d\t%s\n", rank, t) }); err != nil {
+			return err
 		}
 		if err := tw.Flush(); err != nil {
 			return err
@@ -338,4 +314,22 @@ func writeCompact(out io.Writer, format string, rows []compactRow, sp *rowSpool,
 		_, err := fmt.Fprintln(out, "* extrapolated: far outside any measured ceiling temperature (200–500 K)")
 		return err
 	}
+}
+
+// eachKeptRow calls fn with the rank and the rendered text of every ranked row the output
+// filter keeps (a dropped row still takes its rank), reading the text back from the spool.
+func eachKeptRow(rows []compactRow, sp *rowSpool, fn func(rank int, text []byte)) error {
+	var scratch []byte
+	for i := range rows {
+		r := &rows[i]
+		if !r.keep {
+			continue
+		}
+		t, err := sp.bytes(r.off, int(r.n), &scratch)
+		if err != nil {
+			return err
+		}
+		fn(i+1, t)
+	}
+	return nil
 }
