@@ -1,6 +1,9 @@
 package screening_test
 
 import (
+	"os"
+
+	"ringsieve/screening/batch"
 	"ringsieve/screening/describe"
 	"ringsieve/screening/units"
 	"testing"
@@ -55,6 +58,49 @@ func BenchmarkScreenSMILESCold(b *testing.B) {
 		if _, err := ScreenSMILES(c[i%len(c)], cond); err != nil {
 			b.Fatal(err)
 		}
+	}
+}
+
+// BenchmarkScreenFreshProcess is what a process that has screened nothing yet pays for the
+// demo lab's candidate list (testdata/demo, 15 common monomers: norbornenes, imides and
+// anhydrides, cyclooctene, dicyclopentadiene, an oxanorbornene ether), every cache emptied
+// before each pass: with the shipped seeds (thermo/seeds.go) and without them. ns/op is one
+// pass; ns/structure divides by the list's length.
+func BenchmarkScreenFreshProcess(b *testing.B) {
+	f, err := os.Open(reftest.Path(b, "demo/membrane_candidates.csv"))
+	if err != nil {
+		b.Fatal(err)
+	}
+	defer f.Close()
+	in, err := batch.ReadInput(f, batch.FormatCSV, "", 0)
+	if err != nil || len(in.Items) == 0 {
+		b.Fatalf("demo file: %v", err)
+	}
+	cond := DefaultConditions()
+	cond.ThermoMethod = units.ThermoTable
+	thermo.Table()
+	for _, seeded := range []bool{true, false} {
+		name := "seeds"
+		if !seeded {
+			name = "no_seeds"
+		}
+		b.Run(name, func(b *testing.B) {
+			thermo.UseSeeds(seeded)
+			defer thermo.UseSeeds(true)
+			b.ReportAllocs()
+			for i := 0; i < b.N; i++ {
+				b.StopTimer()
+				canon.ResetCache()
+				thermo.ResetCache()
+				b.StartTimer()
+				for _, it := range in.Items {
+					if _, err := ScreenSMILES(it.SMILES, cond); err != nil {
+						b.Fatal(err)
+					}
+				}
+			}
+			b.ReportMetric(float64(b.Elapsed().Nanoseconds())/float64(b.N*len(in.Items)), "ns/structure")
+		})
 	}
 }
 

@@ -3,6 +3,7 @@ package canon
 import (
 	"sort"
 	"strconv"
+	"sync/atomic"
 
 	"ringsieve/screening/internal/memo"
 	"ringsieve/screening/mol"
@@ -12,10 +13,12 @@ import (
 // WrittenSignature describes the subgraph of atoms (sorted, as in the molecule) exactly as
 // written: element, aromaticity, charge, whether a boron, nitrogen or phosphorus atom has three
 // connections (bonds and hydrogens: what decides a pyrrole-type nitrogen when the subgraph is
-// perceived on its own), and the bonds among them with local numbers and orders, less skip.
+// perceived on its own), and the bonds among them with local numbers and orders, less skip,
+// listed by local numbers (so the order the bonds were written in does not matter).
 // Two molecules with the same signature have the same subgraph, so anything computed from the
 // subgraph alone can be cached under it. It is not canonical (another atom order gives another
-// signature), which only costs a cache miss.
+// signature), which only costs a cache miss; values cached under it must therefore be computed
+// from the subgraph as numbered by the atoms' order (see thermo's extract).
 func WrittenSignature(m *mol.Molecule, r *rings.Rings, atoms []int, skip int, extra string) string {
 	// built on the stack when it fits (the common case); only the string is allocated
 	var stack [512]byte
@@ -53,21 +56,30 @@ func WrittenSignature(m *mol.Molecule, r *rings.Rings, atoms []int, skip int, ex
 		sb = append(sb, ',')
 	}
 	sb = append(sb, '|')
+	// each atom's bonds to later atoms, by the later atom's local number: the signature depends
+	// on the atoms' order alone, not on the order the bonds were written in
+	var later [8]laterBond
 	for i, a := range atoms {
+		ls := later[:0]
 		for _, bi := range m.Neighbors(a) {
 			if bi == skip {
 				continue
 			}
-			j, ok := local(m.Other(bi, a))
-			if !ok || j < i {
-				continue
+			if j, ok := local(m.Other(bi, a)); ok && j > i {
+				ls = append(ls, laterBond{j, bi})
 			}
-			b := &m.Bonds[bi]
+		}
+		for x := 1; x < len(ls); x++ { // insertion sort: an atom has a handful of bonds
+			for y := x; y > 0 && ls[y].j < ls[y-1].j; y-- {
+				ls[y], ls[y-1] = ls[y-1], ls[y]
+			}
+		}
+		for _, l := range ls {
 			sb = appendSmallInt(sb, i)
 			sb = append(sb, '-')
-			sb = appendSmallInt(sb, j)
-			sb = append(sb, byte('0'+b.Order))
-			if r.AromaticBond[bi] {
+			sb = appendSmallInt(sb, l.j)
+			sb = append(sb, byte('0'+m.Bonds[l.bond].Order))
+			if r.AromaticBond[l.bond] {
 				sb = append(sb, 'a')
 			}
 			sb = append(sb, ' ')
@@ -76,6 +88,9 @@ func WrittenSignature(m *mol.Molecule, r *rings.Rings, atoms []int, skip int, ex
 	sb = append(sb, extra...)
 	return string(sb)
 }
+
+// laterBond is a bond of WrittenSignature's current atom to the atom of local number j.
+type laterBond struct{ j, bond int }
 
 // appendSmallInt appends v in decimal as strconv.AppendInt does, without its call for the
 // numbers below 100 that atomic numbers and local atom numbers mostly are.
@@ -106,7 +121,29 @@ func KeyForSignature(sig string, m *mol.Molecule, r *rings.Rings, atoms []int, s
 	if k, ok := keyMemo.Get(sig); ok {
 		return k
 	}
-	k := SkeletonKey(m, r, atoms, skip)
+	k, ok := "", false
+	if seed := keySeed.Load(); seed != nil && skip < 0 {
+		k, ok = (*seed)(sig)
+	}
+	if !ok {
+		k = SkeletonKey(m, r, atoms, skip)
+	}
 	keyMemo.Put(sig, k)
 	return k
+}
+
+// keySeed looks up keys shipped with the program by signature (SetKeySeed).
+var keySeed atomic.Pointer[func(sig string) (string, bool)]
+
+// SetKeySeed installs f, consulted when the skeleton-key cache misses before a key is computed:
+// it returns the key of the subgraph a signature (without suffix, no skipped bond) describes,
+// when it knows one. The screening's thermodynamics package installs the keys of the ring
+// systems it ships estimates for (thermo/seeds.go); f must return only canonical keys as
+// SkeletonKey computes them. nil removes it.
+func SetKeySeed(f func(sig string) (string, bool)) {
+	if f == nil {
+		keySeed.Store(nil)
+		return
+	}
+	keySeed.Store(&f)
 }

@@ -1,6 +1,8 @@
 package canon_test
 
 import (
+	"errors"
+	"slices"
 	"testing"
 
 	"ringsieve/screening/canon"
@@ -120,6 +122,27 @@ func TestWrittenSignatureHoldsWhatSubgraphsDependOn(t *testing.T) {
 	}
 }
 
+// TestWrittenSignatureBondOrder checks that the signature depends on the atoms' order alone: the
+// same molecule with its bonds listed in reverse (as another writing's ring closures would list
+// them) signs alike, and the bonds come out by local number.
+func TestWrittenSignatureBondOrder(t *testing.T) {
+	for _, s := range []string{"C1=CC2CC1C2", "O=C1N(C)C(=O)C2C3C=CC(C3)C12", "C1=CC2CC1c1ccccc12", "C12C3C4C1C5C2C3C45"} {
+		m, r, all := perceived(t, s)
+		want := canon.WrittenSignature(m, r, all, -1, "")
+		rev := &mol.Molecule{Atoms: m.Atoms, Bonds: slices.Clone(m.Bonds)}
+		slices.Reverse(rev.Bonds)
+		rev.Index()
+		rr := rings.Perceive(rev)
+		if got := canon.WrittenSignature(rev, rr, all, -1, ""); got != want {
+			t.Errorf("%s: bonds reversed sign %q, want %q", s, got, want)
+		}
+	}
+	m, r, all := perceived(t, "C12CCC1CC2") // the layout: each atom's bonds to later atoms, ascending
+	if got, want := canon.WrittenSignature(m, r, all, -1, ""), "6,6,6,6,6,6,|0-11 0-31 0-51 1-21 2-31 3-41 4-51 "; got != want {
+		t.Errorf("bicyclo[2.2.0]hexane-type: %q, want %q", got, want)
+	}
+}
+
 // TestWrittenSignatureText pins the signature's layout (atoms, then bonds with local numbers and
 // orders) and checks that a molecule too large for the sparse local index (over 256 atoms) gives
 // the same signature for the same subgraph.
@@ -144,4 +167,77 @@ func TestWrittenSignatureText(t *testing.T) {
 			t.Errorf("atoms %v: %q (%d atoms) and %q (%d atoms)", atoms, a, len(ms.Atoms), b, len(ml.Atoms))
 		}
 	}
+}
+
+// TestSignatureIndex: a signature is matched to the indexed writing it renumbers, with the
+// renumbering (checked atom by atom and bond by bond), a suffix is handed back, and graphs that
+// differ in a label, a bond order or a bond are not matched.
+func TestSignatureIndex(t *testing.T) {
+	norbornene := "C1=CC2CCC1C2"
+	m0, r0, all0 := perceived(t, norbornene)
+	x, err := canon.NewSignatureIndex([]string{
+		canon.WrittenSignature(m0, r0, all0, -1, ""),
+		func() string { m, r, a := perceived(t, "C1=CCCC1"); return canon.WrittenSignature(m, r, a, -1, "") }(),
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	for _, s := range []string{"C1CC2C=CC1C2", "C2CC1CC2C=C1", "C1(C2)CCC2C=C1"} { // norbornene written otherwise
+		m, r, all := perceived(t, s)
+		sig := canon.WrittenSignature(m, r, all, -1, "|open 1-2")
+		e, perm, suffix, ok := x.Match(sig)
+		if !ok || e != 0 || suffix != "|open 1-2" {
+			t.Fatalf("%s: entry %d, suffix %q, ok %v", s, e, suffix, ok)
+		}
+		for i := range m.Atoms {
+			if m.Atoms[i].Z != m0.Atoms[perm[i]].Z || m.Degree(i) != m0.Degree(perm[i]) {
+				t.Errorf("%s: atom %d mapped to %d of a different kind", s, i, perm[i])
+			}
+		}
+		for _, b := range m.Bonds {
+			b0 := m0.BondBetween(perm[b.A], perm[b.B])
+			if b0 < 0 || m0.Bonds[b0].Order != b.Order {
+				t.Errorf("%s: bond %d-%d has no image of its order", s, b.A, b.B)
+			}
+		}
+	}
+	for _, s := range []string{"C1CC2CCC1C2", "C1=CC2CCC1O2", "C1=CCCCC1", "C1=CC2CCC2C1"} {
+		m, r, all := perceived(t, s)
+		if e, _, _, ok := x.Match(canon.WrittenSignature(m, r, all, -1, "")); ok {
+			t.Errorf("%s matched entry %d", s, e)
+		}
+	}
+	if _, err := canon.NewSignatureIndex([]string{"not a signature"}); !errors.Is(err, canon.ErrSignature) {
+		t.Errorf("a malformed entry: %v", err)
+	}
+	if _, _, _, ok := x.Match("6,6|0-9 "); ok {
+		t.Error("a malformed signature matched")
+	}
+}
+
+// FuzzSignatureMatch: any string given to Match gives an answer or none, never a panic, and a
+// match's renumbering is a permutation.
+func FuzzSignatureMatch(f *testing.F) {
+	m, r, all := perceived(&testing.T{}, "O=C1NC(=O)C2C3C=CC(C3)C12")
+	sig := canon.WrittenSignature(m, r, all, -1, "")
+	x, err := canon.NewSignatureIndex([]string{sig, "6,6,|0-12 "})
+	if err != nil {
+		f.Fatal(err)
+	}
+	for _, s := range []string{sig, sig + "|open 3-4|false", "6,6,|0-12 ", "6,6,|1-02 ", "|", ",|", "6,|0-0", "6,6,|0-1 "} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, s string) {
+		_, perm, _, ok := x.Match(s)
+		if !ok {
+			return
+		}
+		seen := map[int]bool{}
+		for _, p := range perm {
+			if p < 0 || p >= len(perm) || seen[p] {
+				t.Fatalf("%q: renumbering %v is not a permutation", s, perm)
+			}
+			seen[p] = true
+		}
+	})
 }

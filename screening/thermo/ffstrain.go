@@ -354,6 +354,7 @@ func coreParent(s *describe.Structure, o *describe.Olefin) (*mol.Molecule, int, 
 		}
 		p.Bonds = append(p.Bonds, mol.Bond{A: x, B: y, Order: order})
 	}
+	sortLocalBonds(p.Bonds) // the parent is cached by the core's written signature
 	p.Index()
 	p.AssignImplicitHydrogens()
 	pb := p.BondBetween(idx[o.A], idx[o.B])

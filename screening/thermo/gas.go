@@ -2,8 +2,10 @@ package thermo
 
 import (
 	"bytes"
+	"cmp"
 	"fmt"
 	"math"
+	"slices"
 	"sort"
 	"strconv"
 	"strings"
@@ -24,6 +26,7 @@ func ResetCache() {
 	gasMemo.Reset()
 	analogueMemo.Reset()
 	parentMemo.Reset()
+	parentNameMemo.Reset()
 }
 
 // systemKey is the canonical key of a ring system given as atoms of m (bonds among them, less
@@ -70,8 +73,25 @@ func extract(m *mol.Molecule, atoms []int, skip int) (*mol.Molecule, *rings.Ring
 			sub.Bonds = append(sub.Bonds, nb)
 		}
 	}
+	sortLocalBonds(sub.Bonds)
 	sub.Index()
 	return sub, rings.Perceive(sub)
+}
+
+// sortLocalBonds puts the bonds of a copied subgraph in the order of their atoms' local numbers
+// (lower end, then higher end), so that the copy, its ring perception and everything computed
+// from it depend on the atoms' order alone — what canon.WrittenSignature, the key of the caches
+// holding those values, describes.
+func sortLocalBonds(bonds []mol.Bond) {
+	lo := func(b mol.Bond) (int, int) { return min(b.A, b.B), max(b.A, b.B) }
+	slices.SortFunc(bonds, func(x, y mol.Bond) int {
+		x0, x1 := lo(x)
+		y0, y1 := lo(y)
+		if x0 != y0 {
+			return cmp.Compare(x0, y0)
+		}
+		return cmp.Compare(x1, y1)
+	})
 }
 
 // heavyNbrsIn counts the non-hydrogen neighbours of a that are in idx.
@@ -331,15 +351,23 @@ func (t *ringTable) gasEstimate(m *mol.Molecule, r *rings.Rings, systemAtoms []i
 
 // gasEstimateSig is gasEstimate with the system's written signature already computed.
 func (t *ringTable) gasEstimateSig(m *mol.Molecule, systemAtoms []int, bi int, trans bool, base string) GasEstimate {
-	// systemAtoms is sorted: the olefin is named by its atoms' local positions
-	la, lb := sort.SearchInts(systemAtoms, m.Bonds[bi].A), sort.SearchInts(systemAtoms, m.Bonds[bi].B)
-	sig := base + "|open " + strconv.Itoa(la) + "-" + strconv.Itoa(lb) + "|" + strconv.FormatBool(trans)
+	sig := gasKey(m, systemAtoms, bi, trans, base)
 	if g, ok := gasMemo.Get(sig); ok {
 		return g
 	}
-	g := t.gasEstimateUncached(m, systemAtoms, bi, trans)
+	g, ok := t.seededGas(sig)
+	if !ok {
+		g = t.gasEstimateUncached(m, systemAtoms, bi, trans)
+	}
 	gasMemo.Put(sig, g)
 	return g
+}
+
+// gasKey is the gas-estimate cache key: the system's written signature, the opened bond named by
+// its atoms' local positions (systemAtoms is sorted) and the trans flag.
+func gasKey(m *mol.Molecule, systemAtoms []int, bi int, trans bool, base string) string {
+	la, lb := sort.SearchInts(systemAtoms, m.Bonds[bi].A), sort.SearchInts(systemAtoms, m.Bonds[bi].B)
+	return base + "|open " + strconv.Itoa(la) + "-" + strconv.Itoa(lb) + "|" + strconv.FormatBool(trans)
 }
 
 func (t *ringTable) gasEstimateUncached(m *mol.Molecule, systemAtoms []int, bi int, trans bool) GasEstimate {
@@ -355,6 +383,11 @@ func (t *ringTable) gasEstimateUncached(m *mol.Molecule, systemAtoms []int, bi i
 	before := len(mono)
 	mono, surv = cancelTerms(mono, surv)
 	g.Spectate = before - len(mono)
+	// terms by name, so that neither the sums nor the path's text depend on the order ring
+	// perception found the rings in (which follows how the structure was written)
+	byName := func(a, b strainTerm) int { return cmp.Or(cmp.Compare(a.Name, b.Name), cmp.Compare(a.Key, b.Key)) }
+	slices.SortStableFunc(mono, byName)
+	slices.SortStableFunc(surv, byName)
 	g.AllHits = true
 	var uh2, us2 float64
 	for _, x := range mono {

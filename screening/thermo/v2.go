@@ -237,7 +237,14 @@ func EstimateFor(ctx context.Context, s *describe.Structure, o *describe.Olefin,
 	excl := exclusionKey(s)
 	tab := estimateTable(s, o, excl)
 	tab.Method = MethodTable
-	pi := parentOf(s, o)
+	// the table tier needs the parent's name alone (cheaper, and shipped for common skeletons)
+	var pi parentInfo
+	if method == units.ThermoTable {
+		pn := parentNameOf(s, o)
+		pi.name, pi.err = pn.name, pn.err
+	} else {
+		pi = parentOf(s, o)
+	}
 	if pi.err != nil {
 		tab.Class = "other"
 		return tab
@@ -259,6 +266,9 @@ func EstimateFor(ctx context.Context, s *describe.Structure, o *describe.Olefin,
 	}
 	if cal.SigmaS > 0 {
 		tab.US = math.Hypot(tab.US, cal.SigmaS)
+	}
+	if method == units.ThermoTable {
+		return tab
 	}
 	// bare: the structure is its all-carbon parent itself (no substituent, fused ring or
 	// heteroatom; stereo, if written, the parent's)
@@ -408,35 +418,70 @@ func (p parentInfo) allCarbon(s *describe.Structure, o *describe.Olefin) bool {
 // outside one core share its parent.
 var parentMemo = memo.New[parentInfo](20000)
 
-func parentOf(s *describe.Structure, o *describe.Olefin) parentInfo {
+// parentKey is the cache key of o's parent: the written signature of its core and the olefin's
+// place in it.
+func parentKey(s *describe.Structure, o *describe.Olefin) string {
 	ca, cb := sort.SearchInts(o.CoreAtoms, o.A), sort.SearchInts(o.CoreAtoms, o.B)
 	place := "|olefin " + strconv.Itoa(ca) + "-" + strconv.Itoa(cb)
-	var key string
 	if slices.Equal(o.CoreAtoms, o.SystemAtoms) && o.Signature != "" {
-		key = o.Signature + place // the core is the whole ring system, already signed
-	} else {
-		key = canon.WrittenSignature(s.Mol, s.Rings, o.CoreAtoms, -1, place)
+		return o.Signature + place // the core is the whole ring system, already signed
 	}
-	return parentMemo.Do(key, func() parentInfo {
-		var pi parentInfo
-		parent, pbond, pname, err := coreParent(s, o)
-		if err != nil {
-			pi.err = err
-		} else if ps, err := describe.DescribeMolecule(parent, ""); err != nil || len(ps.Olefins) == 0 {
-			pi.err = fmt.Errorf("parent: %v", err)
-		} else {
-			for _, x := range ps.Olefins {
-				if x.Bond == pbond {
-					pi.o = x
-				}
-			}
-			pi.s, pi.name = ps, pname
-			if pi.o == nil {
-				pi.err = fmt.Errorf("parent olefin not found")
+	return canon.WrittenSignature(s.Mol, s.Rings, o.CoreAtoms, -1, place)
+}
+
+// parentName is the part of parentInfo the table tier uses.
+type parentName struct {
+	name string
+	err  error
+}
+
+// parentNameMemo caches parent names by parentKey (20,000 entries, a design choice).
+var parentNameMemo = memo.New[parentName](20000)
+
+// parentNameOf is parentOf's name and error: from the cache, else from the shipped seeds
+// (seeds.go), else from parentOf.
+func parentNameOf(s *describe.Structure, o *describe.Olefin) parentName {
+	key := parentKey(s, o)
+	if v, ok := parentNameMemo.Get(key); ok {
+		return v
+	}
+	v, ok := seededParent(key)
+	if !ok {
+		pi := parentOfKey(key, s, o)
+		v = parentName{pi.name, pi.err}
+	}
+	parentNameMemo.Put(key, v)
+	return v
+}
+
+func parentOf(s *describe.Structure, o *describe.Olefin) parentInfo {
+	return parentOfKey(parentKey(s, o), s, o)
+}
+
+func parentOfKey(key string, s *describe.Structure, o *describe.Olefin) parentInfo {
+	return parentMemo.Do(key, func() parentInfo { return computeParent(s, o) })
+}
+
+// computeParent builds o's parent core (all-carbon, the olefin kept) and describes it.
+func computeParent(s *describe.Structure, o *describe.Olefin) parentInfo {
+	var pi parentInfo
+	parent, pbond, pname, err := coreParent(s, o)
+	if err != nil {
+		pi.err = err
+	} else if ps, err := describe.DescribeMolecule(parent, ""); err != nil || len(ps.Olefins) == 0 {
+		pi.err = fmt.Errorf("parent: %v", err)
+	} else {
+		for _, x := range ps.Olefins {
+			if x.Bond == pbond {
+				pi.o = x
 			}
 		}
-		return pi
-	})
+		pi.s, pi.name = ps, pname
+		if pi.o == nil {
+			pi.err = fmt.Errorf("parent olefin not found")
+		}
+	}
+	return pi
 }
 
 // exclusionKey is the constitution key of s when s could be one of the structures whose
