@@ -335,6 +335,25 @@ func subMolecule(m *mol.Molecule, atoms []int, keepStereo bool) (*mol.Molecule, 
 // hydrogens implicit and no stereo beyond the ring olefin's cis geometry. It returns the parent,
 // its olefin bond and its name (the strain-table row when there is one, else its key).
 func coreParent(s *describe.Structure, o *describe.Olefin) (*mol.Molecule, int, string, error) {
+	p, pb, err := coreParentMolecule(s, o)
+	if err != nil {
+		return nil, 0, "", err
+	}
+	return p, pb, parentNameFor(p), nil
+}
+
+// parentNameFor is the table's name for the parent core p, else its structure key (computed
+// only then).
+func parentNameFor(p *mol.Molecule) string {
+	if row, ok := Table().byKey[canon.SkeletonKey(p, rings.Perceive(p), seq(len(p.Atoms)), -1)]; ok {
+		return row.Name
+	}
+	return structureKey(p)
+}
+
+// coreParentMolecule builds the all-carbon parent of o's core (see coreParent) and returns it
+// with the olefin's bond in it.
+func coreParentMolecule(s *describe.Structure, o *describe.Olefin) (*mol.Molecule, int, error) {
 	m := s.Mol
 	p := &mol.Molecule{}
 	idx := map[int]int{}
@@ -359,13 +378,9 @@ func coreParent(s *describe.Structure, o *describe.Olefin) (*mol.Molecule, int, 
 	p.AssignImplicitHydrogens()
 	pb := p.BondBetween(idx[o.A], idx[o.B])
 	if pb < 0 {
-		return nil, 0, "", fmt.Errorf("olefin not in its core: %w", ErrFFNotApplicable)
+		return nil, 0, fmt.Errorf("olefin not in its core: %w", ErrFFNotApplicable)
 	}
-	// the table's name for the core, else its structure key (computed only then)
-	if row, ok := Table().byKey[canon.SkeletonKey(p, rings.Perceive(p), seq(len(p.Atoms)), -1)]; ok {
-		return p, pb, row.Name, nil
-	}
-	return p, pb, structureKey(p), nil
+	return p, pb, nil
 }
 
 // structureKey is the canonical constitution key of m, followed by its stereo as written when it

@@ -27,6 +27,8 @@ func ResetCache() {
 	analogueMemo.Reset()
 	parentMemo.Reset()
 	parentNameMemo.Reset()
+	parentGraphMemo.Reset()
+	systemKeyMemo.Reset()
 }
 
 // systemKey is the canonical key of a ring system given as atoms of m (bonds among them, less
@@ -127,7 +129,7 @@ func (t *ringTable) ringSystemsTerms(sub *mol.Molecule, p *rings.Rings, trans bo
 	var terms []strainTerm
 	for _, sys := range systems {
 		atoms := rings.Atoms(p.SSSR, sys)
-		key := t.lookupKey(sub, atoms, trans && len(sys) == 1)
+		key := t.lookupKey(sub, p, atoms, trans && len(sys) == 1)
 		if row, ok := t.byKey[key]; ok {
 			terms = append(terms, strainTerm{Key: key, Name: row.Name, H: row.RSCH, S: row.RSCS, UH: row.UH, US: row.US, Hit: true, Row: row})
 			continue
@@ -143,7 +145,7 @@ func (t *ringTable) ringSystemsTerms(sub *mol.Molecule, p *rings.Rings, trans bo
 				done[c] = true
 			}
 			catoms := rings.Atoms(p.SSSR, core)
-			ckey := t.lookupKey(sub, catoms, trans && containsBoth(catoms, olA, olB))
+			ckey := t.lookupKey(sub, p, catoms, trans && containsBoth(catoms, olA, olB))
 			if row, ok := t.byKey[ckey]; ok {
 				terms = append(terms, strainTerm{Key: ckey, Name: row.Name, H: row.RSCH, S: row.RSCS, UH: row.UH, US: row.US, Hit: true, Row: row})
 				continue
@@ -154,14 +156,27 @@ func (t *ringTable) ringSystemsTerms(sub *mol.Molecule, p *rings.Rings, trans bo
 	return terms
 }
 
-// lookupKey is systemKey for a table look-up: a system larger than every table row gets a
-// plain size label instead of its canonical key, which no row could match anyway.
-func (t *ringTable) lookupKey(sub *mol.Molecule, atoms []int, trans bool) string {
+// lookupKey is systemKey for a table look-up (p: the rings perceived on sub): a system larger
+// than every table row gets a plain size label instead of its canonical key, which no row could
+// match anyway. Keys are cached under the subgraph's written signature (systemKeyMemo).
+func (t *ringTable) lookupKey(sub *mol.Molecule, p *rings.Rings, atoms []int, trans bool) string {
 	if len(atoms) > t.maxAtoms {
 		return fmt.Sprintf("ring system of %d atoms", len(atoms))
 	}
-	return systemKey(sub, atoms, -1, trans)
+	extra := "|system"
+	if trans {
+		extra = "|system E"
+	}
+	return systemKeyMemo.Do(canon.WrittenSignature(sub, p, atoms, -1, extra), func() string {
+		return systemKey(sub, atoms, -1, trans)
+	})
 }
+
+// systemKeyMemo caches the keys of ring systems and cores looked up in the table by what
+// determines them: the written signature of the subgraph (extracted and perceived on its own
+// by systemKey) and the trans marker (5,000 entries, a design choice: the parts of ring
+// systems repeat across structures more than the systems do).
+var systemKeyMemo = memo.New[string](5000)
 
 // fallback estimates a core the table lacks. First choice: the all-carbon analogue of the whole
 // core (heteroatoms replaced by carbon, bond orders kept) when the table has it, e.g. a

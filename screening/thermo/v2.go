@@ -462,13 +462,45 @@ func parentOfKey(key string, s *describe.Structure, o *describe.Olefin) parentIn
 	return parentMemo.Do(key, func() parentInfo { return computeParent(s, o) })
 }
 
-// computeParent builds o's parent core (all-carbon, the olefin kept) and describes it.
+// computeParent builds o's parent core (all-carbon, the olefin kept) and describes it; parents
+// are cached by their own graph (parentGraphMemo), which many cores share.
 func computeParent(s *describe.Structure, o *describe.Olefin) parentInfo {
-	var pi parentInfo
-	parent, pbond, pname, err := coreParent(s, o)
+	parent, pbond, err := coreParentMolecule(s, o)
 	if err != nil {
-		pi.err = err
-	} else if ps, err := describe.DescribeMolecule(parent, ""); err != nil || len(ps.Olefins) == 0 {
+		return parentInfo{err: err}
+	}
+	return parentGraphMemo.Do(parentGraphKey(parent, pbond), func() parentInfo {
+		return describeParent(parent, pbond)
+	})
+}
+
+// parentGraphMemo caches described parents by parentGraphKey (5,000 entries, a design choice).
+var parentGraphMemo = memo.New[parentInfo](5000)
+
+// parentGraphKey names an all-carbon parent built by coreParentMolecule: its atom count, its
+// bonds (listed by local number, sortLocalBonds) with their orders, and the olefin's bond —
+// everything the parent, its description and its name depend on (its atoms are plain carbons
+// with implicit hydrogens).
+func parentGraphKey(p *mol.Molecule, pbond int) string {
+	b := make([]byte, 0, 8+6*len(p.Bonds))
+	b = strconv.AppendInt(b, int64(len(p.Atoms)), 10)
+	b = append(b, '|')
+	for _, bd := range p.Bonds {
+		b = strconv.AppendInt(b, int64(bd.A), 10)
+		b = append(b, '-')
+		b = strconv.AppendInt(b, int64(bd.B), 10)
+		b = append(b, byte('0'+bd.Order), ' ')
+	}
+	b = append(b, '|')
+	b = strconv.AppendInt(b, int64(pbond), 10)
+	return string(b)
+}
+
+// describeParent describes parent and finds its olefin (bond pbond).
+func describeParent(parent *mol.Molecule, pbond int) parentInfo {
+	var pi parentInfo
+	pname := parentNameFor(parent)
+	if ps, err := describe.DescribeMolecule(parent, ""); err != nil || len(ps.Olefins) == 0 {
 		pi.err = fmt.Errorf("parent: %v", err)
 	} else {
 		for _, x := range ps.Olefins {
