@@ -1,6 +1,8 @@
 package screening_test
 
 import (
+	"bytes"
+	"encoding/json"
 	"errors"
 	"fmt"
 	"reflect"
@@ -9,7 +11,10 @@ import (
 	"testing"
 
 	. "ringsieve/screening"
+	"ringsieve/screening/canon"
 	"ringsieve/screening/describe"
+	"ringsieve/screening/thermo"
+	"ringsieve/screening/units"
 )
 
 func TestDescriptorsFromStructure(t *testing.T) {
@@ -224,6 +229,50 @@ func TestWorkBound(t *testing.T) {
 		}
 		if tc.tooComplex && (err == nil || !strings.Contains(err.Error(), "limit per structure is 500")) {
 			t.Errorf("%s: error %v should name the numbers", tc.name, err)
+		}
+	}
+}
+
+// TestCachesDoNotChangeResults: what a structure gets from caches filled by other structures
+// (and from the shipped seeds) equals what it gets computed from scratch — every cache and seed
+// keyed by all its value depends on. A sample of the corpus is screened in order with the caches
+// growing, then each again with every cache emptied and the seeds off.
+func TestCachesDoNotChangeResults(t *testing.T) {
+	c := loadCorpus(t)
+	cond := DefaultConditions()
+	cond.ThermoMethod = units.ThermoTable
+	step := 7
+	if testing.Short() {
+		step = 40
+	}
+	var sample []string
+	for i := 0; i < len(c); i += step {
+		sample = append(sample, c[i])
+	}
+	canon.ResetCache()
+	thermo.ResetCache()
+	warm := make([][]byte, len(sample))
+	for i, s := range sample {
+		r, err := ScreenSMILES(s, cond)
+		if err != nil {
+			continue
+		}
+		warm[i], _ = json.Marshal(r)
+	}
+	thermo.UseSeeds(false)
+	defer thermo.UseSeeds(true)
+	for i, s := range sample {
+		if warm[i] == nil {
+			continue
+		}
+		canon.ResetCache()
+		thermo.ResetCache()
+		r, err := ScreenSMILES(s, cond)
+		if err != nil {
+			t.Fatalf("%s: %v from scratch, a result with caches", s, err)
+		}
+		if cold, _ := json.Marshal(r); !bytes.Equal(cold, warm[i]) {
+			t.Errorf("%s: the result with caches differs from the one computed from scratch", s)
 		}
 	}
 }
