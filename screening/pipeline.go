@@ -235,17 +235,27 @@ func ScreenStructureContext(ctx context.Context, s *Structure, c Conditions) (Re
 		r.Reasons[0].Detail += s.WhyNoOlefin()
 		return r, nil
 	}
-	cands := rankOlefins(ctx, s, &base, c)
-	best := cands[0].r
-	best.Descriptors.RingOlefins = len(cands)
+	var first olefinCand // the olefin that opens
+	var cands []olefinCand
+	if len(s.Olefins) == 1 {
+		// the common case, without the candidates' slice (each holds a whole result)
+		meas, measNote := thermo.MeasuredFor(s)
+		first = judgeOlefin(ctx, s, s.Olefins[0], &base, c, meas, measNote, meas != nil)
+		cands = []olefinCand{}
+	} else {
+		cands = rankOlefins(ctx, s, &base, c)
+		first, cands = cands[0], cands[1:]
+	}
+	best := first.r
+	best.Descriptors.RingOlefins = 1 + len(cands)
 	// equivalent olefins (same ring, substitution, core and estimate) are listed once, counted
 	same := func(a, b olefinCand) bool {
 		return a.o.Desc.RingSize == b.o.Desc.RingSize && a.o.Desc.OlefinSubstitution == b.o.Desc.OlefinSubstitution &&
 			a.o.Desc.CoreKey == b.o.Desc.CoreKey && a.r.Verdict == b.r.Verdict && math.Abs(a.e.DHkJmol-b.e.DHkJmol) < 0.01
 	}
 	equivalentToBest := 0
-	for _, x := range cands[1:] {
-		if same(x, cands[0]) {
+	for _, x := range cands {
+		if same(x, first) {
 			equivalentToBest++
 			continue
 		}
@@ -271,7 +281,7 @@ func ScreenStructureContext(ctx context.Context, s *Structure, c Conditions) (Re
 		best.Descriptors.EquivalentRingOlefins = equivalentToBest
 	}
 	best.Descriptors.RingOlefins += s.Skipped
-	if n := len(cands) + s.Skipped; n > 1 {
+	if n := 1 + len(cands) + s.Skipped; n > 1 {
 		det := fmt.Sprintf("%d ring olefins: screened on the most reactive; the others can react later (cross-linking, e.g. the cyclopentene ring of dicyclopentadiene)", n)
 		if s.Skipped > 0 {
 			det += fmt.Sprintf("; %d were not analysed (more than %d ring olefins)", s.Skipped, describe.MaxOlefinsAnalysed)
@@ -286,6 +296,18 @@ func ScreenStructureContext(ctx context.Context, s *Structure, c Conditions) (Re
 			Detail: "salt: screened the largest organic component; other components: " + strings.Join(s.CounterIons, "; ")})
 	}
 	return best, nil
+}
+
+// judgeOlefin estimates and judges ring olefin o of s (base: the molecule's descriptors);
+// measured marks the olefin the measurement meas (with its note) belongs to.
+func judgeOlefin(ctx context.Context, s *Structure, o *describe.Olefin, base *Descriptors, c Conditions, meas *thermo.Measurement, measNote string, measured bool) olefinCand {
+	e := thermo.EstimateFor(ctx, s, o, c.ThermoMethod)
+	if measured {
+		e.Measured, e.MeasuredNote = meas, measNote
+	}
+	d := o.Desc
+	d.MergeMolecule(base)
+	return olefinCand{o, judge.Judge(&d, &e, c), e}
 }
 
 // olefinCand is one ring olefin of a structure with its estimate and verdict.
@@ -305,14 +327,7 @@ func rankOlefins(ctx context.Context, s *Structure, base *Descriptors, c Conditi
 		measOlefin = thermo.MeasuredOlefin(s)
 	}
 	for _, o := range s.Olefins {
-		e := thermo.EstimateFor(ctx, s, o, c.ThermoMethod)
-		if o == measOlefin {
-			e.Measured, e.MeasuredNote = meas, measNote
-		}
-		d := o.Desc
-		d.MergeMolecule(base)
-		r := judge.Judge(&d, &e, c)
-		cands = append(cands, olefinCand{o, r, e})
+		cands = append(cands, judgeOlefin(ctx, s, o, base, c, meas, measNote, o == measOlefin))
 	}
 	// by index: the candidates hold whole results, too large to copy per comparison
 	if len(cands) > 1 {
