@@ -5,6 +5,7 @@ import (
 	"slices"
 	"strconv"
 	"strings"
+	"sync"
 )
 
 // Signature matching: a written signature (WrittenSignature) spells out a labelled graph — atom
@@ -76,29 +77,67 @@ func parseSignature(sig string) (g sigGraph, rest string, err error) {
 	return g, bonds, nil
 }
 
-// SignatureIndex finds indexed signatures that a given signature is a renumbering of.
+// SignatureIndex finds indexed signatures that a given signature is a renumbering of. Entries
+// are parsed when a signature of their shape is first looked up, so building an index from
+// shapes computed ahead (SignatureShape) costs almost nothing.
 type SignatureIndex struct {
-	graphs  []sigGraph
+	sigs    []string
 	byShape map[string][]int
+	once    []sync.Once
+	graphs  []sigGraph
+	bad     []bool // an entry that did not parse (never matches)
+}
+
+// SignatureShape is the shape a SignatureIndex files sig under (its sorted atom and bond labels;
+// equal for renumberings of one graph). Errors: ErrSignature.
+func SignatureShape(sig string) (string, error) {
+	g, rest, err := parseSignature(sig)
+	if err != nil || rest != "" {
+		return "", ErrSignature
+	}
+	return g.shape, nil
 }
 
 // NewSignatureIndex indexes sigs (signatures without suffix). Errors: a string that is not a
 // signature (ErrSignature, with its position in sigs).
 func NewSignatureIndex(sigs []string) (*SignatureIndex, error) {
-	x := &SignatureIndex{byShape: map[string][]int{}}
+	shapes := make([]string, len(sigs))
 	for i, s := range sigs {
-		g, rest, err := parseSignature(s)
-		if err != nil || rest != "" {
+		sh, err := SignatureShape(s)
+		if err != nil {
 			return nil, errors.Join(ErrSignature, errors.New("entry "+strconv.Itoa(i)+": "+strconv.Quote(s)))
 		}
-		x.byShape[g.shape] = append(x.byShape[g.shape], len(x.graphs))
-		x.graphs = append(x.graphs, g)
+		shapes[i] = sh
 	}
-	return x, nil
+	return NewShapedSignatureIndex(sigs, shapes), nil
+}
+
+// NewShapedSignatureIndex indexes sigs under shapes computed ahead (SignatureShape of each; an
+// entry whose signature does not parse to its shape never matches).
+func NewShapedSignatureIndex(sigs, shapes []string) *SignatureIndex {
+	x := &SignatureIndex{sigs: sigs, byShape: make(map[string][]int, len(sigs)),
+		once: make([]sync.Once, len(sigs)), graphs: make([]sigGraph, len(sigs)), bad: make([]bool, len(sigs))}
+	for i := range sigs {
+		x.byShape[shapes[i]] = append(x.byShape[shapes[i]], i)
+	}
+	return x
 }
 
 // Len is the number of indexed signatures.
-func (x *SignatureIndex) Len() int { return len(x.graphs) }
+func (x *SignatureIndex) Len() int { return len(x.sigs) }
+
+// graph returns entry e parsed (once; safe for concurrent use), nil when it does not parse to
+// the shape it was filed under.
+func (x *SignatureIndex) graph(e int, shape string) *sigGraph {
+	x.once[e].Do(func() {
+		g, rest, err := parseSignature(x.sigs[e])
+		x.graphs[e], x.bad[e] = g, err != nil || rest != "" || g.shape != shape
+	})
+	if x.bad[e] {
+		return nil
+	}
+	return &x.graphs[e]
+}
 
 // Match parses sig (a signature, possibly with a suffix) and looks for an indexed signature
 // with the same labelled graph. It returns the entry's position, perm (perm[i] is the entry's
@@ -113,8 +152,10 @@ func (x *SignatureIndex) Match(sig string) (entry int, perm []int, suffix string
 		return 0, nil, "", false
 	}
 	for _, e := range x.byShape[g.shape] {
-		if p := isomorphism(&g, &x.graphs[e]); p != nil {
-			return e, p, rest, true
+		if h := x.graph(e, g.shape); h != nil {
+			if p := isomorphism(&g, h); p != nil {
+				return e, p, rest, true
+			}
 		}
 	}
 	return 0, nil, "", false

@@ -1,7 +1,6 @@
 package thermo
 
 import (
-	"encoding/json"
 	"errors"
 	"strconv"
 	"strings"
@@ -16,66 +15,56 @@ import (
 // the caches are keyed by written signatures, which depend on how a structure was written; the
 // first structure of each skeleton and writing would pay for a canonical key (colour
 // refinement), a gas-phase ring estimate (two extracted copies, their ring perception and keys)
-// and the parent's name. data/seeds.json holds, for one writing of each such ring system (and
-// each olefin core of it), the skeleton key, the gas-phase estimate for opening each of its ring
+// and the parent's name. seeds_gen.go holds, for one writing of each such ring system (and each
+// olefin core of it), the skeleton key, the gas-phase estimate for opening each of its ring
 // olefins and the parent name of each; a signature met at run time is matched to the shipped one
-// it renumbers (canon.SignatureIndex) and the values are read through the renumbering. Layout
-// (our own, JSON):
+// it renumbers (canon.SignatureIndex) and the values are read through the renumbering. The data
+// are Go source, laid out by the linker: a process pays nothing to load them but the inputs
+// check and the index's map (the JSON file this began as took 0.4 ms to decode, more than a
+// first structure saves).
 //
-//	{"inputs": SHA-256 of the CSV files (as data/precomputed.tsv),
-//	 "systems": [{"name", "signature", "key",
-//	              "gas": [{"open": [a, b], "trans", "dh", "ds", "uh", "us", "all_hits", "terms",
-//	                       "survive", "row", "spectate", "path"}],
-//	              "parents": [{"olefin": [a, b], "name", "error"}]}]}
-//
-// Local numbers are the signature's; a pair is written lower number first. A file computed from
-// other CSV files is ignored. TestSeedsFresh regenerates the file (-update rewrites it) and checks
-// that every SMILES writing of every seeded structure — each order of its ring atoms a writing can
-// give, all of them or an even sample — gets from the seeds exactly what is computed.
-const seedsFile = "data/seeds.json"
+// Local numbers are the signature's; a pair is written lower number first. seedInputs is the
+// SHA-256 of the CSV files (as data/precomputed.tsv records it); seeds computed from other CSV
+// files are ignored. TestSeedsFresh regenerates seeds_gen.go (-update rewrites it) and checks
+// that every SMILES writing of every seeded structure — each order of its ring atoms a writing
+// can give, all of them or an even sample — gets from the seeds exactly what is computed.
+const seedsGenFile = "seeds_gen.go"
 
-type seedFile struct {
-	Inputs  string       `json:"inputs"`
-	Systems []seedSystem `json:"systems"`
-}
-
+// seedSystem is one shipped ring system (or core): a writing's signature, its shape
+// (canon.SignatureShape), skeleton key, gas-phase estimates and parents.
 type seedSystem struct {
-	Name      string       `json:"name"`
-	Signature string       `json:"signature"`
-	Key       string       `json:"key"`
-	Gas       []seedGas    `json:"gas,omitempty"`
-	Parents   []seedParent `json:"parents,omitempty"`
+	Name, Signature, Shape, Key string
+	Gas                         []seedGas
+	Parents                     []seedParent
 }
 
+// seedGas is the gas-phase estimate for opening the olefin between local atoms Open.
 type seedGas struct {
-	Open     [2]int   `json:"open"`
-	Trans    bool     `json:"trans"`
-	DH       float64  `json:"dh"`
-	DS       float64  `json:"ds"`
-	UH       float64  `json:"uh"`
-	US       float64  `json:"us"`
-	AllHits  bool     `json:"all_hits"`
-	Terms    []string `json:"terms"`
-	Survive  []string `json:"survive"`
-	Row      string   `json:"row,omitempty"` // the whole-system row's key
-	Spectate int      `json:"spectate"`
-	Path     string   `json:"path"`
+	Open           [2]int
+	Trans          bool
+	DH, DS, UH, US float64
+	AllHits        bool
+	Terms, Survive []string
+	Row            string // the whole-system row's key ("" for none)
+	Spectate       int
+	Path           string
 }
 
+// seedParent is the parent name of the olefin between local atoms Olefin (Error: why there is
+// none).
 type seedParent struct {
-	Olefin [2]int `json:"olefin"`
-	Name   string `json:"name"`
-	Error  string `json:"error,omitempty"`
+	Olefin      [2]int
+	Name, Error string
 }
 
-// seedSet is the loaded file with its signature index (empty when the file is not usable).
+// seedSet is the shipped systems with their signature index (empty when not usable).
 type seedSet struct {
 	index   *canon.SignatureIndex
 	systems []seedSystem
 }
 
 var (
-	seeds    = sync.OnceValue(loadSeeds)
+	seeds    = sync.OnceValue(func() *seedSet { return newSeedSet(seedInputs, seedSystems) })
 	seedsOff atomic.Bool
 )
 
@@ -85,42 +74,31 @@ func UseSeeds(on bool) { seedsOff.Store(!on) }
 
 func init() { canon.SetKeySeed(seededKey) }
 
-func loadSeeds() *seedSet {
-	b, err := dataFS.ReadFile(seedsFile)
-	if err != nil {
-		return &seedSet{}
-	}
-	s, err := parseSeeds(b)
-	if err != nil {
-		return &seedSet{}
-	}
-	return s
-}
-
-// errSeedInputs reports a seeds file computed from other CSV files.
+// errSeedInputs reports seeds computed from other table files.
 var errSeedInputs = errors.New("seeds computed from other table files")
 
-func parseSeeds(b []byte) (*seedSet, error) {
-	var f seedFile
-	if err := json.Unmarshal(b, &f); err != nil {
-		return nil, err
+// newSeedSet indexes systems computed from the CSV files of hash inputs; an empty set when the
+// embedded CSV files differ.
+func newSeedSet(inputs string, systems []seedSystem) *seedSet {
+	if err := checkSeedInputs(inputs); err != nil {
+		return &seedSet{}
 	}
+	sigs, shapes := make([]string, len(systems)), make([]string, len(systems))
+	for i, s := range systems {
+		sigs[i], shapes[i] = s.Signature, s.Shape
+	}
+	return &seedSet{index: canon.NewShapedSignatureIndex(sigs, shapes), systems: systems}
+}
+
+func checkSeedInputs(inputs string) error {
 	want, err := inputsHash()
 	if err != nil {
-		return nil, err
+		return err
 	}
-	if f.Inputs != want {
-		return nil, errSeedInputs
+	if inputs != want {
+		return errSeedInputs
 	}
-	sigs := make([]string, len(f.Systems))
-	for i, s := range f.Systems {
-		sigs[i] = s.Signature
-	}
-	x, err := canon.NewSignatureIndex(sigs)
-	if err != nil {
-		return nil, err
-	}
-	return &seedSet{index: x, systems: f.Systems}, nil
+	return nil
 }
 
 // match finds the shipped system sig renumbers: the system, the renumbering and sig's suffix.

@@ -36,7 +36,7 @@ import (
 // offsets δH, δS the mean residuals over the measured values in data/condensed_fit.csv (their
 // sources are on each row); fitOffsets recomputes them and the tests check the result.
 
-//go:embed data/ring_table.csv data/condensed_fit.csv data/measured.csv data/ff_measured.csv data/precomputed.tsv data/seeds.json
+//go:embed data/ring_table.csv data/condensed_fit.csv data/measured.csv data/ff_measured.csv data/precomputed.tsv
 var dataFS embed.FS
 
 // RingRow is one row of the ring-system strain table.
