@@ -213,6 +213,23 @@ func TestSignatureIndex(t *testing.T) {
 	if _, _, _, ok := x.Match("6,6|0-9 "); ok {
 		t.Error("a malformed signature matched")
 	}
+	// entries filed under a shape computed ahead: one filed under the wrong shape, or one that
+	// does not parse, never matches
+	sig0 := canon.WrittenSignature(m0, r0, all0, -1, "")
+	shape, err := canon.SignatureShape(sig0)
+	if err != nil {
+		t.Fatal(err)
+	}
+	if _, _, _, ok := canon.NewShapedSignatureIndex([]string{sig0}, []string{shape}).Match(sig0); !ok {
+		t.Error("a shaped entry does not match its own signature")
+	}
+	mc, rc, ac := perceived(t, "C1=CCCC1")
+	if _, _, _, ok := canon.NewShapedSignatureIndex([]string{canon.WrittenSignature(mc, rc, ac, -1, "")}, []string{shape}).Match(sig0); ok {
+		t.Error("an entry filed under another graph's shape matched")
+	}
+	if _, _, _, ok := canon.NewShapedSignatureIndex([]string{"garbage"}, []string{shape}).Match(sig0); ok {
+		t.Error("an entry that does not parse matched")
+	}
 }
 
 // FuzzSignatureMatch: any string given to Match gives an answer or none, never a panic, and a
