@@ -205,7 +205,9 @@ func ScreenMolfileContext(ctx context.Context, text string, c Conditions) (Resul
 }
 
 // ScreenStructure screens a described structure: every ring olefin is judged and the most
-// reactive one is reported, the others listed in descriptors.other_ring_olefins.
+// reactive one is reported, the others listed in descriptors.other_ring_olefins. It merges the
+// molecule's descriptors into each olefin's (s.Olefins[i].Desc), so s must not be screened by
+// two goroutines at once.
 func ScreenStructure(s *Structure, c Conditions) (Result, error) {
 	return ScreenStructureContext(context.Background(), s, c)
 }
@@ -305,9 +307,10 @@ func judgeOlefin(ctx context.Context, s *Structure, o *describe.Olefin, base *De
 	if measured {
 		e.Measured, e.MeasuredNote = meas, measNote
 	}
-	d := o.Desc
-	d.MergeMolecule(base)
-	return olefinCand{o, judge.Judge(&d, &e, c), e}
+	// the molecule's descriptors are merged into the olefin's own (they are the same for every
+	// olefin of s, so merging again changes nothing): no copy to allocate
+	o.Desc.MergeMolecule(base)
+	return olefinCand{o, judge.Judge(&o.Desc, &e, c), e}
 }
 
 // olefinCand is one ring olefin of a structure with its estimate and verdict.
