@@ -11,6 +11,7 @@ import (
 	"sort"
 	"strconv"
 	"strings"
+	"sync"
 	"testing"
 
 	"ringsieve/screening/canon"
@@ -423,4 +424,23 @@ func permuted(m *mol.Molecule, first []int) *mol.Molecule {
 	}
 	p.Index()
 	return p
+}
+
+// TestSeedsConcurrentMatch: a fresh index answered from several goroutines at once (its entries
+// are parsed on first use) finds every shipped system under its own signature; run with -race.
+func TestSeedsConcurrentMatch(t *testing.T) {
+	s := newSeedSet(seedInputs, seedSystems)
+	var wg sync.WaitGroup
+	for g := 0; g < 8; g++ {
+		wg.Add(1)
+		go func() {
+			defer wg.Done()
+			for i, sys := range seedSystems {
+				if got, _, _, ok := s.match(sys.Signature); !ok || got != &s.systems[i] {
+					t.Errorf("%s: not found under its own signature", sys.Name)
+				}
+			}
+		}()
+	}
+	wg.Wait()
 }
