@@ -97,8 +97,11 @@ func (p *precomputed) fit(f FitRow) (fitValues, bool) {
 	return v, ok
 }
 
-// inputsHash is the SHA-256 (hex) of the CSV files the precomputed values come from.
-func inputsHash() (string, error) {
+// inputsHash is the SHA-256 (hex) of the CSV files the precomputed values and the seeds come
+// from, computed once per process (the files are embedded).
+var inputsHash = sync.OnceValues(computeInputsHash)
+
+func computeInputsHash() (string, error) {
 	h := sha256.New()
 	for _, name := range []string{"data/ring_table.csv", "data/condensed_fit.csv", "data/measured.csv", "data/ff_measured.csv"} {
 		b, err := dataFS.ReadFile(name)
