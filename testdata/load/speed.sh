@@ -8,7 +8,8 @@
 #      ringsieve's fast tier against RDKit parsing, ring perception, aromaticity, formula and
 #      substructure counts (testdata/load/rdkit_reference_screen.py);
 #      the same for its first 10,000 lines (where cold caches weigh more), a cold start
-#      (one structure, whole process), and the memory of 10,000 and 100,000 in CSV and JSON Lines;
+#      (one structure, whole process), the memory of 10,000 and 100,000 in CSV and JSON Lines,
+#      and (when valgrind is installed) instructions per structure for one, 10,000 and 30,000;
 #   2. the 100,000 as a job: upload, screen and store, CSV and JSON Lines downloads; then the job
 #      and the offline screen alternately, three rounds, in wall and CPU time;
 #   3. POST /v1/screen against GET /healthz on one server (wrk, 2 threads, 16 connections, three
@@ -59,6 +60,27 @@ for f in 10k 100k; do
     echo "$f $fmt: peak resident $((peak / 1024)) MB, $faults page faults, Go heap after the last collection ${live:-?} MB"
   done
 done
+
+echo "== 1e. instructions per structure (callgrind, one core; skipped without valgrind)"
+# counts repeat to a few tenths of a per cent where wall time swings by a fifth (DEVELOPERS.md:
+# "Small changes on a noisy machine"); a run that dies of SIGILL in runtime.cputicks under
+# valgrind is retried
+if command -v valgrind >/dev/null; then
+  head -30000 "$work/100k.smi" > "$work/30k.smi"
+  echo "C1=CC2CC1C(C(=O)OC)C2 one" > "$work/one.smi"
+  for f in one 10k 30k; do
+    n=$(wc -l < "$work/$f.smi")
+    for _ in 1 2 3; do
+      GODEBUG=asyncpreemptoff=1 GOMAXPROCS=1 valgrind --tool=callgrind --callgrind-out-file="$work/cg.out" \
+        "$work/ringsieve" screen --thermo-method table --format csv "$work/$f.smi" >/dev/null 2>"$work/cg.err" && break
+    done
+    ir=$(grep -o 'I *refs: *[0-9,]*' "$work/cg.err" | tr -dc '0-9')
+    python3 -c "import sys; ir, n, f = int(sys.argv[1] or 0), int(sys.argv[2]), sys.argv[3]; print(f'{f}: {n} lines, {ir/1e6:,.1f} million instructions, {ir/n:,.0f} per line (whole process)')" "$ir" "$n" "$f"
+  done
+  rm -f "$work/cg.out"
+else
+  echo "valgrind not installed: skipped"
+fi
 
 echo "== 2. the same file as a job (SQLite store)"
 port=$(python3 -c 'import socket; s=socket.socket(); s.bind(("127.0.0.1",0)); print(s.getsockname()[1]); s.close()')
