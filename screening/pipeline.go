@@ -237,17 +237,7 @@ func ScreenStructureContext(ctx context.Context, s *Structure, c Conditions) (Re
 		r.Reasons[0].Detail += s.WhyNoOlefin()
 		return r, nil
 	}
-	var first olefinCand // the olefin that opens
-	var cands []olefinCand
-	if len(s.Olefins) == 1 {
-		// the common case, without the candidates' slice (each holds a whole result)
-		meas, measNote := thermo.MeasuredFor(s)
-		first = judgeOlefin(ctx, s, s.Olefins[0], &base, c, meas, measNote, meas != nil)
-		cands = []olefinCand{}
-	} else {
-		cands = rankOlefins(ctx, s, &base, c)
-		first, cands = cands[0], cands[1:]
-	}
+	first, cands := rankOlefins(ctx, s, &base, c) // the olefin that opens, then the others
 	best := first.r
 	best.Descriptors.RingOlefins = 1 + len(cands)
 	// equivalent olefins (same ring, substitution, core and estimate) are listed once, counted
@@ -321,22 +311,25 @@ type olefinCand struct {
 }
 
 // rankOlefins judges every analysed ring olefin of s (base: the molecule's descriptors) and
-// returns them most reactive first: the first is the one that opens.
-func rankOlefins(ctx context.Context, s *Structure, base *Descriptors, c Conditions) []olefinCand {
-	cands := make([]olefinCand, 0, len(s.Olefins))
+// returns the most reactive, which opens, and the others in order. A structure with one ring
+// olefin (the common case) needs no candidates' slice (each candidate holds a whole result).
+func rankOlefins(ctx context.Context, s *Structure, base *Descriptors, c Conditions) (olefinCand, []olefinCand) {
 	meas, measNote := thermo.MeasuredFor(s)
 	var measOlefin *describe.Olefin
 	if meas != nil {
 		measOlefin = thermo.MeasuredOlefin(s)
 	}
+	if len(s.Olefins) == 1 {
+		o := s.Olefins[0]
+		return judgeOlefin(ctx, s, o, base, c, meas, measNote, o == measOlefin), nil
+	}
+	cands := make([]olefinCand, 0, len(s.Olefins))
 	for _, o := range s.Olefins {
 		cands = append(cands, judgeOlefin(ctx, s, o, base, c, meas, measNote, o == measOlefin))
 	}
 	// by index: the candidates hold whole results, too large to copy per comparison
-	if len(cands) > 1 {
-		sort.SliceStable(cands, func(i, j int) bool { return judge.MoreReactive(&cands[i].r, &cands[j].r) })
-	}
-	return cands
+	sort.SliceStable(cands, func(i, j int) bool { return judge.MoreReactive(&cands[i].r, &cands[j].r) })
+	return cands[0], cands[1:]
 }
 
 // Drawing is a 2-D depiction of a structure and the bond of the ring olefin that opens (−1 when
@@ -359,7 +352,8 @@ func Depict(text string) (*Drawing, error) {
 		c := DefaultConditions()
 		c.ThermoMethod = units.ThermoTable
 		base := s.MoleculeDescriptors()
-		d.OpeningBond = rankOlefins(context.Background(), s, &base, c)[0].o.Bond
+		first, _ := rankOlefins(context.Background(), s, &base, c)
+		d.OpeningBond = first.o.Bond
 	}
 	return d, nil
 }

@@ -139,11 +139,5 @@ var keySeed atomic.Pointer[func(sig string) (string, bool)]
 // it returns the key of the subgraph a signature (without suffix, no skipped bond) describes,
 // when it knows one. The screening's thermodynamics package installs the keys of the ring
 // systems it ships estimates for (thermo/seeds.go); f must return only canonical keys as
-// SkeletonKey computes them. nil removes it.
-func SetKeySeed(f func(sig string) (string, bool)) {
-	if f == nil {
-		keySeed.Store(nil)
-		return
-	}
-	keySeed.Store(&f)
-}
+// SkeletonKey computes them.
+func SetKeySeed(f func(sig string) (string, bool)) { keySeed.Store(&f) }

@@ -85,14 +85,8 @@ func extract(m *mol.Molecule, atoms []int, skip int) (*mol.Molecule, *rings.Ring
 // from it depend on the atoms' order alone — what canon.WrittenSignature, the key of the caches
 // holding those values, describes.
 func sortLocalBonds(bonds []mol.Bond) {
-	lo := func(b mol.Bond) (int, int) { return min(b.A, b.B), max(b.A, b.B) }
 	slices.SortFunc(bonds, func(x, y mol.Bond) int {
-		x0, x1 := lo(x)
-		y0, y1 := lo(y)
-		if x0 != y0 {
-			return cmp.Compare(x0, y0)
-		}
-		return cmp.Compare(x1, y1)
+		return cmp.Or(cmp.Compare(min(x.A, x.B), min(y.A, y.B)), cmp.Compare(max(x.A, x.B), max(y.A, y.B)))
 	})
 }
 

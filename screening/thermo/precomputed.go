@@ -6,6 +6,7 @@ import (
 	"crypto/sha256"
 	"encoding/hex"
 	"encoding/json"
+	"errors"
 	"fmt"
 	"sort"
 	"strconv"
@@ -101,6 +102,22 @@ func (p *precomputed) fit(f FitRow) (fitValues, bool) {
 // from, computed once per process (the files are embedded).
 var inputsHash = sync.OnceValues(computeInputsHash)
 
+// errOtherInputs reports precomputed values or seeds computed from other CSV files.
+var errOtherInputs = errors.New("computed from other table files")
+
+// checkInputs compares a recorded inputs hash with the embedded CSV files' (errOtherInputs when
+// they differ).
+func checkInputs(recorded string) error {
+	want, err := inputsHash()
+	if err != nil {
+		return err
+	}
+	if recorded != want {
+		return errOtherInputs
+	}
+	return nil
+}
+
 func computeInputsHash() (string, error) {
 	h := sha256.New()
 	for _, name := range []string{"data/ring_table.csv", "data/condensed_fit.csv", "data/measured.csv", "data/ff_measured.csv"} {
@@ -131,10 +148,6 @@ func readPrecomputed() *precomputed {
 // parsePrecomputed reads the layout described above. Errors: a malformed record, or an inputs
 // hash other than the embedded CSV files'.
 func parsePrecomputed(b []byte) (*precomputed, error) {
-	want, err := inputsHash()
-	if err != nil {
-		return nil, err
-	}
 	p := &precomputed{rows: map[string]rowKeys{}, fits: map[string]fitValues{}, measures: map[string]measuredKeys{}}
 	sc := bufio.NewScanner(bytes.NewReader(b))
 	sc.Buffer(make([]byte, 0, 64*1024), 1<<20)
@@ -148,8 +161,8 @@ func parsePrecomputed(b []byte) (*precomputed, error) {
 		bad := fmt.Errorf("%s line %d: malformed %q record", precomputedFile, n, f[0])
 		switch {
 		case f[0] == "inputs" && len(f) == 2:
-			if f[1] != want {
-				return nil, fmt.Errorf("%s: computed from other inputs", precomputedFile)
+			if err := checkInputs(f[1]); err != nil {
+				return nil, fmt.Errorf("%s: %w", precomputedFile, err)
 			}
 			inputsOK = true
 		case f[0] == "row" && len(f) == 8:

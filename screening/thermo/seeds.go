@@ -28,7 +28,6 @@ import (
 // files are ignored. TestSeedsFresh regenerates seeds_gen.go (-update rewrites it) and checks
 // that every SMILES writing of every seeded structure — each order of its ring atoms a writing
 // can give, all of them or an even sample — gets from the seeds exactly what is computed.
-const seedsGenFile = "seeds_gen.go"
 
 // seedSystem is one shipped ring system (or core): a writing's signature, its shape
 // (canon.SignatureShape), skeleton key, gas-phase estimates and parents.
@@ -74,13 +73,10 @@ func UseSeeds(on bool) { seedsOff.Store(!on) }
 
 func init() { canon.SetKeySeed(seededKey) }
 
-// errSeedInputs reports seeds computed from other table files.
-var errSeedInputs = errors.New("seeds computed from other table files")
-
 // newSeedSet indexes systems computed from the CSV files of hash inputs; an empty set when the
-// embedded CSV files differ.
+// embedded CSV files differ (checkInputs).
 func newSeedSet(inputs string, systems []seedSystem) *seedSet {
-	if err := checkSeedInputs(inputs); err != nil {
+	if checkInputs(inputs) != nil {
 		return &seedSet{}
 	}
 	sigs, shapes := make([]string, len(systems)), make([]string, len(systems))
@@ -88,17 +84,6 @@ func newSeedSet(inputs string, systems []seedSystem) *seedSet {
 		sigs[i], shapes[i] = s.Signature, s.Shape
 	}
 	return &seedSet{index: canon.NewShapedSignatureIndex(sigs, shapes), systems: systems}
-}
-
-func checkSeedInputs(inputs string) error {
-	want, err := inputsHash()
-	if err != nil {
-		return err
-	}
-	if inputs != want {
-		return errSeedInputs
-	}
-	return nil
 }
 
 // match finds the shipped system sig renumbers: the system, the renumbering and sig's suffix.

@@ -20,6 +20,9 @@ import (
 	"ringsieve/screening/smiles"
 )
 
+// seedsGenFile is the generated file TestSeedsFresh checks and rewrites.
+const seedsGenFile = "seeds_gen.go"
+
 var seedWritings = flag.Int("seedwritings", 100, "writings checked per seeded structure by TestSeedsFresh (0: every one)")
 
 // seedDerivatives are ring systems of common ROMP monomers that the table holds only as parts
@@ -291,7 +294,7 @@ func checkSeededWriting(t *testing.T, tab *ringTable, name string, m *mol.Molecu
 // TestSeedsIgnoredWhenInputsDiffer: seeds computed from other table files are not used; turned
 // off, no seed is read.
 func TestSeedsIgnoredWhenInputsDiffer(t *testing.T) {
-	if err := checkSeedInputs(seedInputs); err != nil {
+	if err := checkInputs(seedInputs); err != nil {
 		t.Fatalf("the shipped seeds: %v", err)
 	}
 	if x := newSeedSet(strings.Repeat("0", 64), seedSystems); x.index != nil {
