@@ -1,9 +1,6 @@
 package screening_test
 
 import (
-	"os"
-
-	"ringsieve/screening/batch"
 	"ringsieve/screening/describe"
 	"ringsieve/screening/units"
 	"testing"
@@ -67,15 +64,7 @@ func BenchmarkScreenSMILESCold(b *testing.B) {
 // before each pass: with the shipped seeds (thermo/seeds.go) and without them. ns/op is one
 // pass; ns/structure divides by the list's length.
 func BenchmarkScreenFreshProcess(b *testing.B) {
-	f, err := os.Open(reftest.Path(b, "demo/membrane_candidates.csv"))
-	if err != nil {
-		b.Fatal(err)
-	}
-	defer f.Close()
-	in, err := batch.ReadInput(f, batch.FormatCSV, "", 0)
-	if err != nil || len(in.Items) == 0 {
-		b.Fatalf("demo file: %v", err)
-	}
+	in := demoInput(b)
 	cond := DefaultConditions()
 	cond.ThermoMethod = units.ThermoTable
 	thermo.Table()

@@ -14,19 +14,26 @@ import (
 
 var update = flag.Bool("update", false, "rewrite golden files under testdata/golden")
 
+// demoInput reads the demo lab's candidate list (testdata/demo/membrane_candidates.csv).
+func demoInput(tb testing.TB) *batch.Input {
+	tb.Helper()
+	f, err := os.Open(reftest.Path(tb, "demo/membrane_candidates.csv"))
+	if err != nil {
+		tb.Fatal(err)
+	}
+	defer f.Close()
+	in, err := batch.ReadInput(f, batch.FormatCSV, "", 0)
+	if err != nil || len(in.Errors) > 0 || len(in.Items) == 0 {
+		tb.Fatalf("demo file: %v %v", err, in.Errors)
+	}
+	return in
+}
+
 // TestGoldenDemoScreen screens the demo list of a fictional membrane lab (testdata/demo) and
 // compares the full results with testdata/golden/demo_screen.json. Run with -update after an
 // intended change and review the diff; the golden file pins behaviour, not published values.
 func TestGoldenDemoScreen(t *testing.T) {
-	f, err := os.Open(reftest.Path(t, "demo/membrane_candidates.csv"))
-	if err != nil {
-		t.Fatal(err)
-	}
-	defer f.Close()
-	in, err := batch.ReadInput(f, batch.FormatCSV, "", 0)
-	if err != nil || len(in.Errors) > 0 {
-		t.Fatalf("demo file: %v %v", err, in.Errors)
-	}
+	in := demoInput(t)
 	type row struct {
 		ID     string `json:"id"`
 		Result Result `json:"result"`
