@@ -70,6 +70,9 @@ func csvNeedsQuotes(s string) bool {
 			return true
 		}
 	}
+	if c := s[0]; c < utf8.RuneSelf { // unicode.IsSpace's ASCII spaces, without decoding a rune
+		return c == ' ' || c >= '\t' && c <= '\r'
+	}
 	r, _ := utf8.DecodeRuneInString(s)
 	return unicode.IsSpace(r)
 }

@@ -6,6 +6,8 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"unicode"
+	"unicode/utf8"
 
 	"ringsieve/screening"
 	"ringsieve/screening/internal/reftest"
@@ -139,3 +141,29 @@ func csvRow(rank int, id string, line int, r *screening.Result, errMsg string, e
 }
 
 func fnum(x float64, prec int) string { return strconv.FormatFloat(x, 'g', prec, 64) }
+
+// TestCSVNeedsQuotesLeadingSpace: the ASCII shortcut for a field's first character decides as
+// encoding/csv's rule does (unicode.IsSpace of the first rune), for every first byte and for
+// the non-ASCII spaces.
+func TestCSVNeedsQuotesLeadingSpace(t *testing.T) {
+	rule := func(s string) bool {
+		if s == "" {
+			return false
+		}
+		if s == `\.` || strings.ContainsAny(s, "\"\r\n,") {
+			return true
+		}
+		r, _ := utf8.DecodeRuneInString(s)
+		return unicode.IsSpace(r)
+	}
+	var fields []string
+	for c := range 256 {
+		fields = append(fields, string([]byte{byte(c)})+"x", string(rune(c))+"x")
+	}
+	fields = append(fields, "\u2003x", "\u3000x", "\u00a0", "\u0085y", "é", "")
+	for _, f := range fields {
+		if got, want := csvNeedsQuotes(f), rule(f); got != want {
+			t.Errorf("csvNeedsQuotes(%q) = %v, encoding/csv's rule says %v", f, got, want)
+		}
+	}
+}

@@ -1,6 +1,7 @@
 package canon
 
 import (
+	"slices"
 	"sort"
 	"strconv"
 	"sync/atomic"
@@ -22,7 +23,18 @@ import (
 func WrittenSignature(m *mol.Molecule, r *rings.Rings, atoms []int, skip int, extra string) string {
 	// built on the stack when it fits (the common case); only the string is allocated
 	var stack [512]byte
-	sb := stack[:0]
+	return string(AppendWrittenSignature(stack[:0], m, r, atoms, skip, extra))
+}
+
+// AppendWrittenSignature appends WrittenSignature to sb: a cache look-up by a signature built
+// in a caller's buffer allocates nothing when it hits (memo.GetBytes).
+func AppendWrittenSignature(sb []byte, m *mol.Molecule, r *rings.Rings, atoms []int, skip int, extra string) []byte {
+	return appendSignature(sb, m, r, atoms, skip, extra, false)
+}
+
+// appendSignature is AppendWrittenSignature; full adds to each atom every label StructureKey
+// reads: its isotope, its hydrogen count (implicit and written) and its bond-order sum.
+func appendSignature(sb []byte, m *mol.Molecule, r *rings.Rings, atoms []int, skip int, extra string, full bool) []byte {
 	// local numbers: a sparse index (loc[a] is a's position in atoms when atoms holds a there)
 	// for molecules of up to 256 atoms, else binary search (atoms is sorted)
 	var locStack [256]uint16
@@ -52,6 +64,18 @@ func WrittenSignature(m *mol.Molecule, r *rings.Rings, atoms []int, skip int, ex
 		}
 		if (at.Z == 5 || at.Z == 7 || at.Z == 15) && m.Degree(a)+at.HCount == 3 {
 			sb = append(sb, 't')
+		}
+		if full {
+			if at.Isotope != 0 {
+				sb = append(sb, 'i')
+				sb = strconv.AppendInt(sb, int64(at.Isotope), 10)
+			}
+			sb = append(sb, 'h')
+			sb = appendSmallInt(sb, at.HCount)
+			sb = append(sb, 'H')
+			sb = appendSmallInt(sb, m.TotalH(a))
+			sb = append(sb, 'v')
+			sb = appendSmallInt(sb, m.BondOrderSum(a))
 		}
 		sb = append(sb, ',')
 	}
@@ -85,8 +109,7 @@ func WrittenSignature(m *mol.Molecule, r *rings.Rings, atoms []int, skip int, ex
 			sb = append(sb, ' ')
 		}
 	}
-	sb = append(sb, extra...)
-	return string(sb)
+	return append(sb, extra...)
 }
 
 // laterBond is a bond of WrittenSignature's current atom to the atom of local number j.
@@ -108,8 +131,32 @@ func appendSmallInt(b []byte, v int) []byte {
 // megabytes).
 var keyMemo = memo.New[string](50000)
 
-// ResetCache empties the skeleton-key cache (benchmarks of a cold start).
-func ResetCache() { keyMemo.Reset() }
+// ResetCache empties the skeleton-key and structure-key caches (benchmarks of a cold start).
+func ResetCache() {
+	keyMemo.Reset()
+	structureMemo.Reset()
+}
+
+// structureMemo caches structure keys by full written signature (20,000 entries: a design
+// choice, a few megabytes).
+var structureMemo = memo.New[string](20000)
+
+// CachedStructureKey is StructureKey cached under the atoms' written signature with every label
+// StructureKey reads (charge, isotope, hydrogen count, bond-order sum): the same signature
+// describes the same labelled graph, whose canonical key is the same.
+func CachedStructureKey(m *mol.Molecule, r *rings.Rings, atoms []int) string {
+	if len(m.Atoms) > 256 && !slices.IsSorted(atoms) {
+		return StructureKey(m, r, atoms) // the signature's binary search needs sorted atoms
+	}
+	var stack [1024]byte
+	sig := appendSignature(stack[:0], m, r, atoms, -1, "|structure", true)
+	if k, ok := structureMemo.GetBytes(sig); ok {
+		return k
+	}
+	k := StructureKey(m, r, atoms)
+	structureMemo.Put(string(sig), k)
+	return k
+}
 
 // CachedSkeletonKey is SkeletonKey with the written-subgraph cache.
 func CachedSkeletonKey(m *mol.Molecule, r *rings.Rings, atoms []int, skip int) string {

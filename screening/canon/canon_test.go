@@ -6,6 +6,7 @@ import (
 	"testing"
 
 	"ringsieve/screening/canon"
+	"ringsieve/screening/internal/reftest"
 	"ringsieve/screening/mol"
 	"ringsieve/screening/rings"
 	"ringsieve/screening/smiles"
@@ -257,4 +258,51 @@ func FuzzSignatureMatch(f *testing.F) {
 			seen[p] = true
 		}
 	})
+}
+
+// TestCachedStructureKey: the cached structure key equals the computed one for structures that
+// share a skeleton and differ only in what StructureKey writes in brackets — charge, isotope,
+// hydrogen count (on the atom or written as hydrogen atoms) — each screened after the others
+// so that a signature that missed a label would hand over another structure's key; then over
+// every tenth corpus structure, twice (computed, then from the cache).
+func TestCachedStructureKey(t *testing.T) {
+	canon.ResetCache()
+	defer canon.ResetCache()
+	family := []string{
+		"C1=CC2CC1C(N)C2",         // amine
+		"C1=CC2CC1C([NH3+])C2",    // its ammonium salt: charge and hydrogens
+		"C1=CC2CC1C([NH2])C2",     // the same written in brackets: the same key
+		"C1=CC2CC1C([NH])C2",      // a nitrogen with a hydrogen missing (radical)
+		"C1=CC2CC1C([15NH2])C2",   // an isotope
+		"C1=CC2CC1C(N([H])[H])C2", // hydrogens written as atoms
+		"C1=CC2CC1[C](N)C2",       // a carbon with its hydrogen missing
+		"C1=CC2CC1[CH2](N)C2",     // a pentavalent-looking carbon written with two hydrogens
+	}
+	check := func(s string) {
+		t.Helper()
+		m, r, all := perceived(t, s)
+		if got, want := canon.CachedStructureKey(m, r, all), canon.StructureKey(m, r, all); got != want {
+			t.Errorf("%s: cached key %q, computed %q", s, got, want)
+		}
+	}
+	for range 2 {
+		for _, s := range family {
+			check(s)
+		}
+	}
+	keys := map[string]string{}
+	for _, s := range family[:2] {
+		m, r, all := perceived(t, s)
+		keys[s] = canon.CachedStructureKey(m, r, all)
+	}
+	if keys[family[0]] == keys[family[1]] {
+		t.Errorf("an amine and its salt share the key %q", keys[family[0]])
+	}
+	for range 2 {
+		for n, e := range reftest.Corpus(t) {
+			if n%10 == 0 {
+				check(e.SMILES)
+			}
+		}
+	}
 }

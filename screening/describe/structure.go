@@ -32,6 +32,13 @@ type Structure struct {
 
 	derivedMu sync.Mutex
 	derived   []derivedValue // see Derived
+
+	// first backing arrays of the lists above and the first olefin analysed, allocated with
+	// the structure (most monomers have one or two ring systems and one ring olefin)
+	olefinArr   [2]*Olefin
+	firstOlefin Olefin
+	sysAtomsArr [2][]int
+	derivedArr  [2]derivedValue
 }
 
 type derivedValue struct{ name, value string }
@@ -126,6 +133,7 @@ func describeMolecule(m *mol.Molecule, p *rings.Rings, text string) (*Structure,
 		rings.PerceiveInto(p, m)
 	}
 	s := &Structure{Mol: m, Rings: p}
+	s.Olefins, s.derived = s.olefinArr[:0], s.derivedArr[:0]
 	s.pickMain(text)
 	s.ringSystem, s.systems = rings.Systems(p.SSSR)
 	s.Groups = FunctionalGroups(m, p, s.Main)
@@ -295,7 +303,11 @@ func (s *Structure) analyse(bi int) *Olefin {
 	m, p := s.Mol, s.Rings
 	g := graph{m, p}
 	b := m.Bonds[bi]
-	o := &Olefin{Bond: bi, A: b.A, B: b.B}
+	o := &s.firstOlefin
+	if len(s.Olefins) > 0 {
+		o = new(Olefin)
+	}
+	*o = Olefin{Bond: bi, A: b.A, B: b.B}
 	// ring system and core
 	var system []int
 	sysIdx := -1
@@ -308,7 +320,11 @@ func (s *Structure) analyse(bi int) *Olefin {
 		}
 	}
 	if s.sysAtoms == nil {
-		s.sysAtoms = make([][]int, len(s.systems))
+		if len(s.systems) <= len(s.sysAtomsArr) {
+			s.sysAtoms = s.sysAtomsArr[:len(s.systems)]
+		} else {
+			s.sysAtoms = make([][]int, len(s.systems))
+		}
 	}
 	if s.sysAtoms[sysIdx] == nil {
 		s.sysAtoms[sysIdx] = rings.Atoms(p.SSSR, system)
@@ -331,7 +347,14 @@ func (s *Structure) analyse(bi int) *Olefin {
 	}
 	o.SmallRing = append([]int(nil), p.SSSR[smallest].Atoms...)
 	n := len(m.Atoms)
-	flags := make([]bool, 5*n) // one allocation for the five atom sets below
+	// the five atom sets below in one array: on the stack for molecules of up to 64 atoms
+	var flagStack [5 * 64]bool
+	var flags []bool
+	if 5*n <= len(flagStack) {
+		flags = flagStack[:5*n]
+	} else {
+		flags = make([]bool, 5*n)
+	}
 	inSystem, inCore, inSmall, allylic, homo := flags[:n], flags[n:2*n], flags[2*n:3*n], flags[3*n:4*n], flags[4*n:]
 	for _, a := range o.SystemAtoms {
 		inSystem[a] = true
@@ -414,7 +437,8 @@ func (s *Structure) analyse(bi int) *Olefin {
 		d.EWGOnOlefinRing = true
 	}
 	// allylic and homoallylic substituents
-	var allylicList, homoList []int
+	var listStack [16]int
+	allylicList, homoList := listStack[:0:8], listStack[8:8:16]
 	for _, end := range []int{o.A, o.B} {
 		for _, x := range m.HeavyNbrs(end) {
 			if x != o.A && x != o.B && inSmall[x] && !allylic[x] {

@@ -90,11 +90,12 @@ const measuredDSUncertainty = 7.5
 // Judge runs the rules and, when there is a ring olefin (e != nil), the thermodynamics at the
 // conditions; it sets verdict, score and cautions.
 func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Result {
+	blk := new(judged)
 	r := Result{
 		Descriptors:           *d,
 		EngineVersion:         EngineVersion,
 		Conditions:            OutOf(c),
-		Reasons:               make([]Reason, 0, 8),
+		Reasons:               blk.reasons[:0],
 		CatalystCompatibility: CompatibilityFor(d.FunctionalGroups),
 	}
 	r.Conditions.MonomerConcMolL = round(float64(c.Conc), 4)
@@ -118,7 +119,8 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 		}
 		basis, source = thermo.BasisMeasured, m.Source
 	}
-	th := thermo.Evaluate(dh, ds, c.Temp, c.Conc)
+	blk.th = thermo.Evaluate(dh, ds, c.Temp, c.Conc)
+	th := &blk.th
 	th.DHUncertaintyKJmol = round(uh, 2)
 	th.DSUncertaintyJmolK = round(us, 2)
 	uG := math.Hypot(uh, float64(c.Temp)*us/1000)
@@ -127,14 +129,13 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 	th.Source = source
 	th.ParentRingSystem, th.UnsubstitutedParent = e.Parent, e.Bare
 	if d.MolWeightGmol > 0 && dh < 0 {
-		q := -dh * 1000 / d.MolWeightGmol
-		q = round(q, 1)
-		th.HeatReleasedJG = &q
+		th.HeatReleasedJG = blk.value(round(-dh*1000/d.MolWeightGmol, 1))
 	}
 	if d.FromStructure {
-		th.Estimate = &thermo.EstimateOut{DHkJmol: round(e.DHkJmol, 2), DSJmolK: round(e.DSJmolK, 2),
+		blk.est = thermo.EstimateOut{DHkJmol: round(e.DHkJmol, 2), DSJmolK: round(e.DSJmolK, 2),
 			DHUncertaintyKJmol: round(e.UH, 2), DSUncertaintyJmolK: round(e.US, 2), Method: e.Method,
 			ParentRingSystem: e.ParentSystem, Class: e.Class, Calibration: e.Calibration}
+		th.Estimate = &blk.est
 		if th.Estimate.Method == "" {
 			th.Estimate.Method = thermo.MethodTable
 		}
@@ -142,14 +143,12 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 			th.Estimate.ParentRingSystem = e.Parent
 		}
 		if e.FFCorrection != nil {
-			v := round(*e.FFCorrection, 2)
-			th.Estimate.FFCorrectionKJmol = &v
+			th.Estimate.FFCorrectionKJmol = blk.value(round(*e.FFCorrection, 2))
 		}
 	}
 	if m := e.Measured; m != nil {
 		th.Measured = &thermo.MeasuredOut{DHkJmol: m.DH, DSJmolK: m.DS, Source: m.Source, Evidence: m.Evidence, Note: m.Note}
-		v := e.DHkJmol - m.DH
-		r.Reasons = append(r.Reasons, Reason{Code: "measured_value_used", Effect: EffectNote, Value: &v, Unit: "kJ/mol",
+		r.Reasons = append(r.Reasons, Reason{Code: "measured_value_used", Effect: EffectNote, Value: blk.value(e.DHkJmol - m.DH), Unit: "kJ/mol",
 			Detail: fmt.Sprintf("a published measurement of this structure is used (ΔH_p %.1f kJ/mol, %s); the model's own estimate, made without it, is %.1f kJ/mol", m.DH, m.Source, e.DHkJmol)})
 		if e.MeasuredNote != "" {
 			r.Reasons = append(r.Reasons, Reason{Code: "measured_stereoisomer", Effect: EffectNote, Detail: e.MeasuredNote})
@@ -157,11 +156,11 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 	}
 	if th.CeilingTempExtrapolated {
 		v := *th.CeilingTempK
-		r.Reasons = append(r.Reasons, Reason{Code: "ceiling_temp_extrapolated", Effect: EffectNote, Value: &v, Unit: "K",
+		r.Reasons = append(r.Reasons, Reason{Code: "ceiling_temp_extrapolated", Effect: EffectNote, Value: blk.value(v), Unit: "K",
 			Detail: "T_c = " + fixed(v, 0) + " K lies far outside any measured ceiling temperature (200–500 K): a formal number, read it as \"no ceiling in practice\" or \"never above\""})
 	}
-	r.Thermo = &th
-	r.Reasons = strainReasons(d, *e, r.Reasons)
+	r.Thermo = th
+	r.Reasons = strainReasons(d, e, r.Reasons, blk)
 	for _, n := range e.Notes {
 		r.Reasons = append(r.Reasons, Reason{Code: n.Code, Effect: EffectNote, Detail: n.Detail, Value: n.Value, Unit: n.Unit})
 	}
@@ -169,7 +168,7 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 	ringChain := e.Basis == thermo.BasisRingChain && e.Measured == nil
 	if ringChain {
 		crit := thermo.MacrocycleCriticalConc(dh, e.RingChainB, c.Temp)
-		th.CriticalConcMolL = &crit
+		th.CriticalConcMolL = blk.value(crit)
 		th.EqConversion = math.Max(0, 1-crit/float64(c.Conc))
 		th.CeilingTempK, th.CeilingTempExtrapolated = nil, false
 	}
@@ -177,31 +176,27 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 	switch {
 	case ringChain && conv <= 0:
 		v := *th.CriticalConcMolL
-		r.Reasons = append(r.Reasons, Reason{Code: "below_critical_concentration", Effect: EffectPenalizes, Value: &v, Unit: "mol/L",
+		r.Reasons = append(r.Reasons, Reason{Code: "below_critical_concentration", Effect: EffectPenalizes, Value: blk.value(v), Unit: "mol/L",
 			Detail: fmt.Sprintf("%.3g mol/L is below the ring–chain critical concentration %.3g mol/L (Jacobson–Stockmayer model estimate): a concentration floor, not a temperature ceiling — cyclic oligomers, no high polymer; raise the concentration", float64(c.Conc), v)})
 	case ringChain:
 		v := *th.CriticalConcMolL
-		r.Reasons = append(r.Reasons, Reason{Code: "above_critical_concentration", Effect: EffectFavors, Value: &v, Unit: "mol/L",
+		r.Reasons = append(r.Reasons, Reason{Code: "above_critical_concentration", Effect: EffectFavors, Value: blk.value(v), Unit: "mol/L",
 			Detail: fmt.Sprintf("entropy-driven ring–chain equilibrium: %.3g mol/L is above the critical concentration %.3g mol/L, so %.0f%% of the monomer units can go into chains (model estimate)", float64(c.Conc), v, 100*conv)})
 	case th.DGkJmol >= 0:
-		v := th.DGkJmol
 		det := "ΔG_p = " + signed(th.DGkJmol, 1) + " kJ/mol at " + fixed(c.Temp.Celsius(), 1) + " °C and " + strconv.FormatFloat(float64(c.Conc), 'g', 3, 64) + " mol/L: the monomer is favoured over polymer"
 		if th.CeilingTempK != nil {
 			det += " (ceiling temperature " + fixed(*th.CeilingTempK, 0) + " K at this concentration)"
 		}
-		r.Reasons = append(r.Reasons, Reason{Code: "above_ceiling_temperature", Effect: EffectPenalizes, Value: &v, Unit: "kJ/mol", Detail: det})
+		r.Reasons = append(r.Reasons, Reason{Code: "above_ceiling_temperature", Effect: EffectPenalizes, Value: blk.value(th.DGkJmol), Unit: "kJ/mol", Detail: det})
 	case conv < PolymerizesConversion:
-		v := conv
-		r.Reasons = append(r.Reasons, Reason{Code: "equilibrium_monomer", Effect: EffectPenalizes, Value: &v, Unit: "fraction",
+		r.Reasons = append(r.Reasons, Reason{Code: "equilibrium_monomer", Effect: EffectPenalizes, Value: blk.value(conv), Unit: "fraction",
 			Detail: fmt.Sprintf("equilibrium conversion %.2f ([M]eq = %.3g mol/L): raise the concentration or lower the temperature", conv, th.EqMonomerMolL)})
 	default:
-		v := conv
-		r.Reasons = append(r.Reasons, Reason{Code: "favorable_equilibrium", Effect: EffectFavors, Value: &v, Unit: "fraction",
+		r.Reasons = append(r.Reasons, Reason{Code: "favorable_equilibrium", Effect: EffectFavors, Value: blk.value(conv), Unit: "fraction",
 			Detail: "equilibrium conversion " + strconv.FormatFloat(conv, 'f', 3, 64) + " at these conditions"})
 	}
 	if uG > 0 && math.Abs(th.DGkJmol) < uG && !ringChain {
-		v := uG
-		r.Reasons = append(r.Reasons, Reason{Code: "verdict_near_boundary", Effect: EffectNote, Value: &v, Unit: "kJ/mol",
+		r.Reasons = append(r.Reasons, Reason{Code: "verdict_near_boundary", Effect: EffectNote, Value: blk.value(uG), Unit: "kJ/mol",
 			Detail: "|ΔG_p| = " + fixed(math.Abs(th.DGkJmol), 1) + " kJ/mol is within its uncertainty (±" + fixed(uG, 1) + " kJ/mol): the ceiling temperature lies within the uncertainty band of the working temperature; treat the verdict as uncertain"})
 	}
 	// verdict
@@ -239,8 +234,31 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 	floor := scoreFloor[r.Verdict]
 	r.Score = math.Max(floor, r.Score-0.3*math.Min(penalty, 1))
 	r.Score = round(r.Score, 4)
-	r.Cautions = cautions(d, &th, c, r.Verdict)
+	r.Cautions = cautions(d, th, c, r.Verdict)
 	return r
+}
+
+// judged holds in one allocation what a judged result points to: its thermodynamics, the
+// estimate's summary, the reasons' first backing array (most results have 3 to 9 reasons: a
+// longer list moves to an array of its own) and the reasons' values. The result keeps the block
+// alive as long as it refers to any part of it.
+type judged struct {
+	th      thermo.Thermo
+	est     thermo.EstimateOut
+	reasons [8]Reason
+	values  [6]float64
+	nValues int
+}
+
+// value returns a pointer to v kept in the block while it has room, else to a copy of its own.
+func (b *judged) value(v float64) *float64 {
+	if b.nValues == len(b.values) {
+		return &v
+	}
+	p := &b.values[b.nValues]
+	*p = v
+	b.nValues++
+	return p
 }
 
 func thermoMethodOrAuto(m units.ThermoMethod) units.ThermoMethod {

@@ -217,27 +217,27 @@ func ruleTransCyclooctene(in ruleInput, out []Reason) []Reason {
 
 // strainReasons appends the reason that turns the estimate's ΔH_p into a favor, note or penalty,
 // with the number, to out.
-func strainReasons(d *describe.Descriptors, e thermo.Estimate, out []Reason) []Reason {
+func strainReasons(d *describe.Descriptors, e *thermo.Estimate, out []Reason, blk *judged) []Reason {
 	dh := e.DHkJmol
 	if e.Measured != nil {
 		dh = e.Measured.DH
 	}
-	v := dh
+	v := blk.value(dh)
 	switch {
 	case e.Basis == thermo.BasisRingChain:
-		return append(out, Reason{Code: "strain_free_macrocycle", Effect: EffectNote, Value: &v, Unit: "kJ/mol",
+		return append(out, Reason{Code: "strain_free_macrocycle", Effect: EffectNote, Value: v, Unit: "kJ/mol",
 			Detail: "strain-free macrocycle (ΔH_p ≈ " + f0(dh) + " kJ/mol): entropy, not strain, drives its ring opening"})
 	case dh <= -40 && d.RingSystem == describe.SystemBridged:
-		return append(out, Reason{Code: "bridged_bicyclic_strain", Effect: EffectFavors, Value: &v, Unit: "kJ/mol",
+		return append(out, Reason{Code: "bridged_bicyclic_strain", Effect: EffectFavors, Value: v, Unit: "kJ/mol",
 			Detail: "strained bridged bicyclic ring: ΔH_p ≈ " + f0(dh) + " kJ/mol drives polymerization"})
 	case dh <= -40:
-		return append(out, Reason{Code: "high_ring_strain", Effect: EffectFavors, Value: &v, Unit: "kJ/mol",
+		return append(out, Reason{Code: "high_ring_strain", Effect: EffectFavors, Value: v, Unit: "kJ/mol",
 			Detail: "high ring strain: ΔH_p ≈ " + f0(dh) + " kJ/mol"})
 	case dh <= -15:
-		return append(out, Reason{Code: "moderate_ring_strain", Effect: EffectNote, Value: &v, Unit: "kJ/mol",
+		return append(out, Reason{Code: "moderate_ring_strain", Effect: EffectNote, Value: v, Unit: "kJ/mol",
 			Detail: "moderate ring strain: ΔH_p ≈ " + f0(dh) + " kJ/mol; the ceiling temperature and concentration matter"})
 	default:
-		return append(out, Reason{Code: "low_ring_strain", Effect: EffectPenalizes, Penalty: 0.1, Value: &v, Unit: "kJ/mol",
+		return append(out, Reason{Code: "low_ring_strain", Effect: EffectPenalizes, Penalty: 0.1, Value: v, Unit: "kJ/mol",
 			Detail: "little ring strain: ΔH_p ≈ " + f0(dh) + " kJ/mol"})
 	}
 }

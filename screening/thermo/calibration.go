@@ -35,6 +35,9 @@ type ClassCalibration struct {
 	FFEnabled                   bool
 	Calibrated                  bool
 	Rows                        []LOORow
+
+	// the status texts, made once when the calibrations are loaded (every estimate carries one)
+	tableText, ffText string
 }
 
 // LOORow is one measured row's leave-one-out predictions.
@@ -50,6 +53,9 @@ type LOORow struct {
 }
 
 func (c ClassCalibration) statusTable() string {
+	if c.tableText != "" {
+		return c.tableText
+	}
 	if c.N == 0 {
 		return "uncalibrated (no measurement in this class)"
 	}
@@ -57,6 +63,9 @@ func (c ClassCalibration) statusTable() string {
 }
 
 func (c ClassCalibration) statusFF() string {
+	if c.ffText != "" {
+		return c.ffText
+	}
 	if !c.Calibrated {
 		return "uncalibrated"
 	}
@@ -82,9 +91,13 @@ var (
 func loadCalibration() {
 	if p := embeddedPrecomputed(); p != nil && p.cal != nil {
 		calData = p.cal
-		return
+	} else {
+		calData, calErr = calibrate()
 	}
-	calData, calErr = calibrate()
+	for k, c := range calData {
+		c.tableText, c.ffText = c.statusTable(), c.statusFF()
+		calData[k] = c
+	}
 }
 
 // Calibrations returns every class's calibration (computed once).

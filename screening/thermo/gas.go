@@ -161,9 +161,14 @@ func (t *ringTable) lookupKey(sub *mol.Molecule, p *rings.Rings, atoms []int, tr
 	if trans {
 		extra = "|system E"
 	}
-	return systemKeyMemo.Do(canon.WrittenSignature(sub, p, atoms, -1, extra), func() string {
-		return systemKey(sub, atoms, -1, trans)
-	})
+	var stack [512]byte
+	sig := canon.AppendWrittenSignature(stack[:0], sub, p, atoms, -1, extra)
+	if k, ok := systemKeyMemo.GetBytes(sig); ok {
+		return k
+	}
+	k := systemKey(sub, atoms, -1, trans)
+	systemKeyMemo.Put(string(sig), k)
+	return k
 }
 
 // systemKeyMemo caches the keys of ring systems and cores looked up in the table by what
@@ -350,6 +355,8 @@ type GasEstimate struct {
 	Row      *RingRow // whole-system row when the table has the system
 	Spectate int      // spectator terms cancelled
 	Path     string   // "monomer terms → surviving terms", for the result's source
+
+	source string // the table estimate's source text, made once per cached estimate
 }
 
 // gasEstimate computes the ring-correction part for opening bond bi of the ring system atoms
@@ -360,14 +367,17 @@ func (t *ringTable) gasEstimate(m *mol.Molecule, r *rings.Rings, systemAtoms []i
 
 // gasEstimateSig is gasEstimate with the system's written signature already computed.
 func (t *ringTable) gasEstimateSig(m *mol.Molecule, systemAtoms []int, bi int, trans bool, base string) GasEstimate {
-	sig := gasKey(m, systemAtoms, bi, trans, base)
-	if g, ok := gasMemo.Get(sig); ok {
+	var stack [512]byte
+	key := appendGasKey(stack[:0], m, systemAtoms, bi, trans, base)
+	if g, ok := gasMemo.GetBytes(key); ok {
 		return g
 	}
+	sig := string(key)
 	g, ok := t.seededGas(sig)
 	if !ok {
 		g = t.gasEstimateUncached(m, systemAtoms, bi, trans)
 	}
+	g.source = "ring-correction table: " + g.Path
 	gasMemo.Put(sig, g)
 	return g
 }
@@ -375,8 +385,19 @@ func (t *ringTable) gasEstimateSig(m *mol.Molecule, systemAtoms []int, bi int, t
 // gasKey is the gas-estimate cache key: the system's written signature, the opened bond named by
 // its atoms' local positions (systemAtoms is sorted) and the trans flag.
 func gasKey(m *mol.Molecule, systemAtoms []int, bi int, trans bool, base string) string {
+	return string(appendGasKey(nil, m, systemAtoms, bi, trans, base))
+}
+
+// appendGasKey appends gasKey to b (a look-up that hits allocates nothing).
+func appendGasKey(b []byte, m *mol.Molecule, systemAtoms []int, bi int, trans bool, base string) []byte {
 	la, lb := sort.SearchInts(systemAtoms, m.Bonds[bi].A), sort.SearchInts(systemAtoms, m.Bonds[bi].B)
-	return base + "|open " + strconv.Itoa(la) + "-" + strconv.Itoa(lb) + "|" + strconv.FormatBool(trans)
+	b = append(b, base...)
+	b = append(b, "|open "...)
+	b = strconv.AppendInt(b, int64(la), 10)
+	b = append(b, '-')
+	b = strconv.AppendInt(b, int64(lb), 10)
+	b = append(b, '|')
+	return strconv.AppendBool(b, trans)
 }
 
 func (t *ringTable) gasEstimateUncached(m *mol.Molecule, systemAtoms []int, bi int, trans bool) GasEstimate {

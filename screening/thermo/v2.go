@@ -137,7 +137,7 @@ func StructureKeyOf(s *describe.Structure) string {
 // atom numbering; TestConstitutionKeyInPlace holds it equal to the key of the component taken
 // out as a molecule of its own).
 func ConstitutionKey(s *describe.Structure) string {
-	return canon.StructureKey(s.Mol, s.Rings, s.Main)
+	return canon.CachedStructureKey(s.Mol, s.Rings, s.Main)
 }
 
 func hasStereoMarks(m *mol.Molecule) bool {
@@ -421,12 +421,21 @@ var parentMemo = memo.New[parentInfo](20000)
 // parentKey is the cache key of o's parent: the written signature of its core and the olefin's
 // place in it.
 func parentKey(s *describe.Structure, o *describe.Olefin) string {
-	ca, cb := sort.SearchInts(o.CoreAtoms, o.A), sort.SearchInts(o.CoreAtoms, o.B)
-	place := "|olefin " + strconv.Itoa(ca) + "-" + strconv.Itoa(cb)
+	return string(appendParentKey(nil, s, o))
+}
+
+// appendParentKey appends parentKey to b (a look-up that hits allocates nothing).
+func appendParentKey(b []byte, s *describe.Structure, o *describe.Olefin) []byte {
 	if slices.Equal(o.CoreAtoms, o.SystemAtoms) && o.Signature != "" {
-		return o.Signature + place // the core is the whole ring system, already signed
+		b = append(b, o.Signature...) // the core is the whole ring system, already signed
+	} else {
+		b = canon.AppendWrittenSignature(b, s.Mol, s.Rings, o.CoreAtoms, -1, "")
 	}
-	return canon.WrittenSignature(s.Mol, s.Rings, o.CoreAtoms, -1, place)
+	ca, cb := sort.SearchInts(o.CoreAtoms, o.A), sort.SearchInts(o.CoreAtoms, o.B)
+	b = append(b, "|olefin "...)
+	b = strconv.AppendInt(b, int64(ca), 10)
+	b = append(b, '-')
+	return strconv.AppendInt(b, int64(cb), 10)
 }
 
 // parentName is the part of parentInfo the table tier uses.
@@ -441,10 +450,12 @@ var parentNameMemo = memo.New[parentName](20000)
 // parentNameOf is parentOf's name and error: from the cache, else from the shipped seeds
 // (seeds.go), else from parentOf.
 func parentNameOf(s *describe.Structure, o *describe.Olefin) parentName {
-	key := parentKey(s, o)
-	if v, ok := parentNameMemo.Get(key); ok {
+	var stack [512]byte
+	kb := appendParentKey(stack[:0], s, o)
+	if v, ok := parentNameMemo.GetBytes(kb); ok {
 		return v
 	}
+	key := string(kb)
 	v, ok := seededParent(key)
 	if !ok {
 		pi := parentOfKey(key, s, o)
@@ -635,15 +646,14 @@ func estimateTable(s *describe.Structure, o *describe.Olefin, excl string) Estim
 	if g.Row != nil {
 		e.Parent, e.Bare, e.parentRow = g.Row.Name, parentOnly, g.Row
 	}
-	e.Source = "ring-correction table: " + g.Path
+	e.Source = g.source
 	if !g.AllHits {
 		e.Basis = BasisAdditive
 		e.Notes = append(e.Notes, Note{Code: "skeleton_not_in_table",
 			Detail: fmt.Sprintf("ring system %s is not in the strain table; estimated from its rings (%s), uncertainty widened", d.SkeletonKey, g.Path)})
 	}
 	if g.Spectate > 0 {
-		e.Notes = append(e.Notes, note("annulated_rings_spectator",
-			fmt.Sprintf("%d fused or spiro ring(s) outside the olefin's ring are unchanged by ring opening and cancel; their interaction with the opened ring is neglected", g.Spectate)))
+		e.Notes = append(e.Notes, note("annulated_rings_spectator", spectatorText(g.Spectate)))
 		e.UH = math.Hypot(e.UH, 3)
 	}
 	if g.Row != nil && g.Row.AnchorDH != nil && g.Row.constKey != excl {
@@ -662,7 +672,7 @@ func estimateTable(s *describe.Structure, o *describe.Olefin, excl string) Estim
 		v, u := oxaBridgeTerm()
 		e.DHkJmol += v
 		e.UH = math.Hypot(e.UH, u)
-		e.Notes = append(e.Notes, noteValue("oxa_bridge_term", fmt.Sprintf("7-oxa bridge: strain released differs from the carbon bridge by %+.1f kJ/mol (force field, computed once for the bare bicycles; uncalibrated)", v), v, "kJ/mol"))
+		e.Notes = append(e.Notes, noteValue("oxa_bridge_term", oxaBridgeText(), v, "kJ/mol"))
 	}
 	applyCorrectionsExcluding(&e, d, excl)
 	return e
@@ -695,6 +705,33 @@ func (t *ringTable) oxaBridge(s *describe.Structure, o *describe.Olefin) bool {
 // never starts the force field — a cold start spent about 0.4 s on it. TestOxaBridgeConstant
 // recomputes it; when the force field changes, put the new value here.
 const oxaBridgeKJmol = -27.814081273249229
+
+// spectatorText is the annulated_rings_spectator note's text for n spectator rings (the
+// common counts written once).
+func spectatorText(n int) string {
+	if t := spectatorTexts(); n < len(t) {
+		return t[n]
+	}
+	return spectatorTextOf(n)
+}
+
+var spectatorTexts = sync.OnceValue(func() []string {
+	out := make([]string, 8)
+	for n := range out {
+		out[n] = spectatorTextOf(n)
+	}
+	return out
+})
+
+func spectatorTextOf(n int) string {
+	return fmt.Sprintf("%d fused or spiro ring(s) outside the olefin's ring are unchanged by ring opening and cancel; their interaction with the opened ring is neglected", n)
+}
+
+// oxaBridgeText is the oxa_bridge_term note's text (written once).
+var oxaBridgeText = sync.OnceValue(func() string {
+	v, _ := oxaBridgeTerm()
+	return fmt.Sprintf("7-oxa bridge: strain released differs from the carbon bridge by %+.1f kJ/mol (force field, computed once for the bare bicycles; uncalibrated)", v)
+})
 
 // oxaBridgeTerm is the oxa-bridge force-field difference with its uncertainty (kJ/mol).
 func oxaBridgeTerm() (float64, float64) {

@@ -3,42 +3,80 @@
 package memo
 
 import (
+	"maps"
 	"sync"
 	"sync/atomic"
 )
 
 // Memo is a bounded concurrent cache: when it holds more than max entries it starts afresh, so
 // adversarial input cannot grow it without limit. Values must not be mutated after Put.
+//
+// Reads of entries that have settled take no lock: they look up a typed map that is never
+// written after it is published (a snapshot). New entries go to a map under a mutex, which is
+// published as the next snapshot once the lookups that had to take the mutex since the last
+// snapshot outnumber its entries — so copying costs each miss a constant on average, and a
+// cache whose keys have all been seen is read without locks. A map keyed by string, unlike
+// sync.Map's keys of type any, hashes and compares the key without boxing it in an interface.
 type Memo[V any] struct {
-	max int64
-	n   atomic.Int64
-	m   atomic.Pointer[sync.Map]
+	max  int
+	read atomic.Pointer[map[string]V] // the snapshot: never written once stored
+
+	mu     sync.Mutex
+	all    map[string]V // every entry: the snapshot's and the newer ones
+	misses int          // lookups that took mu since the last snapshot
 }
 
 // New returns an empty cache of at most max entries.
 func New[V any](max int64) *Memo[V] {
-	c := &Memo[V]{max: max}
-	c.m.Store(&sync.Map{})
+	c := &Memo[V]{max: int(max)}
+	c.Reset()
 	return c
 }
 
 // Get returns the value stored under k.
 func (c *Memo[V]) Get(k string) (V, bool) {
-	v, ok := c.m.Load().Load(k)
-	if !ok {
-		var zero V
-		return zero, false
+	if v, ok := (*c.read.Load())[k]; ok {
+		return v, true
 	}
-	return v.(V), true
+	c.mu.Lock()
+	v, ok := c.all[k]
+	c.missLocked()
+	c.mu.Unlock()
+	return v, ok
+}
+
+// GetBytes is Get for a key held in a byte slice; a hit allocates nothing.
+func (c *Memo[V]) GetBytes(k []byte) (V, bool) {
+	if v, ok := (*c.read.Load())[string(k)]; ok {
+		return v, true
+	}
+	c.mu.Lock()
+	v, ok := c.all[string(k)]
+	c.missLocked()
+	c.mu.Unlock()
+	return v, ok
+}
+
+// missLocked counts a lookup the snapshot could not answer and publishes a new snapshot when
+// such lookups outnumber the entries.
+func (c *Memo[V]) missLocked() {
+	c.misses++
+	if c.misses < len(c.all) {
+		return
+	}
+	snap := maps.Clone(c.all)
+	c.read.Store(&snap)
+	c.misses = 0
 }
 
 // Put stores v under k.
 func (c *Memo[V]) Put(k string, v V) {
-	if c.n.Add(1) > c.max {
-		c.m.Store(&sync.Map{})
-		c.n.Store(1)
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	if _, ok := c.all[k]; !ok && len(c.all) >= c.max {
+		c.resetLocked()
 	}
-	c.m.Load().Store(k, v)
+	c.all[k] = v
 }
 
 // Do returns the value stored under k, computing it with fn and storing it first when there is
@@ -52,8 +90,23 @@ func (c *Memo[V]) Do(k string, fn func() V) V {
 	return v
 }
 
+// Len is the number of entries held.
+func (c *Memo[V]) Len() int {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	return len(c.all)
+}
+
 // Reset empties the cache (benchmarks of cold starts).
 func (c *Memo[V]) Reset() {
-	c.m.Store(&sync.Map{})
-	c.n.Store(0)
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	c.resetLocked()
+}
+
+func (c *Memo[V]) resetLocked() {
+	empty := map[string]V{}
+	c.read.Store(&empty)
+	c.all = map[string]V{}
+	c.misses = 0
 }
