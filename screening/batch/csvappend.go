@@ -7,6 +7,7 @@ import (
 	"unicode/utf8"
 
 	"ringsieve/screening"
+	"ringsieve/screening/internal/numfmt"
 	"ringsieve/screening/judge"
 )
 
@@ -44,7 +45,7 @@ func (f *fieldList) str(s string) {
 // num appends x as strconv.FormatFloat(x, 'g', prec, 64) (never a character that needs quotes).
 func (f *fieldList) num(x float64, prec int) {
 	f.next()
-	f.b = strconv.AppendFloat(f.b, x, 'g', prec, 64)
+	f.b = numfmt.AppendSig(f.b, x, prec)
 }
 
 // posInt appends i, or nothing when it is not positive.

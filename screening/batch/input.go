@@ -14,6 +14,7 @@ import (
 	"strconv"
 	"strings"
 	"unicode"
+	"unicode/utf8"
 
 	"ringsieve/screening"
 	"ringsieve/screening/molfile"
@@ -129,6 +130,25 @@ func tooMany(max int) error {
 	return fmt.Errorf("%w: more than %d", errTooMany, max)
 }
 
+// indexSpace is strings.IndexFunc(s, unicode.IsSpace) with the ASCII bytes tested directly
+// (a SMILES is ASCII; the rune is decoded only past it).
+func indexSpace(s string) int {
+	for i := 0; i < len(s); i++ {
+		c := s[i]
+		if c < utf8.RuneSelf {
+			if c == ' ' || c >= '\t' && c <= '\r' {
+				return i
+			}
+			continue
+		}
+		if j := strings.IndexFunc(s[i:], unicode.IsSpace); j >= 0 {
+			return i + j
+		}
+		return -1
+	}
+	return -1
+}
+
 func readSMILESLines(r *bufio.Reader, in *Input, max int) error {
 	sc := bufio.NewScanner(r)
 	sc.Buffer(make([]byte, 64<<10), MaxInputLine)
@@ -141,9 +161,9 @@ func readSMILESLines(r *bufio.Reader, in *Input, max int) error {
 		}
 		// the SMILES, then the id: the other whitespace-separated fields joined by one space
 		smi, id := t, ""
-		if i := strings.IndexFunc(t, unicode.IsSpace); i >= 0 {
+		if i := indexSpace(t); i >= 0 {
 			smi, id = t[:i], strings.TrimSpace(t[i:])
-			if strings.IndexFunc(id, unicode.IsSpace) >= 0 {
+			if indexSpace(id) >= 0 {
 				id = strings.Join(strings.Fields(id), " ")
 			}
 		} else {

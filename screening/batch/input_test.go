@@ -8,6 +8,7 @@ import (
 	"strconv"
 	"strings"
 	"testing"
+	"unicode"
 
 	"ringsieve/screening/internal/reftest"
 	"ringsieve/screening/molfile"
@@ -128,6 +129,23 @@ func TestReadSMILESLines(t *testing.T) {
 		smi, id := splitLineReference(lines[got.Line-1], got.Line)
 		if got.ID != id || got.SMILES != smi {
 			t.Errorf("item %d: %q %q, strings.Fields reads %q %q", i, got.SMILES, got.ID, smi, id)
+		}
+	}
+}
+
+// TestIndexSpace: the ASCII shortcut finds what strings.IndexFunc(s, unicode.IsSpace) finds, for
+// every byte value at the start, middle and end and for non-ASCII spaces and letters.
+func TestIndexSpace(t *testing.T) {
+	var cases []string
+	for c := range 256 {
+		b := string([]byte{byte(c)})
+		r := string(rune(c))
+		cases = append(cases, b, "C1=CC"+b+"x", r, "CC"+r+"id", "é"+r)
+	}
+	cases = append(cases, "", "CC", "CC\u2003id", "CC\u00a0id", "C\u0085C", "Ccé é", "CC\u3000")
+	for _, s := range cases {
+		if got, want := indexSpace(s), strings.IndexFunc(s, unicode.IsSpace); got != want {
+			t.Errorf("indexSpace(%q) = %d, want %d", s, got, want)
 		}
 	}
 }

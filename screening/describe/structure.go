@@ -39,6 +39,26 @@ type Structure struct {
 	firstOlefin Olefin
 	sysAtomsArr [2][]int
 	derivedArr  [2]derivedValue
+	systemsArr  [2][]int
+	ints        intArena
+}
+
+// intArena hands out int lists from one array allocated with the structure (ring systems, their
+// atoms, the olefins' cores and smallest rings); a list that does not fit is allocated on its
+// own.
+type intArena struct {
+	used int
+	arr  [64]int
+}
+
+// room returns an empty slice with capacity n, from the arena when it has room.
+func (a *intArena) room(n int) []int {
+	if a.used+n > len(a.arr) {
+		return make([]int, 0, n)
+	}
+	s := a.arr[a.used : a.used : a.used+n]
+	a.used += n
+	return s
 }
 
 type derivedValue struct{ name, value string }
@@ -135,7 +155,8 @@ func describeMolecule(m *mol.Molecule, p *rings.Rings, text string) (*Structure,
 	s := &Structure{Mol: m, Rings: p}
 	s.Olefins, s.derived = s.olefinArr[:0], s.derivedArr[:0]
 	s.pickMain(text)
-	s.ringSystem, s.systems = rings.Systems(p.SSSR)
+	nr := len(p.SSSR)
+	s.ringSystem, s.systems = rings.SystemsIn(p.SSSR, s.ints.room(4 * nr)[:4*nr], s.systemsArr[:0])
 	s.Groups = FunctionalGroups(m, p, s.Main)
 	inMain := make([]bool, len(m.Atoms))
 	for _, a := range s.Main {
@@ -299,6 +320,16 @@ const (
 	conjRingOlefinBit
 )
 
+// ringAtomsBound is the number of atoms the rings listed hold, counted once per ring (a bound on
+// their distinct atoms).
+func ringAtomsBound(rs []rings.Ring, idx []int) int {
+	n := 0
+	for _, i := range idx {
+		n += len(rs[i].Atoms)
+	}
+	return n
+}
+
 func (s *Structure) analyse(bi int) *Olefin {
 	m, p := s.Mol, s.Rings
 	g := graph{m, p}
@@ -327,15 +358,16 @@ func (s *Structure) analyse(bi int) *Olefin {
 		}
 	}
 	if s.sysAtoms[sysIdx] == nil {
-		s.sysAtoms[sysIdx] = rings.Atoms(p.SSSR, system)
+		s.sysAtoms[sysIdx] = rings.AppendAtoms(s.ints.room(ringAtomsBound(p.SSSR, system)), p.SSSR, system)
 	}
 	o.SystemRings = system
 	o.SystemAtoms = s.sysAtoms[sysIdx]
-	o.CoreRings = rings.Core(p.SSSR, system, rings.WithBond(p.SSSR, system, bi))
+	var withBond [8]int
+	o.CoreRings = rings.AppendCore(s.ints.room(len(system)), p.SSSR, system, rings.AppendWithBond(withBond[:0], p.SSSR, system, bi))
 	if len(o.CoreRings) == len(system) {
 		o.CoreAtoms = o.SystemAtoms // the core is the whole system
 	} else {
-		o.CoreAtoms = rings.Atoms(p.SSSR, o.CoreRings)
+		o.CoreAtoms = rings.AppendAtoms(s.ints.room(ringAtomsBound(p.SSSR, o.CoreRings)), p.SSSR, o.CoreRings)
 	}
 	smallest := -1
 	for _, ri := range o.CoreRings {
@@ -345,7 +377,7 @@ func (s *Structure) analyse(bi int) *Olefin {
 			}
 		}
 	}
-	o.SmallRing = append([]int(nil), p.SSSR[smallest].Atoms...)
+	o.SmallRing = append(s.ints.room(len(p.SSSR[smallest].Atoms)), p.SSSR[smallest].Atoms...)
 	n := len(m.Atoms)
 	// the five atom sets below in one array: on the stack for molecules of up to 64 atoms
 	var flagStack [5 * 64]bool

@@ -10,6 +10,7 @@ import (
 	"strings"
 
 	"ringsieve/screening/describe"
+	"ringsieve/screening/internal/numfmt"
 	"ringsieve/screening/thermo"
 	"ringsieve/screening/units"
 )
@@ -157,7 +158,7 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 	if th.CeilingTempExtrapolated {
 		v := *th.CeilingTempK
 		r.Reasons = append(r.Reasons, Reason{Code: "ceiling_temp_extrapolated", Effect: EffectNote, Value: blk.value(v), Unit: "K",
-			Detail: "T_c = " + fixed(v, 0) + " K lies far outside any measured ceiling temperature (200–500 K): a formal number, read it as \"no ceiling in practice\" or \"never above\""})
+			Detail: around("T_c = ", v, 0, " K lies far outside any measured ceiling temperature (200–500 K): a formal number, read it as \"no ceiling in practice\" or \"never above\"")})
 	}
 	r.Thermo = th
 	r.Reasons = strainReasons(d, e, r.Reasons, blk)
@@ -193,7 +194,7 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 			Detail: fmt.Sprintf("equilibrium conversion %.2f ([M]eq = %.3g mol/L): raise the concentration or lower the temperature", conv, th.EqMonomerMolL)})
 	default:
 		r.Reasons = append(r.Reasons, Reason{Code: "favorable_equilibrium", Effect: EffectFavors, Value: blk.value(conv), Unit: "fraction",
-			Detail: "equilibrium conversion " + strconv.FormatFloat(conv, 'f', 3, 64) + " at these conditions"})
+			Detail: around("equilibrium conversion ", conv, 3, " at these conditions")})
 	}
 	if uG > 0 && math.Abs(th.DGkJmol) < uG && !ringChain {
 		r.Reasons = append(r.Reasons, Reason{Code: "verdict_near_boundary", Effect: EffectNote, Value: blk.value(uG), Unit: "kJ/mol",
@@ -362,7 +363,19 @@ func OutOf(c units.Conditions) ConditionsOut {
 
 // fixed writes v with prec decimals, as fmt's %.<prec>f does (reason texts on the hot path are
 // built without fmt).
-func fixed(v float64, prec int) string { return strconv.FormatFloat(v, 'f', prec, 64) }
+func fixed(v float64, prec int) string {
+	var stack [32]byte
+	return string(numfmt.AppendFixed(stack[:0], v, prec))
+}
+
+// around is prefix + fixed(v, prec) + suffix, built in one buffer (reason texts are on the hot
+// path).
+func around(prefix string, v float64, prec int, suffix string) string {
+	var stack [256]byte
+	b := append(stack[:0], prefix...)
+	b = numfmt.AppendFixed(b, v, prec)
+	return string(append(b, suffix...))
+}
 
 // signed is fixed with a plus sign before a value that is not negative, as fmt's %+.<prec>f.
 func signed(v float64, prec int) string {

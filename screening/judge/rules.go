@@ -2,7 +2,6 @@ package judge
 
 import (
 	"fmt"
-	"strconv"
 	"strings"
 
 	"ringsieve/screening/describe"
@@ -226,21 +225,21 @@ func strainReasons(d *describe.Descriptors, e *thermo.Estimate, out []Reason, bl
 	switch {
 	case e.Basis == thermo.BasisRingChain:
 		return append(out, Reason{Code: "strain_free_macrocycle", Effect: EffectNote, Value: v, Unit: "kJ/mol",
-			Detail: "strain-free macrocycle (ΔH_p ≈ " + f0(dh) + " kJ/mol): entropy, not strain, drives its ring opening"})
+			Detail: around("strain-free macrocycle (ΔH_p ≈ ", dh, 0, " kJ/mol): entropy, not strain, drives its ring opening")})
 	case dh <= -40 && d.RingSystem == describe.SystemBridged:
 		return append(out, Reason{Code: "bridged_bicyclic_strain", Effect: EffectFavors, Value: v, Unit: "kJ/mol",
-			Detail: "strained bridged bicyclic ring: ΔH_p ≈ " + f0(dh) + " kJ/mol drives polymerization"})
+			Detail: around("strained bridged bicyclic ring: ΔH_p ≈ ", dh, 0, " kJ/mol drives polymerization")})
 	case dh <= -40:
 		return append(out, Reason{Code: "high_ring_strain", Effect: EffectFavors, Value: v, Unit: "kJ/mol",
-			Detail: "high ring strain: ΔH_p ≈ " + f0(dh) + " kJ/mol"})
+			Detail: around("high ring strain: ΔH_p ≈ ", dh, 0, " kJ/mol")})
 	case dh <= -15:
 		return append(out, Reason{Code: "moderate_ring_strain", Effect: EffectNote, Value: v, Unit: "kJ/mol",
-			Detail: "moderate ring strain: ΔH_p ≈ " + f0(dh) + " kJ/mol; the ceiling temperature and concentration matter"})
+			Detail: around("moderate ring strain: ΔH_p ≈ ", dh, 0, " kJ/mol; the ceiling temperature and concentration matter")})
 	default:
 		return append(out, Reason{Code: "low_ring_strain", Effect: EffectPenalizes, Penalty: 0.1, Value: v, Unit: "kJ/mol",
-			Detail: "little ring strain: ΔH_p ≈ " + f0(dh) + " kJ/mol"})
+			Detail: around("little ring strain: ΔH_p ≈ ", dh, 0, " kJ/mol")})
 	}
 }
 
 // f0 formats a number with no decimals (strconv: the reason texts are on the hot path).
-func f0(x float64) string { return strconv.FormatFloat(x, 'f', 0, 64) }
+func f0(x float64) string { return fixed(x, 0) }

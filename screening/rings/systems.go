@@ -16,7 +16,21 @@ const (
 // Systems groups the rings into ring systems (rings sharing at least one atom): per ring the
 // index of its system, and per system its ring indices in ring order.
 func Systems(rings []Ring) (ringSystem []int, systems [][]int) {
-	parent := make([]int, len(rings))
+	return SystemsIn(rings, nil, nil)
+}
+
+// SystemsIn is Systems with its answer carved from ints (4 × rings long, or nil) and the
+// systems' list appended to lists (with room for one per ring, or nil) when they are large
+// enough, else allocated: a caller that keeps such arrays screens without allocating here.
+func SystemsIn(rings []Ring, ints []int, lists [][]int) (ringSystem []int, systems [][]int) {
+	n := len(rings)
+	if cap(ints) < 4*n {
+		ints = make([]int, 4*n)
+	}
+	ints = ints[:4*n]
+	clear(ints)
+	systems = lists[:0]
+	parent := ints[3*n : 4*n]
 	for i := range parent {
 		parent[i] = i
 	}
@@ -36,8 +50,7 @@ func Systems(rings []Ring) (ringSystem []int, systems [][]int) {
 	}
 	// per root ring: its system's number + 1 (0: not numbered yet), in the same allocation as
 	// the answer and the systems' ring lists (each system's list is carved in ring order)
-	buf := make([]int, 3*len(rings))
-	idx, count, ringSystem := buf[:len(rings)], buf[len(rings):2*len(rings)], buf[2*len(rings):]
+	idx, count, ringSystem := ints[:n:n], ints[n:2*n:2*n], ints[2*n:3*n:3*n]
 	for i := range rings {
 		r := find(i)
 		if idx[r] == 0 {
@@ -47,9 +60,10 @@ func Systems(rings []Ring) (ringSystem []int, systems [][]int) {
 		ringSystem[i] = idx[r] - 1
 		count[ringSystem[i]]++
 	}
-	lists := make([]int, len(rings))
+	// the lists reuse idx, no longer needed: one slot per ring
+	free := idx
 	for k := range systems {
-		systems[k], lists = lists[:0:count[k]], lists[count[k]:]
+		systems[k], free = free[:0:count[k]], free[count[k]:]
 	}
 	for i, k := range ringSystem {
 		systems[k] = append(systems[k], i)
@@ -76,23 +90,29 @@ func Atoms(rings []Ring, idx []int) []int {
 	for _, i := range idx {
 		total += len(rings[i].Atoms)
 	}
-	out := make([]int, 0, total)
+	return AppendAtoms(make([]int, 0, total), rings, idx)
+}
+
+// AppendAtoms appends the sorted atoms of the rings listed by index to dst and returns the
+// extended slice.
+func AppendAtoms(dst []int, rings []Ring, idx []int) []int {
+	start := len(dst)
 	for _, i := range idx {
 		for _, a := range rings[i].Atoms {
 			dup := false
-			for _, b := range out {
+			for _, b := range dst[start:] {
 				if a == b {
 					dup = true
 					break
 				}
 			}
 			if !dup {
-				out = append(out, a)
+				dst = append(dst, a)
 			}
 		}
 	}
-	sort.Ints(out)
-	return out
+	sort.Ints(dst[start:])
+	return dst
 }
 
 // Kind classifies a set of rings: bridged if two share three or more atoms, else fused if two
@@ -133,6 +153,11 @@ func Kind(rings []Ring, idx []int) string {
 // atoms with them (the bridged core); rings fused by one bond or spiro-joined stay outside. The
 // result is sorted.
 func Core(rings []Ring, system []int, seed []int) []int {
+	return AppendCore(make([]int, 0, len(system)), rings, system, seed)
+}
+
+// AppendCore appends Core's rings to dst and returns the extended slice.
+func AppendCore(dst []int, rings []Ring, system []int, seed []int) []int {
 	// the closure is the same whatever order rings join in (joining only adds atoms), so atoms
 	// are marked as their rings join
 	maxAtom := 0
@@ -146,9 +171,16 @@ func Core(rings []Ring, system []int, seed []int) []int {
 			maxAtom = max(maxAtom, a)
 		}
 	}
-	marks := make([]bool, maxAtom+1+len(rings))
+	var stack [256]bool // the marks, on the stack for molecules of common size
+	var marks []bool
+	if need := maxAtom + 1 + len(rings); need <= len(stack) {
+		marks = stack[:need]
+	} else {
+		marks = make([]bool, need)
+	}
 	atoms, in := marks[:maxAtom+1], marks[maxAtom+1:]
-	core := make([]int, 0, len(system))
+	start := len(dst)
+	core := dst
 	join := func(r int) {
 		in[r] = true
 		core = append(core, r)
@@ -177,13 +209,17 @@ func Core(rings []Ring, system []int, seed []int) []int {
 			}
 		}
 	}
-	slices.Sort(core)
+	slices.Sort(core[start:])
 	return core
 }
 
 // WithBond returns the rings of the system that hold bond bi, in system order.
 func WithBond(rings []Ring, system []int, bi int) []int {
-	var out []int
+	return AppendWithBond(nil, rings, system, bi)
+}
+
+// AppendWithBond appends WithBond's rings to out and returns the extended slice.
+func AppendWithBond(out []int, rings []Ring, system []int, bi int) []int {
 	for _, r := range system {
 		for _, b := range rings[r].Bonds {
 			if b == bi {
