@@ -96,7 +96,7 @@ func PerceiveInto(p *Rings, m *mol.Molecule) {
 	w := p.ws
 	nb, na := len(m.Bonds), len(m.Atoms)
 	// the size lists and the path scratch (which perception alone uses) in one array
-	w.ints = resize(w.ints, nb+na+3*na)
+	w.ints = resize(w.ints, nb+na+5*na)
 	p.BondRingSize, p.AtomRingSize = w.ints[:nb:nb], w.ints[nb:nb+na:nb+na]
 	scratch := w.ints[nb+na:]
 	w.arena, w.spans, w.seenMasks = w.arena[:0], w.spans[:0], w.seenMasks[:0]
@@ -122,7 +122,7 @@ func PerceiveInto(p *Rings, m *mol.Molecule) {
 			w.addCandidate(m, path)
 			continue
 		}
-		path = shortestPathAvoiding(m, m.Bonds[bi].A, m.Bonds[bi].B, bi, scratch)
+		path, pathBonds := shortestPathAvoiding(m, m.Bonds[bi].A, m.Bonds[bi].B, bi, scratch)
 		if path == nil {
 			continue
 		}
@@ -130,8 +130,8 @@ func PerceiveInto(p *Rings, m *mol.Molecule) {
 		if small {
 			// skip a ring already found through another of its bonds before storing it
 			var mask uint64
-			for i := range path {
-				mask |= 1 << uint(m.BondBetween(path[i], path[(i+1)%len(path)]))
+			for _, b := range pathBonds {
+				mask |= 1 << uint(b)
 			}
 			if slices.Contains(w.seenMasks, mask) {
 				continue
@@ -149,7 +149,7 @@ func PerceiveInto(p *Rings, m *mol.Molecule) {
 			}
 			seenHash[h] = true
 		}
-		w.addCandidate(m, path)
+		w.addRing(path, pathBonds)
 	}
 	for bi, sz := range p.BondRingSize {
 		if sz == 0 {
@@ -211,6 +211,14 @@ func (w *workspace) addCandidate(m *mol.Molecule, path []int) {
 	for i := range path {
 		w.arena = append(w.arena, m.BondBetween(path[i], path[(i+1)%n]))
 	}
+}
+
+// addRing is addCandidate for a path whose bonds are known (bonds[i] joins path[i] to the next
+// atom, the last one closing the ring).
+func (w *workspace) addRing(path, bonds []int) {
+	w.spans = append(w.spans, span{len(w.arena), len(path)})
+	w.arena = append(w.arena, path...)
+	w.arena = append(w.arena, bonds...)
 }
 
 // candidates returns the candidate rings as slices of the arena (taken once the arena stops
@@ -382,15 +390,17 @@ func (ws *workspace) ringBonds(m *mol.Molecule) []bool {
 type dfsFrame struct{ v, parentBond, next int }
 
 // shortestPathAvoiding returns the atoms on a shortest path from a to b that does not use bond
-// skip (a first, b last), or nil. scratch must hold 3 × atoms ints; the path returned lives in
-// it and is overwritten by the next call.
-func shortestPathAvoiding(m *mol.Molecule, a, b, skip int, scratch []int) []int {
-	prev := scratch[:len(m.Atoms)]
+// skip (a first, b last), or nil, and the bonds of the ring the path closes with skip: bonds[i]
+// joins path[i] to path[i+1], and the last one is skip. scratch must hold 5 × atoms ints; the
+// lists returned live in it and are overwritten by the next call.
+func shortestPathAvoiding(m *mol.Molecule, a, b, skip int, scratch []int) (path, bonds []int) {
+	n := len(m.Atoms)
+	prev, prevBond := scratch[:n], scratch[3*n:4*n]
 	for i := range prev {
 		prev[i] = -2
 	}
 	prev[a] = -1
-	q := scratch[len(m.Atoms):len(m.Atoms)]
+	q := scratch[n:n]
 	q = append(q, a)
 	// breadth first; stop as b is reached: its first discovery fixes its predecessor, so the
 	// rest of the level would change nothing
@@ -403,7 +413,7 @@ search:
 			}
 			o := m.Other(bi, x)
 			if prev[o] == -2 {
-				prev[o] = x
+				prev[o], prevBond[o] = x, bi
 				if o == b {
 					break search
 				}
@@ -412,18 +422,23 @@ search:
 		}
 	}
 	if prev[b] == -2 {
-		return nil
+		return nil, nil
 	}
-	n := len(m.Atoms)
-	path := scratch[2*n : 2*n]
+	path, bonds = scratch[2*n:2*n], scratch[4*n:4*n]
 	for x := b; x != -1; x = prev[x] {
 		path = append(path, x)
+		if x != a {
+			bonds = append(bonds, prevBond[x])
+		}
 	}
-	// reverse to run a -> b
+	// reverse to run a -> b; the ring closes with skip
 	for i, j := 0, len(path)-1; i < j; i, j = i+1, j-1 {
 		path[i], path[j] = path[j], path[i]
 	}
-	return path
+	for i, j := 0, len(bonds)-1; i < j; i, j = i+1, j-1 {
+		bonds[i], bonds[j] = bonds[j], bonds[i]
+	}
+	return path, append(bonds, skip)
 }
 
 // pathHash is an order-free hash of the bond set of a closed path: two sums of a 64-bit mix of
