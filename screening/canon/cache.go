@@ -54,7 +54,11 @@ func appendSignature(sb []byte, m *mol.Molecule, r *rings.Rings, atoms []int, sk
 	}
 	for _, a := range atoms {
 		at := &m.Atoms[a]
-		sb = appendSmallInt(sb, at.Z)
+		if uint(at.Z) < 10 { // hydrogen to fluorine: one digit, written here (the call costs more)
+			sb = append(sb, byte('0'+at.Z))
+		} else {
+			sb = appendSmallInt(sb, at.Z)
+		}
 		if r.AromaticAtom[a] {
 			sb = append(sb, 'a')
 		}
@@ -99,10 +103,14 @@ func appendSignature(sb []byte, m *mol.Molecule, r *rings.Rings, atoms []int, sk
 			}
 		}
 		for _, l := range ls {
-			sb = appendSmallInt(sb, i)
-			sb = append(sb, '-')
-			sb = appendSmallInt(sb, l.j)
-			sb = append(sb, byte('0'+m.Bonds[l.bond].Order))
+			if l.j < 10 { // both local numbers have one digit (i < l.j)
+				sb = append(sb, byte('0'+i), '-', byte('0'+l.j), byte('0'+m.Bonds[l.bond].Order))
+			} else {
+				sb = appendSmallInt(sb, i)
+				sb = append(sb, '-')
+				sb = appendSmallInt(sb, l.j)
+				sb = append(sb, byte('0'+m.Bonds[l.bond].Order))
+			}
 			if r.AromaticBond[l.bond] {
 				sb = append(sb, 'a')
 			}

@@ -43,12 +43,12 @@ type Structure struct {
 	ints        intArena
 }
 
-// intArena hands out int lists from one array allocated with the structure (ring systems, their
-// atoms, the olefins' cores and smallest rings); a list that does not fit is allocated on its
-// own.
+// intArena hands out int lists from one array allocated with the structure (the screened
+// component's atoms, ring systems, their atoms, the olefins' cores and smallest rings); a list
+// that does not fit is allocated on its own.
 type intArena struct {
 	used int
-	arr  [64]int
+	arr  [96]int
 }
 
 // room returns an empty slice with capacity n, from the arena when it has room.
@@ -284,7 +284,8 @@ func (s *Structure) pickMain(text string) {
 			best, bestScore = ci, score
 		}
 	}
-	s.Main = append([]int(nil), m.Component(best)...)
+	comp := m.Component(best)
+	s.Main = append(s.ints.room(len(comp)), comp...)
 	sort.Ints(s.Main)
 	if m.NumComponents() == 1 {
 		s.MainSMILES = text
