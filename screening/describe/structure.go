@@ -98,21 +98,23 @@ func Describe(text string) (*Structure, error) {
 }
 
 // Workspace is the storage a caller that describes many structures reuses from one to the next
-// (one per worker): the molecule read and its ring perception, neither allocated again once
-// grown to the largest structure seen.
+// (one per worker): the molecule read, its ring perception and the structure described, none
+// allocated again once grown to the largest structure seen.
 type Workspace struct {
 	Mol   mol.Molecule
 	Rings rings.Rings
+	s     Structure
 }
 
-// DescribeInto is Describe into w. The Structure refers to w's molecule and rings, so w may be
-// reused only once the Structure and everything taken from it are no longer used.
+// DescribeInto is Describe into w. The Structure is w's own and refers to w's molecule and
+// rings, so w may be reused only once the Structure and everything taken from it are no longer
+// used.
 func DescribeInto(w *Workspace, text string) (*Structure, error) {
 	m := &w.Mol
 	if err := smiles.ParseInto(m, text); err != nil {
 		return nil, err
 	}
-	s, err := describeMolecule(m, &w.Rings, text)
+	s, err := describeMoleculeInto(&w.s, m, &w.Rings, text)
 	var ve *ValenceError
 	if errors.As(err, &ve) {
 		return nil, smiles.Errorf(m.Atoms[ve.Atom].Pos, "%s", ve.Msg)
@@ -141,6 +143,11 @@ func DescribeMolecule(m *mol.Molecule, text string) (*Structure, error) {
 
 // describeMolecule is DescribeMolecule perceiving rings into p (nil: a new perception).
 func describeMolecule(m *mol.Molecule, p *rings.Rings, text string) (*Structure, error) {
+	return describeMoleculeInto(new(Structure), m, p, text)
+}
+
+// describeMoleculeInto is describeMolecule into s, whose earlier contents are dropped.
+func describeMoleculeInto(s *Structure, m *mol.Molecule, p *rings.Rings, text string) (*Structure, error) {
 	if len(m.Atoms) == 0 {
 		return nil, fmt.Errorf("the structure has no atoms: %w", units.ErrInvalid)
 	}
@@ -152,7 +159,7 @@ func describeMolecule(m *mol.Molecule, p *rings.Rings, text string) (*Structure,
 	} else {
 		rings.PerceiveInto(p, m)
 	}
-	s := &Structure{Mol: m, Rings: p}
+	*s = Structure{Mol: m, Rings: p}
 	s.Olefins, s.derived = s.olefinArr[:0], s.derivedArr[:0]
 	s.pickMain(text)
 	nr := len(p.SSSR)
