@@ -13,6 +13,7 @@ var layers = map[string]int{
 	"ringsieve/screening/units":            0,
 	"ringsieve/screening/internal/memo":    0,
 	"ringsieve/screening/internal/reftest": 0,
+	"ringsieve/screening/internal/numfmt":  0,
 	"ringsieve/screening/mol":              1,
 	"ringsieve/screening/smiles":           2,
 	"ringsieve/screening/molfile":          2,
