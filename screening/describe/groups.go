@@ -99,6 +99,18 @@ func (g graph) doubleTo(a, z int) []int {
 	return out
 }
 
+// firstDoubleTo is the first atom doubleTo(a, z) lists, or -1 (without allocating).
+func (g graph) firstDoubleTo(a, z int) int {
+	for _, bi := range g.m.Neighbors(a) {
+		if g.m.Bonds[bi].Order == mol.BondDouble && !g.r.AromaticBond[bi] {
+			if o := g.m.Other(bi, a); z == 0 || g.m.Atoms[o].Z == z {
+				return o
+			}
+		}
+	}
+	return -1
+}
+
 // countDoubleTo counts the atoms joined to a by a non-aromatic double bond with atomic number z
 // (z = 0: any), without allocating.
 func (g graph) countDoubleTo(a, z int) int {
@@ -123,17 +135,17 @@ func (g graph) isEWG(a int) bool {
 	at := &m.Atoms[a]
 	switch at.Z {
 	case 6:
-		if g.isCarbonyl(a) || g.countDoubleTo(a, 16) > 0 {
-			return true
-		}
+		// one pass over the bonds: a C=O or C=S (not aromatic), a C≡N, or two fluorines
 		f := 0
 		for _, bi := range m.Neighbors(a) {
 			b := &m.Bonds[bi]
-			o := m.Other(bi, a)
-			if b.Order == mol.BondTriple && m.Atoms[o].Z == 7 {
+			oz := m.Atoms[m.Other(bi, a)].Z
+			switch {
+			case b.Order == mol.BondDouble && (oz == 8 || oz == 16) && !g.r.AromaticBond[bi]:
 				return true
-			}
-			if m.Atoms[o].Z == 9 {
+			case b.Order == mol.BondTriple && oz == 7:
+				return true
+			case oz == 9:
 				f++
 			}
 		}
@@ -249,10 +261,10 @@ func FunctionalGroups(m *mol.Molecule, r *rings.Rings, comp []int) []string {
 			if r.AromaticAtom[a] {
 				continue
 			}
-			if os := g.doubleTo(a, 8); len(os) > 0 {
+			if oxo := g.firstDoubleTo(a, 8); oxo >= 0 {
 				var cN, cO, cS, cC int
 				for _, x := range nb {
-					if x == os[0] {
+					if x == oxo {
 						continue
 					}
 					switch m.Atoms[x].Z {
@@ -397,8 +409,8 @@ func FunctionalGroups(m *mol.Molecule, r *rings.Rings, comp []int) []string {
 			if r.AromaticAtom[a] {
 				continue
 			}
-			os := g.doubleTo(a, 8)
-			if len(os) >= 2 {
+			oxo := g.countDoubleTo(a, 8)
+			if oxo >= 2 {
 				// sulfonic acid: an S(=O)2 carrying an O–H
 				for _, x := range nb {
 					if m.Atoms[x].Z == 8 && m.TotalH(x) > 0 && m.Bonds[m.BondBetween(a, x)].Order == mol.BondSingle {
@@ -418,7 +430,7 @@ func FunctionalGroups(m *mol.Molecule, r *rings.Rings, comp []int) []string {
 				}
 				continue
 			}
-			if len(os) == 1 {
+			if oxo == 1 {
 				found.add(FGSulfoxide)
 				continue
 			}
