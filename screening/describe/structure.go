@@ -89,6 +89,9 @@ type Olefin struct {
 	SmallRing   []int // atoms of the smallest ring holding the olefin
 	Desc        Descriptors
 	Signature   string // written signature of the ring system (cache key)
+	// CoreSignature is the written signature of the core when it is smaller than the ring
+	// system, else "" (the core's key and parent are cached under it)
+	CoreSignature string
 }
 
 // Describe reads a SMILES and derives everything ROMP screening needs from it. Errors are
@@ -249,7 +252,8 @@ const MaxOlefinsAnalysed = 12
 // checkValence refuses carbon, oxygen and fluorine beyond their valence (pentavalent carbon and
 // the like are typing errors, not monomers).
 func checkValence(m *mol.Molecule) error {
-	for i, a := range m.Atoms {
+	for i := range m.Atoms {
+		a := &m.Atoms[i] // not a copy: an atom is thirteen words
 		limit := -1
 		switch a.Z {
 		case 6:
@@ -545,7 +549,8 @@ func (s *Structure) analyse(bi int) *Olefin {
 	if len(o.CoreAtoms) == len(o.SystemAtoms) {
 		d.CoreKey = d.SkeletonKey // the core is the whole system
 	} else {
-		d.CoreKey = canon.CachedSkeletonKey(m, p, o.CoreAtoms, -1)
+		o.CoreSignature = canon.WrittenSignature(m, p, o.CoreAtoms, -1, "")
+		d.CoreKey = canon.KeyForSignature(o.CoreSignature, m, p, o.CoreAtoms, -1)
 	}
 	return o
 }

@@ -141,8 +141,8 @@ func ConstitutionKey(s *describe.Structure) string {
 }
 
 func hasStereoMarks(m *mol.Molecule) bool {
-	for _, a := range m.Atoms {
-		if a.Chiral != 0 {
+	for i := range m.Atoms {
+		if m.Atoms[i].Chiral != 0 {
 			return true
 		}
 	}
@@ -426,9 +426,12 @@ func parentKey(s *describe.Structure, o *describe.Olefin) string {
 
 // appendParentKey appends parentKey to b (a look-up that hits allocates nothing).
 func appendParentKey(b []byte, s *describe.Structure, o *describe.Olefin) []byte {
-	if slices.Equal(o.CoreAtoms, o.SystemAtoms) && o.Signature != "" {
+	switch {
+	case slices.Equal(o.CoreAtoms, o.SystemAtoms) && o.Signature != "":
 		b = append(b, o.Signature...) // the core is the whole ring system, already signed
-	} else {
+	case o.CoreSignature != "":
+		b = append(b, o.CoreSignature...) // signed when the core's key was taken
+	default:
 		b = canon.AppendWrittenSignature(b, s.Mol, s.Rings, o.CoreAtoms, -1, "")
 	}
 	ca, cb := sort.SearchInts(o.CoreAtoms, o.A), sort.SearchInts(o.CoreAtoms, o.B)
