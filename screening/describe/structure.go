@@ -296,8 +296,15 @@ func (s *Structure) pickMain(text string) {
 		}
 	}
 	comp := m.Component(best)
-	s.Main = append(s.ints.room(len(comp)), comp...)
-	sort.Ints(s.Main)
+	s.Main = s.ints.room(len(comp))
+	if len(comp) == len(m.Atoms) { // the whole molecule: its atoms in order, nothing to sort
+		for a := range comp {
+			s.Main = append(s.Main, a)
+		}
+	} else {
+		s.Main = append(s.Main, comp...)
+		sort.Ints(s.Main)
+	}
 	if m.NumComponents() == 1 {
 		s.MainSMILES = text
 		return

@@ -653,7 +653,7 @@ func estimateTable(s *describe.Structure, o *describe.Olefin, excl string) Estim
 	if !g.AllHits {
 		e.Basis = BasisAdditive
 		e.Notes = append(e.Notes, Note{Code: "skeleton_not_in_table",
-			Detail: fmt.Sprintf("ring system %s is not in the strain table; estimated from its rings (%s), uncertainty widened", d.SkeletonKey, g.Path)})
+			Detail: "ring system " + d.SkeletonKey + " is not in the strain table; estimated from its rings (" + g.Path + "), uncertainty widened"})
 	}
 	if g.Spectate > 0 {
 		e.Notes = append(e.Notes, note("annulated_rings_spectator", spectatorText(g.Spectate)))
