@@ -42,6 +42,17 @@ func (f *fieldList) str(s string) {
 	f.b = append(f.b, s...)
 }
 
+// mainReasons appends judge.MainReasons(r) as str would, without building the string first.
+func (f *fieldList) mainReasons(r *screening.Result) {
+	f.next()
+	start := len(f.b)
+	f.b = judge.AppendMainReasons(f.b, r)
+	if f.csv && csvNeedsQuotes(f.b[start:]) { // rare: write it again in quotes
+		s := string(f.b[start:])
+		f.b = appendCSVQuoted(f.b[:start], s)
+	}
+}
+
 // num appends x as strconv.FormatFloat(x, 'g', prec, 64) (never a character that needs quotes).
 func (f *fieldList) num(x float64, prec int) {
 	f.next()
@@ -59,11 +70,11 @@ func (f *fieldList) posInt(i int) {
 // csvNeedsQuotes is encoding/csv's rule for a comma-separated field: empty fields are not
 // quoted; `\.` is; so is a field holding a quote, comma, carriage return or newline, or one
 // starting with a space character.
-func csvNeedsQuotes(s string) bool {
-	if s == "" {
+func csvNeedsQuotes[T string | []byte](s T) bool {
+	if len(s) == 0 {
 		return false
 	}
-	if s == `\.` {
+	if string(s) == `\.` {
 		return true
 	}
 	for i := 0; i < len(s); i++ {
@@ -74,7 +85,7 @@ func csvNeedsQuotes(s string) bool {
 	if c := s[0]; c < utf8.RuneSelf { // unicode.IsSpace's ASCII spaces, without decoding a rune
 		return c == ' ' || c >= '\t' && c <= '\r'
 	}
-	r, _ := utf8.DecodeRuneInString(s)
+	r, _ := utf8.DecodeRuneInString(string(s[:min(len(s), utf8.UTFMax)]))
 	return unicode.IsSpace(r)
 }
 
@@ -144,7 +155,7 @@ func resultFields(f *fieldList, r *screening.Result, errMsg string) {
 	}
 	f.posInt(r.Descriptors.RingSize)
 	f.str(r.Descriptors.RingSystem)
-	f.str(judge.MainReasons(r))
+	f.mainReasons(r)
 	f.str(errMsg)
 }
 

@@ -144,7 +144,7 @@ func fnum(x float64, prec int) string { return strconv.FormatFloat(x, 'g', prec,
 
 // TestCSVNeedsQuotesLeadingSpace: the ASCII shortcut for a field's first character decides as
 // encoding/csv's rule does (unicode.IsSpace of the first rune), for every first byte and for
-// the non-ASCII spaces.
+// the non-ASCII spaces, on strings and on bytes.
 func TestCSVNeedsQuotesLeadingSpace(t *testing.T) {
 	rule := func(s string) bool {
 		if s == "" {
@@ -164,6 +164,9 @@ func TestCSVNeedsQuotesLeadingSpace(t *testing.T) {
 	for _, f := range fields {
 		if got, want := csvNeedsQuotes(f), rule(f); got != want {
 			t.Errorf("csvNeedsQuotes(%q) = %v, encoding/csv's rule says %v", f, got, want)
+		}
+		if got, want := csvNeedsQuotes([]byte(f)), rule(f); got != want {
+			t.Errorf("csvNeedsQuotes([]byte(%q)) = %v, encoding/csv's rule says %v", f, got, want)
 		}
 	}
 }

@@ -28,3 +28,31 @@ func TestFixedAndSignedWriteWhatFmtWrites(t *testing.T) {
 		}
 	}
 }
+
+// TestAroundAndMainReasons: around joins its parts as concatenation with fixed would, and the
+// main reasons list blocking, then penalizing, then favoring codes (notes left out), each
+// with its group in parentheses, joined by "; " (design choice: the CSV column's format).
+func TestAroundAndMainReasons(t *testing.T) {
+	for _, v := range []float64{0, 1523.8557, -137.5328, 0.9995, math.Inf(1)} {
+		if got, want := around("T_c = ", v, 0, " K"), "T_c = "+fixed(v, 0)+" K"; got != want {
+			t.Errorf("around(%v) = %q, want %q", v, got, want)
+		}
+	}
+	r := &Result{Reasons: []Reason{
+		{Code: "high_ring_strain", Effect: EffectFavors},
+		{Code: "ceiling_temp_extrapolated", Effect: EffectNote},
+		{Code: "catalyst_poison", Effect: EffectBlocks, Group: "thiol"},
+		{Code: "equilibrium_monomer", Effect: EffectPenalizes},
+		{Code: "favorable_equilibrium", Effect: EffectFavors},
+	}}
+	want := "catalyst_poison(thiol); equilibrium_monomer; high_ring_strain; favorable_equilibrium"
+	if got := MainReasons(r); got != want {
+		t.Errorf("MainReasons = %q, want %q", got, want)
+	}
+	if got := string(AppendMainReasons([]byte("x,"), r)); got != "x,"+want {
+		t.Errorf("AppendMainReasons = %q", got)
+	}
+	if got := MainReasons(&Result{}); got != "" {
+		t.Errorf("MainReasons of no reasons = %q", got)
+	}
+}

@@ -327,19 +327,32 @@ func cautions(d *describe.Descriptors, th *thermo.Thermo, c units.Conditions, ve
 // MainReasons lists the codes of the blocking, penalizing and favoring reasons, joined by "; "
 // (a group, when the reason names one, in parentheses).
 func MainReasons(r *Result) string {
-	var codes []string
-	for _, effect := range []string{EffectBlocks, EffectPenalizes, EffectFavors} {
-		for _, rs := range r.Reasons {
-			if rs.Effect == effect {
-				c := rs.Code
-				if rs.Group != "" {
-					c += "(" + rs.Group + ")"
-				}
-				codes = append(codes, c)
+	var stack [128]byte
+	return string(AppendMainReasons(stack[:0], r))
+}
+
+// AppendMainReasons appends MainReasons to b.
+func AppendMainReasons(b []byte, r *Result) []byte {
+	n := 0
+	for _, effect := range [...]string{EffectBlocks, EffectPenalizes, EffectFavors} {
+		for i := range r.Reasons {
+			rs := &r.Reasons[i]
+			if rs.Effect != effect {
+				continue
+			}
+			if n > 0 {
+				b = append(b, "; "...)
+			}
+			n++
+			b = append(b, rs.Code...)
+			if rs.Group != "" {
+				b = append(b, '(')
+				b = append(b, rs.Group...)
+				b = append(b, ')')
 			}
 		}
 	}
-	return strings.Join(codes, "; ")
+	return b
 }
 
 // MoreReactive orders the results of one monomer's ring olefins: better verdict first, then
