@@ -11,6 +11,7 @@ package numfmt
 
 import (
 	"math"
+	"slices"
 	"strconv"
 )
 
@@ -120,33 +121,38 @@ func exponentGuess(ax float64) int {
 }
 
 // appendScaled appends n·10^−k with k decimals, or with trailing zero decimals (and then the
-// point) dropped when trim is set.
+// point) dropped when trim is set. The digits are written in place, last first.
 func appendScaled(b []byte, n uint64, k int, trim bool) []byte {
-	var d [24]byte // n's digits, written from the end, with room for the zeros after the point
-	i := len(d)
-	for n >= 10 {
-		i--
-		d[i] = byte('0' + n%10)
-		n /= 10
-	}
-	i--
-	d[i] = byte('0' + n)
-	for len(d)-i <= k { // "0.0…" before the digits of a number below one
-		i--
-		d[i] = '0'
-	}
-	digits := d[i:]
-	point := len(digits) - k
-	frac := digits[point:]
 	if trim {
-		for len(frac) > 0 && frac[len(frac)-1] == '0' {
-			frac = frac[:len(frac)-1]
+		for k > 0 && n%10 == 0 {
+			n /= 10
+			k--
 		}
 	}
-	b = append(b, digits[:point]...)
-	if len(frac) == 0 {
-		return b
+	digits := 1 // n's digits, at least k+1 so that a number below one reads "0.…"
+	for x := n; x >= 10; x /= 10 {
+		digits++
 	}
-	b = append(b, '.')
-	return append(b, frac...)
+	digits = max(digits, k+1)
+	size := digits
+	if k > 0 {
+		size++ // the point
+	}
+	start := len(b)
+	b = slices.Grow(b, size)[:start+size]
+	i := len(b) - 1
+	for range k {
+		b[i] = byte('0' + n%10)
+		n /= 10
+		i--
+	}
+	if k > 0 {
+		b[i] = '.'
+		i--
+	}
+	for ; i >= start; i-- {
+		b[i] = byte('0' + n%10)
+		n /= 10
+	}
+	return b
 }
