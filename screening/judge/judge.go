@@ -59,25 +59,20 @@ type Result struct {
 // Verdicts lists every verdict from best to worst: the one verdict order.
 var Verdicts = []string{VerdictPolymerizes, VerdictEquilibrium, VerdictUnfavorable, VerdictBlocked, VerdictNotMonomer}
 
-var verdictRank = func() map[string]int {
-	m := map[string]int{}
-	for i, v := range Verdicts {
-		m[v] = i
-	}
-	return m
-}()
-
-// VerdictRank orders verdicts from best (0) to worst; an unknown verdict ranks after all.
+// VerdictRank orders verdicts from best (0) to worst (Verdicts' order); an unknown verdict ranks
+// after all.
 func VerdictRank(v string) int {
-	if r, ok := verdictRank[v]; ok {
-		return r
+	for i, x := range Verdicts { // five names: a scan beats a map look-up
+		if x == v {
+			return i
+		}
 	}
 	return len(Verdicts)
 }
 
 // ParseVerdict validates a verdict name. Errors are *units.FieldError values for field.
 func ParseVerdict(field, v string) (string, error) {
-	if _, ok := verdictRank[v]; !ok {
+	if VerdictRank(v) == len(Verdicts) {
 		return "", units.FieldErr(field, "unknown verdict %q (one of %s)", v, strings.Join(Verdicts, ", "))
 	}
 	return v, nil
@@ -232,7 +227,7 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 		r.Score = 0.70 + 0.30*sigmoid(-dg/15)
 	}
 	// penalties lower the score within the verdict's band
-	floor := scoreFloor[r.Verdict]
+	floor := scoreFloor(r.Verdict)
 	r.Score = math.Max(floor, r.Score-0.3*math.Min(penalty, 1))
 	r.Score = round(r.Score, 4)
 	r.Cautions = cautions(d, th, c, r.Verdict)
@@ -271,7 +266,19 @@ func thermoMethodOrAuto(m units.ThermoMethod) units.ThermoMethod {
 
 // scoreFloor is the lowest score of each verdict's band (design choice: the bands do not
 // overlap, so sorting by score keeps the verdict order; penalties move a result within its band).
-var scoreFloor = map[string]float64{VerdictBlocked: 0.01, VerdictUnfavorable: 0.1, VerdictEquilibrium: 0.3, VerdictPolymerizes: 0.66}
+func scoreFloor(verdict string) float64 {
+	switch verdict {
+	case VerdictBlocked:
+		return 0.01
+	case VerdictUnfavorable:
+		return 0.1
+	case VerdictEquilibrium:
+		return 0.3
+	case VerdictPolymerizes:
+		return 0.66
+	}
+	return 0
+}
 
 func sigmoid(x float64) float64 { return 1 / (1 + math.Exp(-x)) }
 
