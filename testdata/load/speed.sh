@@ -65,7 +65,7 @@ for f in 10k 100k; do
 done
 
 echo "== 1e. instructions per structure (callgrind, one core; skipped without valgrind)"
-# counts repeat to 1–2 % (the collector on) where wall time swings by a fifth (DEVELOPERS.md:
+# counts repeat to 1–4 % (the collector on) where wall time swings by a fifth (DEVELOPERS.md:
 # "Small changes on a noisy machine"); a run that dies of SIGILL in runtime.cputicks under
 # valgrind is retried
 if command -v valgrind >/dev/null; then
