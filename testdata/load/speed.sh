@@ -10,7 +10,8 @@
 #      substructure counts (testdata/load/rdkit_reference_screen.py);
 #      the same for its first 10,000 lines (where cold caches weigh more), a cold start
 #      (one structure, whole process), the memory of 10,000 and 100,000 in CSV and JSON Lines,
-#      and (when valgrind is installed) instructions per structure for one, 10,000 and 30,000;
+#      and (when valgrind is installed) instructions per structure for one, 10,000 and 30,000
+#      (the last also with the collector off, the count to compare builds by);
 #   2. the 100,000 as a job: upload, screen and store, CSV and JSON Lines downloads; then the job
 #      and the offline screen alternately, three rounds, in wall and CPU time;
 #   3. POST /v1/screen against GET /healthz on one server (wrk, 2 threads, 16 connections, three
@@ -71,14 +72,19 @@ echo "== 1e. instructions per structure (callgrind, one core; skipped without va
 if command -v valgrind >/dev/null; then
   head -30000 "$work/100k.smi" > "$work/30k.smi"
   echo "C1=CC2CC1C(C(=O)OC)C2 one" > "$work/one.smi"
-  for f in one 10k 30k; do
+  # the last line counts with the collector off (GOGC=off), which repeats to a few parts in a
+  # million: the figure to compare builds by
+  for run in "one" "10k" "30k" "30k off"; do
+    f=${run%% *}
+    gogc=""
+    [ "$run" = "30k off" ] && gogc=off
     n=$(wc -l < "$work/$f.smi")
     for _ in 1 2 3; do
-      GODEBUG=asyncpreemptoff=1 GOMAXPROCS=1 valgrind --tool=callgrind --callgrind-out-file="$work/cg.out" \
+      GOGC=$gogc GODEBUG=asyncpreemptoff=1 GOMAXPROCS=1 valgrind --tool=callgrind --callgrind-out-file="$work/cg.out" \
         "$work/ringsieve" screen --thermo-method table --format csv "$work/$f.smi" >/dev/null 2>"$work/cg.err" && break
     done
     ir=$(grep -o 'I *refs: *[0-9,]*' "$work/cg.err" | tr -dc '0-9')
-    python3 -c "import sys; ir, n, f = int(sys.argv[1] or 0), int(sys.argv[2]), sys.argv[3]; print(f'{f}: {n} lines, {ir/1e6:,.1f} million instructions, {ir/n:,.0f} per line (whole process)')" "$ir" "$n" "$f"
+    python3 -c "import sys; ir, n, f = int(sys.argv[1] or 0), int(sys.argv[2]), sys.argv[3]; print(f'{f}: {n} lines, {ir/1e6:,.1f} million instructions, {ir/n:,.0f} per line (whole process)')" "$ir" "$n" "$f${gogc:+ (GOGC=off)}"
   done
   rm -f "$work/cg.out"
 else
