@@ -158,12 +158,7 @@ func CachedStructureKey(m *mol.Molecule, r *rings.Rings, atoms []int) string {
 	}
 	var stack [1024]byte
 	sig := appendSignature(stack[:0], m, r, atoms, -1, "|structure", true)
-	if k, ok := structureMemo.GetBytes(sig); ok {
-		return k
-	}
-	k := StructureKey(m, r, atoms)
-	structureMemo.Put(string(sig), k)
-	return k
+	return structureMemo.DoBytes(sig, func(string) string { return StructureKey(m, r, atoms) })
 }
 
 // CachedSkeletonKey is SkeletonKey with the written-subgraph cache.

@@ -108,18 +108,15 @@ func PerceiveInto(p *Rings, m *mol.Molecule) {
 		if !inRing[bi] {
 			continue
 		}
-		var path []int
 		if c := cycleOf[bi]; c != nil {
 			// a ring system that is one plain cycle: its only ring, found without a search
 			if c[0] == -1 {
 				continue // already listed
 			}
-			path = c[1:]
-			for i := range path {
-				p.BondRingSize[m.BondBetween(path[i], path[(i+1)%len(path)])] = len(path)
-			}
 			c[0] = -1
-			w.addCandidate(m, path)
+			for _, b := range w.addCandidate(m, c[1:]) {
+				p.BondRingSize[b] = len(c) - 1
+			}
 			continue
 		}
 		path, pathBonds := shortestPathAvoiding(m, m.Bonds[bi].A, m.Bonds[bi].B, bi, scratch)
@@ -203,14 +200,16 @@ func resize[T any](s []T, n int) []T {
 	return s
 }
 
-// addCandidate stores a closed path as a candidate ring: its atoms and bonds.
-func (w *workspace) addCandidate(m *mol.Molecule, path []int) {
+// addCandidate stores a closed path as a candidate ring, its atoms and bonds, and returns the
+// bonds as stored (valid until the next candidate is added).
+func (w *workspace) addCandidate(m *mol.Molecule, path []int) []int {
 	n := len(path)
 	w.spans = append(w.spans, span{len(w.arena), n})
 	w.arena = append(w.arena, path...)
 	for i := range path {
 		w.arena = append(w.arena, m.BondBetween(path[i], path[(i+1)%n]))
 	}
+	return w.arena[len(w.arena)-n:]
 }
 
 // addRing is addCandidate for a path whose bonds are known (bonds[i] joins path[i] to the next

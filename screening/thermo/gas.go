@@ -163,12 +163,7 @@ func (t *ringTable) lookupKey(sub *mol.Molecule, p *rings.Rings, atoms []int, tr
 	}
 	var stack [512]byte
 	sig := canon.AppendWrittenSignature(stack[:0], sub, p, atoms, -1, extra)
-	if k, ok := systemKeyMemo.GetBytes(sig); ok {
-		return k
-	}
-	k := systemKey(sub, atoms, -1, trans)
-	systemKeyMemo.Put(string(sig), k)
-	return k
+	return systemKeyMemo.DoBytes(sig, func(string) string { return systemKey(sub, atoms, -1, trans) })
 }
 
 // systemKeyMemo caches the keys of ring systems and cores looked up in the table by what
@@ -369,17 +364,14 @@ func (t *ringTable) gasEstimate(m *mol.Molecule, r *rings.Rings, systemAtoms []i
 func (t *ringTable) gasEstimateSig(m *mol.Molecule, systemAtoms []int, bi int, trans bool, base string) GasEstimate {
 	var stack [512]byte
 	key := appendGasKey(stack[:0], m, systemAtoms, bi, trans, base)
-	if g, ok := gasMemo.GetBytes(key); ok {
+	return gasMemo.DoBytes(key, func(sig string) GasEstimate {
+		g, ok := t.seededGas(sig)
+		if !ok {
+			g = t.gasEstimateUncached(m, systemAtoms, bi, trans)
+		}
+		g.source = "ring-correction table: " + g.Path
 		return g
-	}
-	sig := string(key)
-	g, ok := t.seededGas(sig)
-	if !ok {
-		g = t.gasEstimateUncached(m, systemAtoms, bi, trans)
-	}
-	g.source = "ring-correction table: " + g.Path
-	gasMemo.Put(sig, g)
-	return g
+	})
 }
 
 // gasKey is the gas-estimate cache key: the system's written signature, the opened bond named by

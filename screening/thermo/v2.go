@@ -454,18 +454,13 @@ var parentNameMemo = memo.New[parentName](20000)
 // (seeds.go), else from parentOf.
 func parentNameOf(s *describe.Structure, o *describe.Olefin) parentName {
 	var stack [512]byte
-	kb := appendParentKey(stack[:0], s, o)
-	if v, ok := parentNameMemo.GetBytes(kb); ok {
-		return v
-	}
-	key := string(kb)
-	v, ok := seededParent(key)
-	if !ok {
+	return parentNameMemo.DoBytes(appendParentKey(stack[:0], s, o), func(key string) parentName {
+		if v, ok := seededParent(key); ok {
+			return v
+		}
 		pi := parentOfKey(key, s, o)
-		v = parentName{pi.name, pi.err}
-	}
-	parentNameMemo.Put(key, v)
-	return v
+		return parentName{pi.name, pi.err}
+	})
 }
 
 func parentOf(s *describe.Structure, o *describe.Olefin) parentInfo {
@@ -709,25 +704,9 @@ func (t *ringTable) oxaBridge(s *describe.Structure, o *describe.Olefin) bool {
 // recomputes it; when the force field changes, put the new value here.
 const oxaBridgeKJmol = -27.814081273249229
 
-// spectatorText is the annulated_rings_spectator note's text for n spectator rings (the
-// common counts written once).
+// spectatorText is the annulated_rings_spectator note's text for n spectator rings.
 func spectatorText(n int) string {
-	if t := spectatorTexts(); n < len(t) {
-		return t[n]
-	}
-	return spectatorTextOf(n)
-}
-
-var spectatorTexts = sync.OnceValue(func() []string {
-	out := make([]string, 8)
-	for n := range out {
-		out[n] = spectatorTextOf(n)
-	}
-	return out
-})
-
-func spectatorTextOf(n int) string {
-	return fmt.Sprintf("%d fused or spiro ring(s) outside the olefin's ring are unchanged by ring opening and cancel; their interaction with the opened ring is neglected", n)
+	return strconv.Itoa(n) + " fused or spiro ring(s) outside the olefin's ring are unchanged by ring opening and cancel; their interaction with the opened ring is neglected"
 }
 
 // oxaBridgeText is the oxa_bridge_term note's text (written once).

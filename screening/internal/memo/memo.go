@@ -38,35 +38,30 @@ func (c *Memo[V]) Get(k string) (V, bool) {
 	if v, ok := (*c.read.Load())[k]; ok {
 		return v, true
 	}
-	c.mu.Lock()
-	v, ok := c.all[k]
-	c.missLocked()
-	c.mu.Unlock()
-	return v, ok
+	return c.getLocked(k)
 }
 
-// GetBytes is Get for a key held in a byte slice; a hit allocates nothing.
+// GetBytes is Get for a key held in a byte slice; a hit on a settled entry allocates nothing.
 func (c *Memo[V]) GetBytes(k []byte) (V, bool) {
 	if v, ok := (*c.read.Load())[string(k)]; ok {
 		return v, true
 	}
-	c.mu.Lock()
-	v, ok := c.all[string(k)]
-	c.missLocked()
-	c.mu.Unlock()
-	return v, ok
+	return c.getLocked(string(k))
 }
 
-// missLocked counts a lookup the snapshot could not answer and publishes a new snapshot when
-// such lookups outnumber the entries.
-func (c *Memo[V]) missLocked() {
+// getLocked looks up a key the snapshot does not hold, counting the miss and publishing a new
+// snapshot when such lookups outnumber the entries.
+func (c *Memo[V]) getLocked(k string) (V, bool) {
+	c.mu.Lock()
+	defer c.mu.Unlock()
+	v, ok := c.all[k]
 	c.misses++
-	if c.misses < len(c.all) {
-		return
+	if c.misses >= len(c.all) {
+		snap := maps.Clone(c.all)
+		c.read.Store(&snap)
+		c.misses = 0
 	}
-	snap := maps.Clone(c.all)
-	c.read.Store(&snap)
-	c.misses = 0
+	return v, ok
 }
 
 // Put stores v under k.
@@ -90,11 +85,16 @@ func (c *Memo[V]) Do(k string, fn func() V) V {
 	return v
 }
 
-// Len is the number of entries held.
-func (c *Memo[V]) Len() int {
-	c.mu.Lock()
-	defer c.mu.Unlock()
-	return len(c.all)
+// DoBytes is Do for a key built in a byte slice (on a caller's stack): a hit allocates
+// nothing; on a miss fn gets the key as a string (the one stored).
+func (c *Memo[V]) DoBytes(k []byte, fn func(key string) V) V {
+	if v, ok := c.GetBytes(k); ok {
+		return v
+	}
+	key := string(k)
+	v := fn(key)
+	c.Put(key, v)
+	return v
 }
 
 // Reset empties the cache (benchmarks of cold starts).

@@ -41,7 +41,7 @@ func TestBound(t *testing.T) {
 		k := strconv.Itoa(i)
 		c.Put(k, i)
 		c.Get(k)
-		if n := c.Len(); n > 10 {
+		if n := len(c.all); n > 10 {
 			t.Fatalf("after %d puts the cache holds %d entries, max 10", i+1, n)
 		}
 		if n := len(*c.read.Load()); n > 10 {
@@ -59,7 +59,7 @@ func TestBound(t *testing.T) {
 		t.Error("replacing an entry dropped another one")
 	}
 	c.Reset()
-	if _, ok := c.Get("34"); ok || c.Len() != 0 {
+	if _, ok := c.Get("34"); ok || len(c.all) != 0 {
 		t.Error("Reset kept entries")
 	}
 }
