@@ -194,11 +194,11 @@ func ScreenMolfileContext(ctx context.Context, text string, c Conditions) (Resul
 		return Result{}, err
 	}
 	s, err := describe.DescribeMolecule(m, "")
-	var ve *describe.ValenceError
-	if errors.As(err, &ve) {
-		return Result{}, &molfile.Error{Line: 5 + ve.Atom, Msg: ve.Msg}
-	}
 	if err != nil {
+		var ve *describe.ValenceError
+		if errors.As(err, &ve) {
+			return Result{}, &molfile.Error{Line: 5 + ve.Atom, Msg: ve.Msg}
+		}
 		return Result{}, err
 	}
 	return ScreenStructureContext(ctx, s, c)

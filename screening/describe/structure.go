@@ -118,11 +118,16 @@ func DescribeInto(w *Workspace, text string) (*Structure, error) {
 		return nil, err
 	}
 	s, err := describeMoleculeInto(&w.s, m, &w.Rings, text)
-	var ve *ValenceError
-	if errors.As(err, &ve) {
-		return nil, smiles.Errorf(m.Atoms[ve.Atom].Pos, "%s", ve.Msg)
+	if err != nil {
+		// declared inside the branch: errors.As takes its address, which would move it to
+		// the heap on every call
+		var ve *ValenceError
+		if errors.As(err, &ve) {
+			return nil, smiles.Errorf(m.Atoms[ve.Atom].Pos, "%s", ve.Msg)
+		}
+		return nil, err
 	}
-	return s, err
+	return s, nil
 }
 
 // ValenceError reports an atom with more bonds than its valence allows (pentavalent carbon and

@@ -3,41 +3,57 @@ package judge
 import (
 	"fmt"
 	"math"
-	"strconv"
 	"testing"
 )
 
-// TestFixedAndSignedWriteWhatFmtWrites: the reason texts built without fmt read exactly as the
-// fmt verbs they replace (%.Nf, %+.Nf, %.3g), including rounding halves, negative zero and the
-// non-finite values (formatting rules of the Go standard library, common practice).
-func TestFixedAndSignedWriteWhatFmtWrites(t *testing.T) {
-	vals := []float64{0, math.Copysign(0, -1), 0.05, 0.15, 0.25, -0.05, 1.45, 2.5, -2.5, 273.15, -13.049999,
-		1e21, 4.2e-9, 123456.789, math.Inf(1), math.Inf(-1), math.NaN()}
+// TestJoinWritesWhatFmtWrites: the reason texts built without fmt read exactly as the fmt verbs
+// they replace (%.Nf, %+.Nf, %.3g), including rounding halves, negative zero and the non-finite
+// values (formatting rules of the Go standard library, common practice).
+func TestJoinWritesWhatFmtWrites(t *testing.T) {
+	vals := []float64{0, math.Copysign(0, -1), 0.05, 0.15, 0.25, -0.05, -0.04, 1.45, 2.5, -2.5, 273.15, -13.049999,
+		1e21, 4.2e-9, 1e-5, 123456.789, math.Inf(1), math.Inf(-1), math.NaN()}
+	blk := &judged{}
+	blk.text = blk.textArr[:0]
 	for _, v := range vals {
-		for _, p := range []int{0, 1, 2} {
-			if got, want := fixed(v, p), fmt.Sprintf("%.*f", p, v); got != want {
-				t.Errorf("fixed(%v, %d) = %q, fmt writes %q", v, p, got, want)
+		for _, p := range []int{0, 1, 2, 3} {
+			if got, want := blk.join("a ", fix(v, p), " b"), fmt.Sprintf("a %.*f b", p, v); got != want {
+				t.Errorf("fix(%v, %d) = %q, fmt writes %q", v, p, got, want)
 			}
-			if got, want := signed(v, p), fmt.Sprintf("%+.*f", p, v); got != want {
-				t.Errorf("signed(%v, %d) = %q, fmt writes %q", v, p, got, want)
+			if got, want := blk.join(plus(v, p)), fmt.Sprintf("%+.*f", p, v); got != want {
+				t.Errorf("plus(%v, %d) = %q, fmt writes %q", v, p, got, want)
+			}
+			if got, want := blk.join(sig(v, p), "|"), fmt.Sprintf("%.*g|", p, v); got != want {
+				t.Errorf("sig(%v, %d) = %q, fmt writes %q", v, p, got, want)
 			}
 		}
-		// the concentration in the ΔG_p reason: strconv's 'g' with three digits for %.3g
-		if got, want := strconv.FormatFloat(v, 'g', 3, 64), fmt.Sprintf("%.3g", v); got != want {
-			t.Errorf("%%.3g of %v: strconv %q, fmt %q", v, got, want)
+	}
+	if got := blk.join(); got != "" {
+		t.Errorf("join of nothing = %q", got)
+	}
+}
+
+// TestJoinKeepsEarlierTexts: texts taken from a block's buffer stay as they were while later
+// texts fill the buffer, outgrow its room in the block and move to arrays of their own.
+func TestJoinKeepsEarlierTexts(t *testing.T) {
+	blk := &judged{}
+	blk.text = blk.textArr[:0]
+	var got, want []string
+	for i := 0; len(blk.text) < 4*textRoom; i++ {
+		s := blk.join("text ", fix(float64(i), 0), " of a result; ")
+		got = append(got, s)
+		want = append(want, fmt.Sprintf("text %d of a result; ", i))
+	}
+	for i := range got {
+		if got[i] != want[i] {
+			t.Fatalf("text %d reads %q after later texts, want %q", i, got[i], want[i])
 		}
 	}
 }
 
-// TestAroundAndMainReasons: around joins its parts as concatenation with fixed would, and the
-// main reasons list blocking, then penalizing, then favoring codes (notes left out), each
-// with its group in parentheses, joined by "; " (design choice: the CSV column's format).
-func TestAroundAndMainReasons(t *testing.T) {
-	for _, v := range []float64{0, 1523.8557, -137.5328, 0.9995, math.Inf(1)} {
-		if got, want := around("T_c = ", v, 0, " K"), "T_c = "+fixed(v, 0)+" K"; got != want {
-			t.Errorf("around(%v) = %q, want %q", v, got, want)
-		}
-	}
+// TestMainReasons: the main reasons list blocking, then penalizing, then favoring codes (notes
+// left out), each with its group in parentheses, joined by "; " (design choice: the CSV
+// column's format).
+func TestMainReasons(t *testing.T) {
 	r := &Result{Reasons: []Reason{
 		{Code: "high_ring_strain", Effect: EffectFavors},
 		{Code: "ceiling_temp_extrapolated", Effect: EffectNote},

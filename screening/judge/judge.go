@@ -4,10 +4,9 @@
 package judge
 
 import (
-	"fmt"
 	"math"
-	"strconv"
 	"strings"
+	"unsafe"
 
 	"ringsieve/screening/describe"
 	"ringsieve/screening/internal/numfmt"
@@ -87,6 +86,7 @@ const measuredDSUncertainty = 7.5
 // conditions; it sets verdict, score and cautions.
 func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Result {
 	blk := new(judged)
+	blk.text = blk.textArr[:0]
 	r := Result{
 		Descriptors:           *d,
 		EngineVersion:         EngineVersion,
@@ -102,7 +102,7 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 	if d.RingSize == 0 {
 		r.Verdict = VerdictNotMonomer
 		r.Score = 0
-		r.Cautions = cautions(d, nil, c, r.Verdict)
+		r.Cautions = cautions(d, nil, c, r.Verdict, blk)
 		return r
 	}
 	// the numbers the verdict uses: the measurement where there is one, else the estimate
@@ -145,7 +145,7 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 	if m := e.Measured; m != nil {
 		th.Measured = &thermo.MeasuredOut{DHkJmol: m.DH, DSJmolK: m.DS, Source: m.Source, Evidence: m.Evidence, Note: m.Note}
 		r.Reasons = append(r.Reasons, Reason{Code: "measured_value_used", Effect: EffectNote, Value: blk.value(e.DHkJmol - m.DH), Unit: "kJ/mol",
-			Detail: fmt.Sprintf("a published measurement of this structure is used (ΔH_p %.1f kJ/mol, %s); the model's own estimate, made without it, is %.1f kJ/mol", m.DH, m.Source, e.DHkJmol)})
+			Detail: blk.join("a published measurement of this structure is used (ΔH_p ", fix(m.DH, 1), " kJ/mol, ", m.Source, "); the model's own estimate, made without it, is ", fix(e.DHkJmol, 1), " kJ/mol")})
 		if e.MeasuredNote != "" {
 			r.Reasons = append(r.Reasons, Reason{Code: "measured_stereoisomer", Effect: EffectNote, Detail: e.MeasuredNote})
 		}
@@ -153,7 +153,7 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 	if th.CeilingTempExtrapolated {
 		v := *th.CeilingTempK
 		r.Reasons = append(r.Reasons, Reason{Code: "ceiling_temp_extrapolated", Effect: EffectNote, Value: blk.value(v), Unit: "K",
-			Detail: around("T_c = ", v, 0, " K lies far outside any measured ceiling temperature (200–500 K): a formal number, read it as \"no ceiling in practice\" or \"never above\"")})
+			Detail: blk.join("T_c = ", fix(v, 0), " K lies far outside any measured ceiling temperature (200–500 K): a formal number, read it as \"no ceiling in practice\" or \"never above\"")})
 	}
 	r.Thermo = th
 	r.Reasons = strainReasons(d, e, r.Reasons, blk)
@@ -173,27 +173,29 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 	case ringChain && conv <= 0:
 		v := *th.CriticalConcMolL
 		r.Reasons = append(r.Reasons, Reason{Code: "below_critical_concentration", Effect: EffectPenalizes, Value: blk.value(v), Unit: "mol/L",
-			Detail: fmt.Sprintf("%.3g mol/L is below the ring–chain critical concentration %.3g mol/L (Jacobson–Stockmayer model estimate): a concentration floor, not a temperature ceiling — cyclic oligomers, no high polymer; raise the concentration", float64(c.Conc), v)})
+			Detail: blk.join(sig(float64(c.Conc), 3), " mol/L is below the ring–chain critical concentration ", sig(v, 3), " mol/L (Jacobson–Stockmayer model estimate): a concentration floor, not a temperature ceiling — cyclic oligomers, no high polymer; raise the concentration")})
 	case ringChain:
 		v := *th.CriticalConcMolL
 		r.Reasons = append(r.Reasons, Reason{Code: "above_critical_concentration", Effect: EffectFavors, Value: blk.value(v), Unit: "mol/L",
-			Detail: fmt.Sprintf("entropy-driven ring–chain equilibrium: %.3g mol/L is above the critical concentration %.3g mol/L, so %.0f%% of the monomer units can go into chains (model estimate)", float64(c.Conc), v, 100*conv)})
+			Detail: blk.join("entropy-driven ring–chain equilibrium: ", sig(float64(c.Conc), 3), " mol/L is above the critical concentration ", sig(v, 3), " mol/L, so ", fix(100*conv, 0), "% of the monomer units can go into chains (model estimate)")})
 	case th.DGkJmol >= 0:
-		det := "ΔG_p = " + signed(th.DGkJmol, 1) + " kJ/mol at " + fixed(c.Temp.Celsius(), 1) + " °C and " + strconv.FormatFloat(float64(c.Conc), 'g', 3, 64) + " mol/L: the monomer is favoured over polymer"
+		var det string
 		if th.CeilingTempK != nil {
-			det += " (ceiling temperature " + fixed(*th.CeilingTempK, 0) + " K at this concentration)"
+			det = blk.join("ΔG_p = ", plus(th.DGkJmol, 1), " kJ/mol at ", fix(c.Temp.Celsius(), 1), " °C and ", sig(float64(c.Conc), 3), " mol/L: the monomer is favoured over polymer (ceiling temperature ", fix(*th.CeilingTempK, 0), " K at this concentration)")
+		} else {
+			det = blk.join("ΔG_p = ", plus(th.DGkJmol, 1), " kJ/mol at ", fix(c.Temp.Celsius(), 1), " °C and ", sig(float64(c.Conc), 3), " mol/L: the monomer is favoured over polymer")
 		}
 		r.Reasons = append(r.Reasons, Reason{Code: "above_ceiling_temperature", Effect: EffectPenalizes, Value: blk.value(th.DGkJmol), Unit: "kJ/mol", Detail: det})
 	case conv < PolymerizesConversion:
 		r.Reasons = append(r.Reasons, Reason{Code: "equilibrium_monomer", Effect: EffectPenalizes, Value: blk.value(conv), Unit: "fraction",
-			Detail: fmt.Sprintf("equilibrium conversion %.2f ([M]eq = %.3g mol/L): raise the concentration or lower the temperature", conv, th.EqMonomerMolL)})
+			Detail: blk.join("equilibrium conversion ", fix(conv, 2), " ([M]eq = ", sig(th.EqMonomerMolL, 3), " mol/L): raise the concentration or lower the temperature")})
 	default:
 		r.Reasons = append(r.Reasons, Reason{Code: "favorable_equilibrium", Effect: EffectFavors, Value: blk.value(conv), Unit: "fraction",
-			Detail: around("equilibrium conversion ", conv, 3, " at these conditions")})
+			Detail: blk.join("equilibrium conversion ", fix(conv, 3), " at these conditions")})
 	}
 	if uG > 0 && math.Abs(th.DGkJmol) < uG && !ringChain {
 		r.Reasons = append(r.Reasons, Reason{Code: "verdict_near_boundary", Effect: EffectNote, Value: blk.value(uG), Unit: "kJ/mol",
-			Detail: "|ΔG_p| = " + fixed(math.Abs(th.DGkJmol), 1) + " kJ/mol is within its uncertainty (±" + fixed(uG, 1) + " kJ/mol): the ceiling temperature lies within the uncertainty band of the working temperature; treat the verdict as uncertain"})
+			Detail: blk.join("|ΔG_p| = ", fix(math.Abs(th.DGkJmol), 1), " kJ/mol is within its uncertainty (±", fix(uG, 1), " kJ/mol): the ceiling temperature lies within the uncertainty band of the working temperature; treat the verdict as uncertain")})
 	}
 	// verdict
 	blocked := false
@@ -230,31 +232,92 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 	floor := scoreFloor(r.Verdict)
 	r.Score = math.Max(floor, r.Score-0.3*math.Min(penalty, 1))
 	r.Score = round(r.Score, 4)
-	r.Cautions = cautions(d, th, c, r.Verdict)
+	r.Cautions = cautions(d, th, c, r.Verdict, blk)
 	return r
 }
 
 // judged holds in one allocation what a judged result points to: its thermodynamics, the
 // estimate's summary, the reasons' first backing array (most results have 3 to 9 reasons: a
-// longer list moves to an array of its own) and the reasons' values. The result keeps the block
-// alive as long as it refers to any part of it.
+// longer list moves to an array of its own), the reasons' values, the cautions' array and the
+// texts written for this result. The result keeps the block alive as long as it refers to any
+// part of it.
 type judged struct {
-	th      thermo.Thermo
-	est     thermo.EstimateOut
-	reasons [8]Reason
-	values  [6]float64
-	nValues int
+	th       thermo.Thermo
+	est      thermo.EstimateOut
+	reasons  [8]Reason
+	cautions [6]string
+	values   [6]float64
+	nValues  int
+	// text holds the texts written for this result (textArr until it is full); see join
+	text    []byte
+	textArr [textRoom]byte
 }
+
+// textRoom is the room for a result's own texts inside its block: a typical result writes two
+// to four reason and caution texts of 50–250 bytes (longer ones move to an array of their own).
+const textRoom = 640
 
 // value returns a pointer to v kept in the block while it has room, else to a copy of its own.
 func (b *judged) value(v float64) *float64 {
 	if b.nValues == len(b.values) {
-		return &v
+		p := new(float64) // not &v: that would move every call's v to the heap
+		*p = v
+		return p
 	}
 	p := &b.values[b.nValues]
 	*p = v
 	b.nValues++
 	return p
+}
+
+// part is one piece of a text built by join: a string, or a number written with prec digits
+// ('f': decimals, 'g': significant digits, '+': decimals with a sign before a value that is not
+// negative, as fmt's %+.<prec>f).
+type part struct {
+	s    string
+	v    float64
+	prec int
+	verb byte
+}
+
+// fix, sig and plus are the number parts of a text: v with prec decimals (fmt's %.<prec>f), v
+// with prec significant digits (%.<prec>g) and fix with a sign (%+.<prec>f).
+func fix(v float64, prec int) part  { return part{v: v, prec: prec, verb: 'f'} }
+func sig(v float64, prec int) part  { return part{v: v, prec: prec, verb: 'g'} }
+func plus(v float64, prec int) part { return part{v: v, prec: prec, verb: '+'} }
+
+// join writes the texts and number parts (string, fix, sig or plus) one after another into the
+// block's text buffer and returns them as one string that shares the buffer: those bytes are
+// never written again (later texts go after them, and a buffer that must grow moves to a new
+// array, leaving the old one to the strings that point into it), so the string stays as
+// immutable as any other. One allocation per result block instead of one per text.
+func (b *judged) join(parts ...any) string {
+	from := len(b.text)
+	for _, p := range parts {
+		switch p := p.(type) {
+		case string:
+			b.text = append(b.text, p...)
+		case part:
+			switch p.verb {
+			case 'g':
+				b.text = numfmt.AppendSig(b.text, p.v, p.prec)
+			case '+':
+				at := len(b.text)
+				b.text = numfmt.AppendFixed(b.text, p.v, p.prec)
+				if c := b.text[at]; c != '-' && c != '+' { // "+" before what is not written with a sign
+					b.text = append(b.text, 0)
+					copy(b.text[at+1:], b.text[at:])
+					b.text[at] = '+'
+				}
+			default:
+				b.text = numfmt.AppendFixed(b.text, p.v, p.prec)
+			}
+		}
+	}
+	if len(b.text) == from {
+		return ""
+	}
+	return unsafe.String(&b.text[from], len(b.text)-from)
 }
 
 func thermoMethodOrAuto(m units.ThermoMethod) units.ThermoMethod {
@@ -297,8 +360,8 @@ const DefaultHydrocarbonCp = 1.8
 // qualified practice (romp_facts.md section d.3 lists the hazards drawn on here).
 const CautionDefer = "These are screening estimates, not a hazard assessment: local codes, your site's process-safety review, the supplier's safety data sheets and qualified practice decide."
 
-func cautions(d *describe.Descriptors, th *thermo.Thermo, c units.Conditions, verdict string) []string {
-	out := make([]string, 0, 6)
+func cautions(d *describe.Descriptors, th *thermo.Thermo, c units.Conditions, verdict string, blk *judged) []string {
+	out := blk.cautions[:0]
 	if th != nil && th.DHkJmol < 0 && (verdict == VerdictPolymerizes || verdict == VerdictEquilibrium) {
 		q := 0.0
 		if th.HeatReleasedJG != nil {
@@ -307,9 +370,9 @@ func cautions(d *describe.Descriptors, th *thermo.Thermo, c units.Conditions, ve
 		switch {
 		case c.Bulk && q > 0:
 			rise := q * th.EqConversion / DefaultHydrocarbonCp
-			out = append(out, fmt.Sprintf("Bulk polymerization releases about %.0f J per gram of monomer; with no heat loss the mixture could rise by about %.0f K (heat capacity %.1f J/(g K) assumed). Fast catalysts release most of it within seconds to minutes and gelation stops stirring: treat it as a possible runaway, add monomer or catalyst in portions, and provide cooling.", q, rise, DefaultHydrocarbonCp))
+			out = append(out, blk.join("Bulk polymerization releases about ", fix(q, 0), " J per gram of monomer; with no heat loss the mixture could rise by about ", fix(rise, 0), " K (heat capacity ", fix(DefaultHydrocarbonCp, 1), " J/(g K) assumed). Fast catalysts release most of it within seconds to minutes and gelation stops stirring: treat it as a possible runaway, add monomer or catalyst in portions, and provide cooling."))
 		case th.DHkJmol <= -40:
-			out = append(out, "Strongly exothermic ring opening (ΔH_p ≈ "+f0(th.DHkJmol)+" kJ/mol): at high concentration or in bulk the heat can outrun cooling. Add catalyst or monomer gradually and watch the temperature.")
+			out = append(out, blk.join("Strongly exothermic ring opening (ΔH_p ≈ ", fix(th.DHkJmol, 0), " kJ/mol): at high concentration or in bulk the heat can outrun cooling. Add catalyst or monomer gradually and watch the temperature."))
 		}
 	}
 	if d.RingSize > 0 && d.MolWeightGmol > 0 && d.MolWeightGmol < VolatileMolarMassG && d.HeavyAtoms > 0 &&
@@ -379,29 +442,4 @@ func MoreReactive(a, b *Result) bool {
 func OutOf(c units.Conditions) ConditionsOut {
 	return ConditionsOut{TemperatureC: round(c.Temp.Celsius(), 4), TemperatureK: float64(c.Temp),
 		MonomerConcMolL: float64(c.Conc), Bulk: c.Bulk, Catalyst: string(c.Catalyst), ThermoMethod: string(thermoMethodOrAuto(c.ThermoMethod))}
-}
-
-// fixed writes v with prec decimals, as fmt's %.<prec>f does (reason texts on the hot path are
-// built without fmt).
-func fixed(v float64, prec int) string {
-	var stack [32]byte
-	return string(numfmt.AppendFixed(stack[:0], v, prec))
-}
-
-// around is prefix + fixed(v, prec) + suffix, built in one buffer (reason texts are on the hot
-// path).
-func around(prefix string, v float64, prec int, suffix string) string {
-	var stack [256]byte
-	b := append(stack[:0], prefix...)
-	b = numfmt.AppendFixed(b, v, prec)
-	return string(append(b, suffix...))
-}
-
-// signed is fixed with a plus sign before a value that is not negative, as fmt's %+.<prec>f.
-func signed(v float64, prec int) string {
-	s := fixed(v, prec)
-	if s[0] != '-' && s[0] != '+' {
-		s = "+" + s
-	}
-	return s
 }

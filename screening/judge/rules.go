@@ -225,21 +225,18 @@ func strainReasons(d *describe.Descriptors, e *thermo.Estimate, out []Reason, bl
 	switch {
 	case e.Basis == thermo.BasisRingChain:
 		return append(out, Reason{Code: "strain_free_macrocycle", Effect: EffectNote, Value: v, Unit: "kJ/mol",
-			Detail: around("strain-free macrocycle (ΔH_p ≈ ", dh, 0, " kJ/mol): entropy, not strain, drives its ring opening")})
+			Detail: blk.join("strain-free macrocycle (ΔH_p ≈ ", fix(dh, 0), " kJ/mol): entropy, not strain, drives its ring opening")})
 	case dh <= -40 && d.RingSystem == describe.SystemBridged:
 		return append(out, Reason{Code: "bridged_bicyclic_strain", Effect: EffectFavors, Value: v, Unit: "kJ/mol",
-			Detail: around("strained bridged bicyclic ring: ΔH_p ≈ ", dh, 0, " kJ/mol drives polymerization")})
+			Detail: blk.join("strained bridged bicyclic ring: ΔH_p ≈ ", fix(dh, 0), " kJ/mol drives polymerization")})
 	case dh <= -40:
 		return append(out, Reason{Code: "high_ring_strain", Effect: EffectFavors, Value: v, Unit: "kJ/mol",
-			Detail: around("high ring strain: ΔH_p ≈ ", dh, 0, " kJ/mol")})
+			Detail: blk.join("high ring strain: ΔH_p ≈ ", fix(dh, 0), " kJ/mol")})
 	case dh <= -15:
 		return append(out, Reason{Code: "moderate_ring_strain", Effect: EffectNote, Value: v, Unit: "kJ/mol",
-			Detail: around("moderate ring strain: ΔH_p ≈ ", dh, 0, " kJ/mol; the ceiling temperature and concentration matter")})
+			Detail: blk.join("moderate ring strain: ΔH_p ≈ ", fix(dh, 0), " kJ/mol; the ceiling temperature and concentration matter")})
 	default:
 		return append(out, Reason{Code: "low_ring_strain", Effect: EffectPenalizes, Penalty: 0.1, Value: v, Unit: "kJ/mol",
-			Detail: around("little ring strain: ΔH_p ≈ ", dh, 0, " kJ/mol")})
+			Detail: blk.join("little ring strain: ΔH_p ≈ ", fix(dh, 0), " kJ/mol")})
 	}
 }
-
-// f0 formats a number with no decimals (strconv: the reason texts are on the hot path).
-func f0(x float64) string { return fixed(x, 0) }
