@@ -3,6 +3,7 @@ package describe
 import (
 	"sort"
 
+	"ringsieve/screening/internal/memo"
 	"ringsieve/screening/mol"
 	"ringsieve/screening/rings"
 )
@@ -176,14 +177,19 @@ func (g graph) isocyanideN(a int) bool {
 
 // FunctionalGroups returns the sorted set of functional groups found in the atoms of comp
 // (indices into m), with the rings r perceived on m. The ring olefins themselves are not listed.
+// The list is shared with every other structure that has the same groups: read it, never change
+// it.
 func FunctionalGroups(m *mol.Molecule, r *rings.Rings, comp []int) []string {
 	g := graph{m, r}
 	p := r
-	found := groupSet{}
+	var found groupSet
 	for _, a := range comp {
 		at := &m.Atoms[a]
 		nb := m.HeavyNbrs(a)
-		h := m.TotalH(a)
+		h := 0 // hydrogens: read by every case but carbon's
+		if at.Z != 6 {
+			h = m.TotalH(a)
+		}
 		switch at.Z {
 		case 8:
 			if len(nb) == 0 && h == 2 {
@@ -465,23 +471,58 @@ func FunctionalGroups(m *mol.Molecule, r *rings.Rings, comp []int) []string {
 			}
 		}
 	}
-	return found.sorted()
+	return found.shared()
 }
 
-// groupSet is a small set of group names (a few per molecule): a slice, not a map.
-type groupSet struct{ names []string }
+// groupSet is a small set of group names (a few per molecule): an array with room for every
+// known group, kept on the caller's stack (a slice grown through the set's pointer would move to
+// the heap).
+type groupSet struct {
+	n     int
+	names [maxGroups]string
+}
+
+// maxGroups is the room of a groupSet: at least len(KnownFunctionalGroups)
+// (TestGroupSetHoldsEveryGroup).
+const maxGroups = 48
+
+// groupLists holds every group list handed out, keyed by its names in order (a few hundred
+// combinations occur in practice; design choice: 4,096, then the cache starts afresh).
+var groupLists = memo.New[[]string](4096)
+
+// shared returns the set's names sorted, as a list shared by every structure with the same
+// groups: read it, never change it (its capacity is its length, so an append copies). A set
+// seen before costs no allocation. Nil when there are none.
+func (s *groupSet) shared() []string {
+	if s.n == 0 {
+		return nil
+	}
+	names := s.names[:s.n]
+	sort.Strings(names)
+	var stack [512]byte
+	key := stack[:0]
+	for _, g := range names {
+		key = append(append(key, g...), ',')
+	}
+	return groupLists.DoBytes(key, func(string) []string {
+		out := make([]string, len(names)) // a copy made by hand: slices.Clone's result would alias the set for the escape analysis and move it to the heap
+		copy(out, names)
+		return out
+	})
+}
 
 func (s *groupSet) add(g string) {
-	for _, x := range s.names {
+	for _, x := range s.names[:s.n] {
 		if x == g {
 			return
 		}
 	}
-	s.names = append(s.names, g)
+	s.names[s.n] = g
+	s.n++
 }
 
 func (s *groupSet) has(g string) bool {
-	for _, x := range s.names {
+	for _, x := range s.names[:s.n] {
 		if x == g {
 			return true
 		}
@@ -489,7 +530,4 @@ func (s *groupSet) has(g string) bool {
 	return false
 }
 
-func (s *groupSet) sorted() []string {
-	sort.Strings(s.names)
-	return s.names
-}
+

@@ -426,7 +426,7 @@ func (s *Structure) analyse(bi int) *Olefin {
 	d.RingSize = p.BondRingSize[bi]
 	d.RingSystem = rings.Kind(p.SSSR, system)
 	d.RingSystemRings = len(system)
-	d.FunctionalGroups = append([]string(nil), s.Groups...)
+	d.FunctionalGroups = s.Groups // shared, never changed (FunctionalGroups)
 	// substitution and conjugation
 	var conj uint8 // bit k: conjugated with conjKinds[k]
 	for _, end := range []int{o.A, o.B} {

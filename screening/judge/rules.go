@@ -148,15 +148,15 @@ func ruleCatalystGroups(in ruleInput, out []Reason) []Reason {
 		if code == TolTolerated {
 			continue
 		}
-		key := g + "|" + string(in.Cond.Catalyst)
-		detail, ok := groupDetail.Get(key)
-		if !ok {
-			detail = fmt.Sprintf("%s with %s: %s", strings.ReplaceAll(g, "_", " "), in.Cond.Catalyst, code)
+		var stack [96]byte
+		key := append(append(append(stack[:0], g...), '|'), in.Cond.Catalyst...)
+		detail := groupDetail.DoBytes(key, func(string) string {
+			detail := fmt.Sprintf("%s with %s: %s", strings.ReplaceAll(g, "_", " "), in.Cond.Catalyst, code)
 			if remedy != "" {
 				detail += "; " + remedy
 			}
-			groupDetail.Put(key, detail)
-		}
+			return detail
+		})
 		switch {
 		case blocksHomopolymer(code, g):
 			out = append(out, Reason{Code: "catalyst_incompatible_group", Effect: EffectBlocks, Group: g, Detail: detail})

@@ -1,6 +1,7 @@
 package rings
 
 import (
+	"math/bits"
 	"slices"
 	"sort"
 )
@@ -96,6 +97,28 @@ func Atoms(rings []Ring, idx []int) []int {
 // AppendAtoms appends the sorted atoms of the rings listed by index to dst and returns the
 // extended slice.
 func AppendAtoms(dst []int, rings []Ring, idx []int) []int {
+	// atoms numbered below 256 (nearly every monomer): a bit set, read out in order — sorted and
+	// without duplicates by construction
+	var set [4]uint64
+	small := true
+	for _, i := range idx {
+		for _, a := range rings[i].Atoms {
+			if uint(a) >= 256 {
+				small = false
+				break
+			}
+			set[a>>6] |= 1 << uint(a&63)
+		}
+	}
+	if small {
+		for w, bitsLeft := range set {
+			for bitsLeft != 0 {
+				dst = append(dst, w<<6|bits.TrailingZeros64(bitsLeft))
+				bitsLeft &= bitsLeft - 1
+			}
+		}
+		return dst
+	}
 	start := len(dst)
 	for _, i := range idx {
 		for _, a := range rings[i].Atoms {
