@@ -529,5 +529,3 @@ func (s *groupSet) has(g string) bool {
 	}
 	return false
 }
-
-
