@@ -17,6 +17,7 @@ import (
 
 	"ringsieve/screening/depict"
 	"ringsieve/screening/describe"
+	"ringsieve/screening/internal/memo"
 	"ringsieve/screening/judge"
 	"ringsieve/screening/molfile"
 	"ringsieve/screening/smiles"
@@ -284,8 +285,7 @@ func ScreenStructureContext(ctx context.Context, s *Structure, c Conditions) (Re
 		best.Reasons = append(best.Reasons, *bulkNote)
 	}
 	if len(s.CounterIons) > 0 {
-		best.Reasons = append(best.Reasons, Reason{Code: "counter_ion", Effect: judge.EffectNote,
-			Detail: "salt: screened the largest organic component; other components: " + strings.Join(s.CounterIons, "; ")})
+		best.Reasons = append(best.Reasons, Reason{Code: "counter_ion", Effect: judge.EffectNote, Detail: saltDetail(s.CounterIons)})
 	}
 	return best, nil
 }
@@ -371,4 +371,22 @@ func ScreenDescriptors(d Descriptors, c Conditions) (Result, error) {
 	}
 	e := thermo.EstimateRecord(&d)
 	return judge.Judge(&d, &e, c), nil
+}
+
+// saltTexts holds the counter_ion reason's text per list of other components (design choice:
+// 4,096 lists, then the cache starts afresh).
+var saltTexts = memo.New[string](4096)
+
+// saltDetail is the counter_ion reason's text for the other components' formulas.
+func saltDetail(ions []string) string {
+	const lead = "salt: screened the largest organic component; other components: "
+	var stack [320]byte
+	b := append(stack[:0], lead...)
+	for i, f := range ions {
+		if i > 0 {
+			b = append(b, "; "...)
+		}
+		b = append(b, f...)
+	}
+	return saltTexts.DoBytes(b, func(text string) string { return text })
 }

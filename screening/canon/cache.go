@@ -143,6 +143,7 @@ var keyMemo = memo.New[string](50000)
 func ResetCache() {
 	keyMemo.Reset()
 	structureMemo.Reset()
+	signedMemo.Reset()
 }
 
 // structureMemo caches structure keys by full written signature (20,000 entries: a design
@@ -159,6 +160,25 @@ func CachedStructureKey(m *mol.Molecule, r *rings.Rings, atoms []int) string {
 	var stack [1024]byte
 	sig := appendSignature(stack[:0], m, r, atoms, -1, "|structure", true)
 	return structureMemo.DoBytes(sig, func(string) string { return StructureKey(m, r, atoms) })
+}
+
+// signedSubgraph is a written signature kept as a string together with its subgraph's key.
+type signedSubgraph struct{ sig, key string }
+
+// signedMemo holds the signatures SignatureAndKey handed out with their keys, so that every
+// structure with one ring system shares the signature's string (the bound of keyMemo).
+var signedMemo = memo.New[signedSubgraph](50000)
+
+// SignatureAndKey returns the written signature of atoms (no skipped bond, no suffix) and
+// CachedSkeletonKey's key for it. The signature is a string shared by every subgraph written
+// alike: a signature seen before costs no allocation.
+func SignatureAndKey(m *mol.Molecule, r *rings.Rings, atoms []int) (sig, key string) {
+	var stack [512]byte
+	b := AppendWrittenSignature(stack[:0], m, r, atoms, -1, "")
+	e := signedMemo.DoBytes(b, func(sig string) signedSubgraph {
+		return signedSubgraph{sig, KeyForSignature(sig, m, r, atoms, -1)}
+	})
+	return e.sig, e.key
 }
 
 // CachedSkeletonKey is SkeletonKey with the written-subgraph cache.

@@ -4,6 +4,7 @@ import (
 	"math"
 	"strings"
 
+	"ringsieve/screening/internal/memo"
 	"ringsieve/screening/mol"
 	"ringsieve/screening/units"
 )
@@ -38,10 +39,10 @@ func (s *Structure) MoleculeDescriptors() Descriptors {
 			}
 		}
 	}
-	formula, weight := m.FormulaOf(s.Main), m.MolWeightOf(s.Main)
+	formula, weight := formulaOf(m, s.Main), m.MolWeightOf(s.Main)
 	recordFormula, recordWeight := formula, weight
 	if len(s.Main) != len(m.Atoms) { // counter-ions or other components: the record differs
-		recordFormula, recordWeight = m.Formula(), m.MolWeight()
+		recordFormula, recordWeight = formulaOf(m, nil), m.MolWeight()
 	}
 	return Descriptors{
 		FromStructure:       true,
@@ -154,4 +155,15 @@ func (s *Structure) BulkConcentration() (conc units.ConcMolL, relUnc float64, ok
 	}
 	molarVolume := LiquidVolumeFactor * v // mL/mol
 	return units.ConcMolL(1000 / molarVolume), liquidVolumeRelUnc, true
+}
+
+// formulas holds the formula texts handed out, so that every structure with one formula shares
+// its string (design choice: 65,536 formulas, then the cache starts afresh).
+var formulas = memo.New[string](1 << 16)
+
+// formulaOf is m.FormulaOf(atoms) as a shared string: a formula seen before costs no
+// allocation.
+func formulaOf(m *mol.Molecule, atoms []int) string {
+	var stack [64]byte
+	return formulas.DoBytes(m.AppendFormulaOf(stack[:0], atoms), func(k string) string { return k })
 }

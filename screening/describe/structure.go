@@ -10,6 +10,7 @@ import (
 	"sync"
 
 	"ringsieve/screening/canon"
+	"ringsieve/screening/internal/memo"
 	"ringsieve/screening/mol"
 	"ringsieve/screening/rings"
 	"ringsieve/screening/smiles"
@@ -22,7 +23,7 @@ type Structure struct {
 	Rings       *rings.Rings
 	Main        []int // atoms of the screened component
 	MainSMILES  string
-	CounterIons []string // formulas of the other components
+	CounterIons []string // formulas of the other components (a shared list: read, never change)
 	Groups      []string // functional-group inventory of the main component
 	Olefins     []*Olefin
 	Skipped     int     // ring olefins beyond MaxOlefinsAnalysed, not analysed
@@ -324,13 +325,35 @@ func (s *Structure) pickMain(text string) {
 	} else {
 		s.MainSMILES = text
 	}
+	// the other components' formulas, as a list shared by every structure with the same ones
+	var stack [256]byte
+	key := stack[:0]
 	for ci := 0; ci < m.NumComponents(); ci++ {
 		if ci == best {
 			continue
 		}
-		s.CounterIons = append(s.CounterIons, m.FormulaOf(m.Component(ci)))
+		if len(key) > 0 {
+			key = append(key, "; "...)
+		}
+		key = m.AppendFormulaOf(key, m.Component(ci))
+	}
+	if len(key) > 0 {
+		s.CounterIons = counterIonLists.DoBytes(key, func(string) []string {
+			var list []string
+			for ci := 0; ci < m.NumComponents(); ci++ {
+				if ci != best {
+					list = append(list, formulaOf(m, m.Component(ci)))
+				}
+			}
+			return slices.Clip(list)
+		})
 	}
 }
+
+// counterIonLists holds the counter-ion lists handed out, keyed by their formulas joined by
+// "; " (design choice: 4,096 combinations, then the cache starts afresh). A list is shared:
+// read it, never change it.
+var counterIonLists = memo.New[[]string](4096)
 
 // conjKinds lists the conjugation kinds in the order ConjugatedWith lists them (sorted by
 // name); the bits below index it.
@@ -343,6 +366,20 @@ const (
 	conjOlefinBit
 	conjRingOlefinBit
 )
+
+// conjLists holds, per set of conjugation bits, the kinds it names in conjKinds' order (nil for
+// none): one shared list per set, with capacity = length so an append copies.
+var conjLists = func() (out [1 << len(conjKinds)][]string) {
+	for set := range out {
+		for k, c := range conjKinds {
+			if set&(1<<k) != 0 {
+				out[set] = append(out[set], c)
+			}
+		}
+		out[set] = slices.Clip(out[set])
+	}
+	return out
+}()
 
 // ringAtomsBound is the number of atoms the rings listed hold, counted once per ring (a bound on
 // their distinct atoms).
@@ -469,11 +506,7 @@ func (s *Structure) analyse(bi int) *Olefin {
 			}
 		}
 	}
-	for k, c := range conjKinds { // sorted
-		if conj&(1<<k) != 0 {
-			d.ConjugatedWith = append(d.ConjugatedWith, c)
-		}
-	}
+	d.ConjugatedWith = conjLists[conj] // shared: read, never change
 	d.Conjugated = len(d.ConjugatedWith) > 0
 	// EWG on the olefin's own (smallest) ring
 	for _, a := range o.SmallRing {
@@ -556,13 +589,11 @@ func (s *Structure) analyse(bi int) *Olefin {
 	}
 	d.ExoEndo = s.exoEndo(o, inCore, inSystem)
 	d.TransRingFusion = s.transFusion(o, inSmall, inSystem)
-	o.Signature = canon.WrittenSignature(m, p, o.SystemAtoms, -1, "")
-	d.SkeletonKey = canon.KeyForSignature(o.Signature, m, p, o.SystemAtoms, -1)
+	o.Signature, d.SkeletonKey = canon.SignatureAndKey(m, p, o.SystemAtoms)
 	if len(o.CoreAtoms) == len(o.SystemAtoms) {
 		d.CoreKey = d.SkeletonKey // the core is the whole system
 	} else {
-		o.CoreSignature = canon.WrittenSignature(m, p, o.CoreAtoms, -1, "")
-		d.CoreKey = canon.KeyForSignature(o.CoreSignature, m, p, o.CoreAtoms, -1)
+		o.CoreSignature, d.CoreKey = canon.SignatureAndKey(m, p, o.CoreAtoms)
 	}
 	return o
 }

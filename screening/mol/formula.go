@@ -13,6 +13,12 @@ func (m *Molecule) Formula() string { return m.FormulaOf(nil) }
 
 // FormulaOf is Formula over the atoms listed (nil: all).
 func (m *Molecule) FormulaOf(atoms []int) string {
+	return string(m.AppendFormulaOf(make([]byte, 0, 32), atoms))
+}
+
+// AppendFormulaOf appends FormulaOf(atoms) to sb and returns the extended slice (a caller that
+// looks the formula up builds it on its stack).
+func (m *Molecule) AppendFormulaOf(sb []byte, atoms []int) []byte {
 	var counts [NumElements + 1]int32 // index 0: wildcard atoms
 	var zs [16]uint8                  // the elements present other than C and H, in order of first sight
 	present := zs[:0]
@@ -41,7 +47,6 @@ func (m *Molecule) FormulaOf(atoms []int) string {
 		present = append(present, 1)
 	}
 	slices.SortFunc(present, func(a, b uint8) int { return int(alphabeticalRank[a]) - int(alphabeticalRank[b]) })
-	sb := make([]byte, 0, 32)
 	write := func(sym string, n int32) {
 		if n == 0 {
 			return
@@ -70,7 +75,7 @@ func (m *Molecule) FormulaOf(atoms []int) string {
 	case charge < -1:
 		sb = strconv.AppendInt(sb, int64(charge), 10)
 	}
-	return string(sb)
+	return sb
 }
 
 // alphabeticalRank is each atomic number's place in the alphabetical order of the element

@@ -539,7 +539,8 @@ func exclusionKeyOf(s *describe.Structure) string {
 			heavy++
 		}
 	}
-	if !measuredHeavy()[heavy] || !measuredFormulas()[s.Mol.FormulaOf(s.Main)] {
+	var stack [64]byte
+	if !measuredHeavy()[heavy] || !measuredFormulas()[string(s.Mol.AppendFormulaOf(stack[:0], s.Main))] {
 		return ""
 	}
 	return ConstitutionKey(s)
