@@ -147,7 +147,7 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 		return streamStats{}, err
 	}
 	slices.SortFunc(rows, func(a, b compactRow) int {
-		if c := bytes.Compare(a.key[:], b.key[:]); c != 0 {
+		if c := batch.Compare(a.key, b.key); c != 0 {
 			return c
 		}
 		return a.seq - b.seq

@@ -1,7 +1,7 @@
 package batch
 
 import (
-	"bytes"
+	"cmp"
 	"encoding/binary"
 	"math"
 	"sort"
@@ -47,7 +47,19 @@ func FailedKey() Key {
 }
 
 // Less reports whether key a ranks before key b (equal keys keep submission order).
-func Less(a, b Key) bool { return bytes.Compare(a[:], b[:]) < 0 }
+func Less(a, b Key) bool { return Compare(a, b) < 0 }
+
+// Compare orders keys as bytes.Compare orders their bytes (−1, 0, +1), reading them as a byte
+// and two big-endian words: the ranking of a large list compares keys about 40 times per item.
+func Compare(a, b Key) int {
+	if a[0] != b[0] {
+		return cmp.Compare(a[0], b[0])
+	}
+	if x, y := binary.BigEndian.Uint64(a[1:9]), binary.BigEndian.Uint64(b[1:9]); x != y {
+		return cmp.Compare(x, y)
+	}
+	return cmp.Compare(binary.BigEndian.Uint64(a[9:17]), binary.BigEndian.Uint64(b[9:17]))
+}
 
 // sortable maps a float64 to a uint64 whose unsigned order is the numeric order (−0 and +0 map
 // alike).
@@ -82,7 +94,7 @@ func NewRow(seq int, r screening.Result, err error) Row {
 // Rank orders rows by the ranking rule (rank key, then submission sequence).
 func Rank(rows []Row) {
 	sort.Slice(rows, func(i, j int) bool {
-		if c := bytes.Compare(rows[i].Key[:], rows[j].Key[:]); c != 0 {
+		if c := Compare(rows[i].Key, rows[j].Key); c != 0 {
 			return c < 0
 		}
 		return rows[i].Seq < rows[j].Seq

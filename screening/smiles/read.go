@@ -242,16 +242,14 @@ func (r *smilesReader) read() error {
 			pendOrder, pendDir, pendArom, pendPos = mol.BondUnset, 0, false, -1
 		default:
 			pos := r.i
-			a, err := r.readAtom()
-			if err != nil {
+			idx := len(r.m.Atoms)
+			if err := r.appendAtom(); err != nil {
 				return err
 			}
-			if len(r.m.Atoms) >= mol.MaxAtoms {
+			if idx >= mol.MaxAtoms {
 				return smilesErr(pos, "more than %d atoms", mol.MaxAtoms)
 			}
-			a.Pos = pos
-			idx := len(r.m.Atoms)
-			r.m.Atoms = append(r.m.Atoms, a)
+			r.m.Atoms[idx].Pos = pos
 			if prev >= 0 {
 				order := pendOrder
 				b := mol.Bond{A: prev, B: idx, Order: order, Aromatic: pendArom, Pos: pendPos}
@@ -321,39 +319,38 @@ func (r *smilesReader) addBond(b mol.Bond) {
 	r.m.Bonds = append(r.m.Bonds, b)
 }
 
-func (r *smilesReader) readAtom() (mol.Atom, error) {
+// appendAtom reads the atom at r.i and appends it to the molecule (the organic subset written
+// in place: an atom is 120 bytes, and most atoms are C, N or O without brackets); on error it
+// appends nothing.
+func (r *smilesReader) appendAtom() error {
 	s := r.s
 	c := s[r.i]
-	if c == '[' {
-		return r.readBracket()
-	}
-	if c == '*' {
-		r.i++
-		return mol.Atom{Z: 0}, nil
-	}
-	if r.i+1 < len(s) {
-		if z := organicTwoZ(c, s[r.i+1]); z != 0 {
-			r.i += 2
-			return mol.Atom{Z: z}, nil
+	z, arom, n := 0, false, 1
+	switch {
+	case c == '[':
+		a, err := r.readBracket()
+		if err != nil {
+			return err
 		}
+		r.m.Atoms = append(r.m.Atoms, a)
+		return nil
+	case c == '*':
+	case r.i+1 < len(s) && organicTwoZ(c, s[r.i+1]) != 0:
+		z, n = organicTwoZ(c, s[r.i+1]), 2
+	case organicZ[c] != 0:
+		z = int(organicZ[c])
+	case c >= 'a' && c <= 'z' && organicZ[c-'a'+'A'] != 0 && organicZ[c-'a'+'A'] != 9 && organicZ[c-'a'+'A'] != 53:
+		z, arom = int(organicZ[c-'a'+'A']), true
+	case c == ']':
+		return smilesErr(r.i, "']' without '['")
+	case c > 127:
+		return smilesErr(r.i, "non-ASCII character")
+	default:
+		return smilesErr(r.i, "unexpected character %q", c)
 	}
-	if z := organicZ[c]; z != 0 {
-		r.i++
-		return mol.Atom{Z: int(z)}, nil
-	}
-	if c >= 'a' && c <= 'z' {
-		if z := organicZ[c-'a'+'A']; z != 0 && z != 9 && z != 53 {
-			r.i++
-			return mol.Atom{Z: int(z), Aromatic: true}, nil
-		}
-	}
-	if c == ']' {
-		return mol.Atom{}, smilesErr(r.i, "']' without '['")
-	}
-	if c > 127 {
-		return mol.Atom{}, smilesErr(r.i, "non-ASCII character")
-	}
-	return mol.Atom{}, smilesErr(r.i, "unexpected character %q", c)
+	r.i += n
+	r.m.Atoms = append(r.m.Atoms, mol.Atom{Z: z, Aromatic: arom})
+	return nil
 }
 
 // organicZ maps the one-letter symbols of the organic subset (B, C, N, O, P, S, F, I) to their
