@@ -4,6 +4,7 @@
 package judge
 
 import (
+	"fmt"
 	"math"
 	"strings"
 	"unsafe"
@@ -270,11 +271,10 @@ func (b *judged) value(v float64) *float64 {
 	return p
 }
 
-// part is one piece of a text built by join: a string, or a number written with prec digits
-// ('f': decimals, 'g': significant digits, '+': decimals with a sign before a value that is not
-// negative, as fmt's %+.<prec>f).
+// part is a number in a text built by join, written with prec digits ('f': decimals, 'g':
+// significant digits, '+': decimals with a sign before a value that is not written negative, as
+// fmt's %+.<prec>f).
 type part struct {
-	s    string
 	v    float64
 	prec int
 	verb byte
@@ -312,6 +312,8 @@ func (b *judged) join(parts ...any) string {
 			default:
 				b.text = numfmt.AppendFixed(b.text, p.v, p.prec)
 			}
+		default: // a programming error, never input: every caller passes literals of these types
+			panic(fmt.Sprintf("judge: join takes strings and number parts, not %T", p))
 		}
 	}
 	if len(b.text) == from {

@@ -325,6 +325,15 @@ func (r *smilesReader) addBond(b mol.Bond) {
 func (r *smilesReader) appendAtom() error {
 	s := r.s
 	c := s[r.i]
+	z2, lower := 0, uint8(0) // a two-letter symbol's Z; the Z of an aromatic one-letter atom
+	if r.i+1 < len(s) {
+		z2 = organicTwoZ(c, s[r.i+1])
+	}
+	if c >= 'a' && c <= 'z' {
+		if z := organicZ[c-'a'+'A']; z != 9 && z != 53 { // no aromatic f or i
+			lower = z
+		}
+	}
 	z, arom, n := 0, false, 1
 	switch {
 	case c == '[':
@@ -335,12 +344,12 @@ func (r *smilesReader) appendAtom() error {
 		r.m.Atoms = append(r.m.Atoms, a)
 		return nil
 	case c == '*':
-	case r.i+1 < len(s) && organicTwoZ(c, s[r.i+1]) != 0:
-		z, n = organicTwoZ(c, s[r.i+1]), 2
+	case z2 != 0:
+		z, n = z2, 2
 	case organicZ[c] != 0:
 		z = int(organicZ[c])
-	case c >= 'a' && c <= 'z' && organicZ[c-'a'+'A'] != 0 && organicZ[c-'a'+'A'] != 9 && organicZ[c-'a'+'A'] != 53:
-		z, arom = int(organicZ[c-'a'+'A']), true
+	case lower != 0:
+		z, arom = int(lower), true
 	case c == ']':
 		return smilesErr(r.i, "']' without '['")
 	case c > 127:
