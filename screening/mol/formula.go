@@ -1,7 +1,6 @@
 package mol
 
 import (
-	"slices"
 	"sort"
 	"strconv"
 )
@@ -46,13 +45,26 @@ func (m *Molecule) AppendFormulaOf(sb []byte, atoms []int) []byte {
 	if counts[6] == 0 && counts[1] > 0 {
 		present = append(present, 1)
 	}
-	slices.SortFunc(present, func(a, b uint8) int { return int(alphabeticalRank[a]) - int(alphabeticalRank[b]) })
-	write := func(sym string, n int32) {
-		if n == 0 {
-			return
+	// alphabetical by symbol: an insertion sort (a formula has a handful of elements)
+	for i := 1; i < len(present); i++ {
+		for j := i; j > 0 && alphabeticalRank[present[j]] < alphabeticalRank[present[j-1]]; j-- {
+			present[j], present[j-1] = present[j-1], present[j]
 		}
-		sb = append(sb, sym...)
-		if n > 1 {
+	}
+	write := func(sym string, n int32) {
+		switch {
+		case n == 0:
+			return
+		case n == 1:
+			sb = append(sb, sym...)
+		case n < 100: // the common counts, written in place
+			sb = append(sb, sym...)
+			if n >= 10 {
+				sb = append(sb, byte('0'+n/10))
+			}
+			sb = append(sb, byte('0'+n%10))
+		default:
+			sb = append(sb, sym...)
 			sb = strconv.AppendInt(sb, int64(n), 10)
 		}
 	}

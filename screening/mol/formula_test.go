@@ -1,6 +1,7 @@
 package mol_test
 
 import (
+	"strings"
 	"testing"
 
 	"ringsieve/screening/smiles"
@@ -24,6 +25,8 @@ func TestFormulaHillOrder(t *testing.T) {
 		{"[Fe+2]", "Fe+2"},
 		{"[Fe]", "Fe"},
 		{"[He]", "He"},
+		// counts of one, two and three digits (a C120 alkane: 2n+2 hydrogens, common practice)
+		{strings.Repeat("C", 120), "C120H242"},
 		// more distinct elements than the formula's first buffer holds
 		{"[Li].[Be].[B].[Na].[Mg].[Al].[Si].[P].[S].[Cl].[K].[Ca].[Sc].[Ti].[V].[Cr].[Mn].[Fe].[Co].[Ni].[Cu].[Zn].C", "CH4AlBBeCaClCoCrCuFeKLiMgMnNaNiPSScSiTiVZn"},
 	} {
