@@ -3,7 +3,6 @@ package judge
 import (
 	"cmp"
 	"slices"
-	"strings"
 
 	"ringsieve/screening/describe"
 	"ringsieve/screening/internal/memo"
@@ -131,13 +130,15 @@ var statusRank = map[string]int{TolTolerated: 0, TolConditional: 1, TolSlows: 2,
 // CompatibilityFor ranks every catalyst class for a functional-group inventory, best first (ties
 // keep the contract's class order). Status is the worst code over the groups.
 func CompatibilityFor(groups []string) []Compatibility {
-	key := strings.Join(groups, ",")
-	if v, ok := compatMemo.Get(key); ok {
-		return v
+	var stack [512]byte // the key, groups joined by ",", built on the stack (a hit allocates nothing)
+	key := stack[:0]
+	for i, g := range groups {
+		if i > 0 {
+			key = append(key, ',')
+		}
+		key = append(key, g...)
 	}
-	out := compatibilityFor(groups)
-	compatMemo.Put(key, out)
-	return out
+	return compatMemo.DoBytes(key, func(string) []Compatibility { return compatibilityFor(groups) })
 }
 
 // compatMemo caches rankings by group set (results are shared: read-only).

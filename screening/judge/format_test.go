@@ -72,3 +72,17 @@ func TestMainReasons(t *testing.T) {
 		t.Errorf("MainReasons of no reasons = %q", got)
 	}
 }
+
+// TestJoinAllocatesNothing: join writes into the block and returns a string over it, so a text
+// that fits costs no allocation — a guard against its parts escaping to the heap (a change that
+// passed a part to fmt for a panic message once added five allocations per structure).
+func TestJoinAllocatesNothing(t *testing.T) {
+	blk := &judged{}
+	n := testing.AllocsPerRun(100, func() {
+		blk.text = blk.textArr[:0]
+		_ = blk.join("ΔG_p = ", plus(-12.34, 1), " kJ/mol at ", fix(25, 1), " °C and ", sig(0.5, 3), " mol/L")
+	})
+	if n != 0 {
+		t.Fatalf("join allocated %.1f times per text, want 0", n)
+	}
+}

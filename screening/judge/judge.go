@@ -4,7 +4,6 @@
 package judge
 
 import (
-	"fmt"
 	"math"
 	"strings"
 	"unsafe"
@@ -313,7 +312,9 @@ func (b *judged) join(parts ...any) string {
 				b.text = numfmt.AppendFixed(b.text, p.v, p.prec)
 			}
 		default: // a programming error, never input: every caller passes literals of these types
-			panic(fmt.Sprintf("judge: join takes strings and number parts, not %T", p))
+			// (the part itself is not put in the message: that would move every call's parts to
+			// the heap)
+			panic("judge: join takes strings and number parts (fix, sig, plus) only")
 		}
 	}
 	if len(b.text) == from {
