@@ -60,19 +60,26 @@ func orient(m *mol.Molecule, a int, want []int) int {
 	if have == nil {
 		return 0
 	}
-	// complete want with the missing neighbour
-	if len(want) == 3 {
+	// complete want with the missing neighbour (in an array of its own: the caller's list stays
+	// as it was, and nothing is allocated)
+	if len(want) > 4 {
+		return 0
+	}
+	var w [4]int
+	n := copy(w[:], want)
+	if n == 3 {
 		for _, x := range have {
-			if x != want[0] && x != want[1] && x != want[2] {
-				want = append(want, x)
+			if x != w[0] && x != w[1] && x != w[2] {
+				w[3], n = x, 4
 				break
 			}
 		}
 	}
-	if len(want) != 4 {
+	if n != 4 {
 		return 0
 	}
-	perm := make([]int, 4)
+	want = w[:]
+	var perm [4]int
 	for i, x := range want {
 		perm[i] = -2
 		for j, y := range have {
@@ -135,7 +142,8 @@ func (s *Structure) exoEndo(o *Olefin, inCore, inSystem []bool) string {
 			if bh == other || !inCore[bh] {
 				continue
 			}
-			var bridgeNbrs []int
+			var nbrArr [4]int // a bridgehead's core neighbours: two are wanted, more are skipped
+			bridgeNbrs := nbrArr[:0]
 			for _, x := range m.HeavyNbrs(bh) {
 				if x != end && inCore[x] {
 					bridgeNbrs = append(bridgeNbrs, x)

@@ -115,7 +115,7 @@ func Judge(d *describe.Descriptors, e *thermo.Estimate, c units.Conditions) Resu
 		}
 		basis, source = thermo.BasisMeasured, m.Source
 	}
-	blk.th = thermo.Evaluate(dh, ds, c.Temp, c.Conc)
+	thermo.EvaluateInto(&blk.th, &blk.ceiling, dh, ds, c.Temp, c.Conc)
 	th := &blk.th
 	th.DHUncertaintyKJmol = round(uh, 2)
 	th.DSUncertaintyJmolK = round(us, 2)
@@ -248,6 +248,7 @@ type judged struct {
 	cautions [6]string
 	values   [6]float64
 	nValues  int
+	ceiling  float64 // the ceiling temperature th points to
 	// text holds the texts written for this result (textArr until it is full); see join
 	text    []byte
 	textArr [textRoom]byte

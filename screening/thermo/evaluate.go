@@ -97,14 +97,27 @@ const maxReportedConc = 1e6
 
 // Evaluate applies the thermodynamic formulas at temperature t and initial concentration c.
 func Evaluate(dhkJ, dsJ float64, t units.TempK, c units.ConcMolL) Thermo {
+	var th Thermo
+	EvaluateInto(&th, nil, dhkJ, dsJ, t, c)
+	return th
+}
+
+// EvaluateInto is Evaluate into *th, keeping a ceiling temperature in *ceiling (th.CeilingTempK
+// then points to it; nil: a value of its own), so that a caller holding both in one block
+// allocates nothing. Everything th held before is overwritten.
+func EvaluateInto(th *Thermo, ceiling *float64, dhkJ, dsJ float64, t units.TempK, c units.ConcMolL) {
 	T, c0 := float64(t), float64(c)
 	dh := dhkJ * 1000
 	sEff := dsJ + units.GasConstant*math.Log(c0)
-	th := Thermo{DHkJmol: dhkJ, DSJmolK: dsJ, TemperatureK: T, MonomerConcMolL: c0}
+	*th = Thermo{DHkJmol: dhkJ, DSJmolK: dsJ, TemperatureK: T, MonomerConcMolL: c0}
 	th.DGkJmol = (dh - T*sEff) / 1000
 	if dh < 0 && sEff < 0 {
+		if ceiling == nil {
+			ceiling = new(float64)
+		}
 		tc := dh / sEff
-		th.CeilingTempK = &tc
+		*ceiling = tc
+		th.CeilingTempK = ceiling
 		th.CeilingTempExtrapolated = tc < ExtrapolatedBelowK || tc > ExtrapolatedAboveK
 	}
 	lnM := dh/(units.GasConstant*T) - dsJ/units.GasConstant
@@ -115,7 +128,6 @@ func Evaluate(dhkJ, dsJ float64, t units.TempK, c units.ConcMolL) Thermo {
 		th.EqMonomerMolL = math.Exp(lnM)
 	}
 	th.EqConversion = math.Max(0, 1-th.EqMonomerMolL/c0)
-	return th
 }
 
 // SweepPoint is one temperature of a sweep.
