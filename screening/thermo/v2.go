@@ -705,10 +705,25 @@ func (t *ringTable) oxaBridge(s *describe.Structure, o *describe.Olefin) bool {
 // recomputes it; when the force field changes, put the new value here.
 const oxaBridgeKJmol = -27.814081273249229
 
-// spectatorText is the annulated_rings_spectator note's text for n spectator rings.
+// spectatorText is the annulated_rings_spectator note's text for n spectator rings (made once
+// for the common counts).
 func spectatorText(n int) string {
+	if n >= 0 && n < len(spectatorTexts) {
+		return spectatorTexts[n]
+	}
+	return makeSpectatorText(n)
+}
+
+func makeSpectatorText(n int) string {
 	return strconv.Itoa(n) + " fused or spiro ring(s) outside the olefin's ring are unchanged by ring opening and cancel; their interaction with the opened ring is neglected"
 }
+
+var spectatorTexts = func() (out [8]string) {
+	for n := range out {
+		out[n] = makeSpectatorText(n)
+	}
+	return out
+}()
 
 // oxaBridgeText is the oxa_bridge_term note's text (written once).
 var oxaBridgeText = sync.OnceValue(func() string {
