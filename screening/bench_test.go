@@ -186,7 +186,7 @@ func TestAllocationGuard(t *testing.T) {
 				rings.PerceiveInto(&core.Rings, &core.Mol)
 			}
 		})},
-		{"screen (table tier)", 9, per(func(s string) { ScreenSMILES(s, cond) })},
+		{"screen (table tier)", 6, per(func(s string) { ScreenSMILES(s, cond) })},
 	} {
 		t.Logf("%s: %.1f allocations per structure (guard %.0f)", g.name, g.allocs, g.max)
 		if g.allocs > g.max {
