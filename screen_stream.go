@@ -83,7 +83,7 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 						break
 					}
 					res, err := batch.ScreenItemContext(ctx, it, cond)
-					cr := renderRow(&buf, format, w.first+k, it, res, err, filter)
+					cr := renderRow(&buf, format, w.first+k, it, &res, err, filter)
 					if cr.keep {
 						cr.off, cr.n = int64(len(text)), int32(buf.Len())
 						text = append(text, buf.Bytes()...)
@@ -171,10 +171,18 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 //	       "result" after it, in the order encoding/json writes a map}; stored as
 //	       prefix \x00 suffix
 //	table: the tab-separated cells after the rank
-func renderRow(buf *bytes.Buffer, format string, seq int, it batch.InputItem, res screening.Result, err error, f batch.ResultFilter) compactRow {
+//
+// res is read only while the row is rendered (no copy of the result is made: a row is its key
+// and its text).
+func renderRow(buf *bytes.Buffer, format string, seq int, it batch.InputItem, res *screening.Result, err error, f batch.ResultFilter) compactRow {
 	line := it.Line
-	row := batch.NewRow(seq, res, err)
-	cr := compactRow{key: row.Key, seq: seq, failed: err != nil, keep: !f.Active() || (row.Result != nil && f.Keeps(row.Result))}
+	key := batch.FailedKey()
+	if err != nil {
+		res = nil
+	} else {
+		key = batch.KeyOf(res)
+	}
+	cr := compactRow{key: key, seq: seq, failed: err != nil, keep: !f.Active() || (res != nil && f.Keeps(res))}
 	buf.Reset()
 	if !cr.keep {
 		return cr
@@ -185,7 +193,7 @@ func renderRow(buf *bytes.Buffer, format string, seq int, it batch.InputItem, re
 	}
 	switch format {
 	case "csv":
-		buf.Write(batch.AppendCSVRow(buf.AvailableBuffer(), 0, it.ID, line, row.Result, msg, it.Extra))
+		buf.Write(batch.AppendCSVRow(buf.AvailableBuffer(), 0, it.ID, line, res, msg, it.Extra))
 	case "jsonl":
 		// members before "rank": error?, extra?, id, line; after: result?
 		if err != nil {
@@ -206,14 +214,14 @@ func renderRow(buf *bytes.Buffer, format string, seq int, it batch.InputItem, re
 		buf.WriteByte(0)
 		if err == nil {
 			buf.WriteString(`,"result":`)
-			if b, err := row.Result.AppendJSON(buf.AvailableBuffer()); err == nil {
+			if b, err := res.AppendJSON(buf.AvailableBuffer()); err == nil {
 				buf.Write(b)
 			} else {
 				buf.WriteString("null")
 			}
 		}
 	default:
-		buf.WriteString(tableCells(it.ID, row.Result, err))
+		buf.WriteString(tableCells(it.ID, res, err))
 	}
 	return cr
 }
