@@ -82,8 +82,8 @@ func csvNeedsQuotes[T string | []byte](s T) bool {
 			return true
 		}
 	}
-	if c := s[0]; c < utf8.RuneSelf { // unicode.IsSpace's ASCII spaces, without decoding a rune
-		return c == ' ' || c >= '\t' && c <= '\r'
+	if c := s[0]; c < utf8.RuneSelf { // without decoding a rune
+		return isASCIISpace(c)
 	}
 	r, _ := utf8.DecodeRuneInString(string(s[:min(len(s), utf8.UTFMax)]))
 	return unicode.IsSpace(r)

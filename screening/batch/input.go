@@ -130,13 +130,16 @@ func tooMany(max int) error {
 	return fmt.Errorf("%w: more than %d", errTooMany, max)
 }
 
+// isASCIISpace is unicode.IsSpace for a byte below utf8.RuneSelf: space, \t, \n, \v, \f, \r.
+func isASCIISpace(c byte) bool { return c == ' ' || c >= '\t' && c <= '\r' }
+
 // indexSpace is strings.IndexFunc(s, unicode.IsSpace) with the ASCII bytes tested directly
 // (a SMILES is ASCII; the rune is decoded only past it).
 func indexSpace(s string) int {
 	for i := 0; i < len(s); i++ {
 		c := s[i]
 		if c < utf8.RuneSelf {
-			if c == ' ' || c >= '\t' && c <= '\r' {
+			if isASCIISpace(c) {
 				return i
 			}
 			continue

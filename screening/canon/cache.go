@@ -135,15 +135,10 @@ func appendSmallInt(b []byte, v int) []byte {
 	return strconv.AppendInt(b, int64(v), 10)
 }
 
-// keyMemo caches skeleton keys by written signature (50,000 entries: a design choice, a few
-// megabytes).
-var keyMemo = memo.New[string](50000)
-
 // ResetCache empties the skeleton-key and structure-key caches (benchmarks of a cold start).
 func ResetCache() {
-	keyMemo.Reset()
-	structureMemo.Reset()
 	signedMemo.Reset()
+	structureMemo.Reset()
 }
 
 // structureMemo caches structure keys by full written signature (20,000 entries: a design
@@ -165,41 +160,27 @@ func CachedStructureKey(m *mol.Molecule, r *rings.Rings, atoms []int) string {
 // signedSubgraph is a written signature kept as a string together with its subgraph's key.
 type signedSubgraph struct{ sig, key string }
 
-// signedMemo holds the signatures SignatureAndKey handed out with their keys, so that every
-// structure with one ring system shares the signature's string (the bound of keyMemo).
+// signedMemo caches skeleton keys by written signature, with the signature itself, so that every
+// structure with one ring system shares the signature's string (50,000 entries: a design
+// choice, a few megabytes).
 var signedMemo = memo.New[signedSubgraph](50000)
 
-// SignatureAndKey returns the written signature of atoms (no skipped bond, no suffix) and
-// CachedSkeletonKey's key for it. The signature is a string shared by every subgraph written
-// alike: a signature seen before costs no allocation.
+// SignatureAndKey returns the written signature of atoms (no skipped bond, no suffix) and the
+// subgraph's SkeletonKey, cached under the signature: from the shipped seeds (SetKeySeed) or
+// computed on a miss. The signature is a string shared by every subgraph written alike: a
+// signature seen before costs no allocation.
 func SignatureAndKey(m *mol.Molecule, r *rings.Rings, atoms []int) (sig, key string) {
 	var stack [512]byte
 	b := AppendWrittenSignature(stack[:0], m, r, atoms, -1, "")
 	e := signedMemo.DoBytes(b, func(sig string) signedSubgraph {
-		return signedSubgraph{sig, KeyForSignature(sig, m, r, atoms, -1)}
+		if seed := keySeed.Load(); seed != nil {
+			if k, ok := (*seed)(sig); ok {
+				return signedSubgraph{sig, k}
+			}
+		}
+		return signedSubgraph{sig, SkeletonKey(m, r, atoms, -1)}
 	})
 	return e.sig, e.key
-}
-
-// CachedSkeletonKey is SkeletonKey with the written-subgraph cache.
-func CachedSkeletonKey(m *mol.Molecule, r *rings.Rings, atoms []int, skip int) string {
-	return KeyForSignature(WrittenSignature(m, r, atoms, skip, ""), m, r, atoms, skip)
-}
-
-// KeyForSignature is CachedSkeletonKey for a signature already computed.
-func KeyForSignature(sig string, m *mol.Molecule, r *rings.Rings, atoms []int, skip int) string {
-	if k, ok := keyMemo.Get(sig); ok {
-		return k
-	}
-	k, ok := "", false
-	if seed := keySeed.Load(); seed != nil && skip < 0 {
-		k, ok = (*seed)(sig)
-	}
-	if !ok {
-		k = SkeletonKey(m, r, atoms, skip)
-	}
-	keyMemo.Put(sig, k)
-	return k
 }
 
 // keySeed looks up keys shipped with the program by signature (SetKeySeed).

@@ -101,11 +101,12 @@ func AppendAtoms(dst []int, rings []Ring, idx []int) []int {
 	// without duplicates by construction
 	var set [4]uint64
 	small := true
+scan:
 	for _, i := range idx {
 		for _, a := range rings[i].Atoms {
 			if uint(a) >= 256 {
 				small = false
-				break
+				break scan
 			}
 			set[a>>6] |= 1 << uint(a&63)
 		}
@@ -236,12 +237,8 @@ func AppendCore(dst []int, rings []Ring, system []int, seed []int) []int {
 	return core
 }
 
-// WithBond returns the rings of the system that hold bond bi, in system order.
-func WithBond(rings []Ring, system []int, bi int) []int {
-	return AppendWithBond(nil, rings, system, bi)
-}
-
-// AppendWithBond appends WithBond's rings to out and returns the extended slice.
+// AppendWithBond appends the rings of the system that hold bond bi, in system order, to out and
+// returns the extended slice.
 func AppendWithBond(out []int, rings []Ring, system []int, bi int) []int {
 	for _, r := range system {
 		for _, b := range rings[r].Bonds {

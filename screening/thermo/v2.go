@@ -427,11 +427,11 @@ func parentKey(s *describe.Structure, o *describe.Olefin) string {
 // appendParentKey appends parentKey to b (a look-up that hits allocates nothing).
 func appendParentKey(b []byte, s *describe.Structure, o *describe.Olefin) []byte {
 	switch {
-	case slices.Equal(o.CoreAtoms, o.SystemAtoms) && o.Signature != "":
-		b = append(b, o.Signature...) // the core is the whole ring system, already signed
 	case o.CoreSignature != "":
-		b = append(b, o.CoreSignature...) // signed when the core's key was taken
-	default:
+		b = append(b, o.CoreSignature...) // a core smaller than its system, signed when its key was taken
+	case o.Signature != "":
+		b = append(b, o.Signature...) // the core is the whole ring system (CoreSignature is "")
+	default: // an olefin not analysed by describe
 		b = canon.AppendWrittenSignature(b, s.Mol, s.Rings, o.CoreAtoms, -1, "")
 	}
 	ca, cb := sort.SearchInts(o.CoreAtoms, o.A), sort.SearchInts(o.CoreAtoms, o.B)
