@@ -29,16 +29,8 @@ func TestPrecomputedTableFresh(t *testing.T) {
 	if err != nil {
 		t.Fatal(err)
 	}
-	if *update {
-		if err := os.WriteFile(precomputedFile, want, 0o644); err != nil {
-			t.Fatal(err)
-		}
-		t.Skip("rewrote " + precomputedFile + "; run again to check")
-	}
 	have, _ := dataFS.ReadFile(precomputedFile)
-	if !bytes.Equal(have, want) {
-		t.Fatalf("%s is stale: rerun `go test ./screening/thermo -run PrecomputedTableFresh -update`", precomputedFile)
-	}
+	checkGenerated(t, precomputedFile, have, want, "PrecomputedTableFresh")
 	pre := readPrecomputed()
 	if pre == nil || len(pre.rows) != len(full.rows) || len(pre.fits) != len(full.fitRows) || len(pre.cal) != len(cal) {
 		t.Fatalf("the embedded file was not taken: %v", pre)
@@ -92,5 +84,21 @@ func TestPrecomputedIgnoredWhenInputsDiffer(t *testing.T) {
 	}
 	if _, err := parsePrecomputed([]byte("# no inputs record\n")); err == nil {
 		t.Error("a file without its inputs record was accepted")
+	}
+}
+
+// checkGenerated compares a generated file as embedded or on disk (have) with what the code
+// generates now (want): with -update it rewrites the file and skips the rest of the test (run it
+// again to check); otherwise a difference fails the test, naming the test to rerun.
+func checkGenerated(t *testing.T, file string, have, want []byte, test string) {
+	t.Helper()
+	if *update {
+		if err := os.WriteFile(file, want, 0o644); err != nil {
+			t.Fatal(err)
+		}
+		t.Skip("rewrote " + file + "; run again to check")
+	}
+	if !bytes.Equal(have, want) {
+		t.Fatalf("%s is stale: rerun `go test ./screening/thermo -run %s -update`", file, test)
 	}
 }

@@ -215,16 +215,8 @@ func cmpPairs(a, b [2]int) int {
 func TestSeedsFresh(t *testing.T) {
 	tab := Table()
 	want := buildSeeds(t, tab)
-	if *update {
-		if err := os.WriteFile(seedsGenFile, want, 0o644); err != nil {
-			t.Fatal(err)
-		}
-		t.Skip("rewrote " + seedsGenFile + "; run again to check")
-	}
 	have, _ := os.ReadFile(seedsGenFile)
-	if !bytes.Equal(have, want) {
-		t.Fatalf("%s is stale: rerun `go test ./screening/thermo -run SeedsFresh -update`", seedsGenFile)
-	}
+	checkGenerated(t, seedsGenFile, have, want, "SeedsFresh")
 	if seeds().index == nil || seeds().index.Len() < 40 {
 		t.Fatalf("the embedded seeds were not taken")
 	}
