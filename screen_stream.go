@@ -74,6 +74,9 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 			var batches [][]compactRow
 			var buf bytes.Buffer // one per worker: not re-made per row
 			var text []byte      // a batch's rendered rows, spooled at once
+			// storage reused from one item to the next: a result is rendered into a row and
+			// dropped before the next item is screened, and the row keeps nothing of it
+			var reuse screening.Reuse
 			for w := range work {
 				items := w.items
 				rows := make([]compactRow, 0, len(items))
@@ -82,7 +85,7 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 					if ctx.Err() != nil {
 						break
 					}
-					res, err := batch.ScreenItemContext(ctx, it, cond)
+					res, err := batch.ScreenItemWith(ctx, &reuse, it, cond)
 					cr := renderRow(&buf, format, w.first+k, it, &res, err, filter)
 					if cr.keep {
 						cr.off, cr.n = int64(len(text)), int32(buf.Len())

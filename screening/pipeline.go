@@ -10,7 +10,6 @@ import (
 	"errors"
 	"fmt"
 	"math"
-	"sort"
 	"strings"
 	"sync"
 	"time"
@@ -160,7 +159,53 @@ func ScreenSMILESContext(ctx context.Context, text string, c Conditions) (Result
 	if err != nil {
 		return Result{}, err
 	}
-	return ScreenStructureContext(ctx, s, c)
+	return screenStructure(ctx, s, c, nil)
+}
+
+// Reuse is storage that screening reuses from one structure to the next, for a caller that is
+// done with each result before it screens the next (a streaming worker that renders a row and
+// drops the result): the molecule's workspace and the result blocks (judge.Blocks). A result
+// screened with a Reuse — its texts and lists included — is valid only until the next
+// screening with the same Reuse. The zero value is ready; a Reuse is for one goroutine.
+type Reuse struct {
+	ws     describe.Workspace
+	blocks judge.Blocks
+	cands  []olefinCand             // a structure's judged ring olefins, when it has several
+	notes  []thermo.Note            // an olefin's estimate notes, read into its result's reasons
+	others []describe.OlefinSummary // the result's other ring olefins
+}
+
+// blockList is u's result blocks; nil (blocks of their own) when u is nil.
+func (u *Reuse) blockList() *judge.Blocks {
+	if u == nil {
+		return nil
+	}
+	return &u.blocks
+}
+
+// ScreenWith is ScreenContext reusing u's storage (see Reuse: the result is valid until the
+// next call with u).
+func ScreenWith(ctx context.Context, u *Reuse, src Source, c Conditions) (Result, error) {
+	u.blocks.Reset()
+	if src.Molfile != "" || (src.Descriptors != nil && strings.TrimSpace(src.SMILES) == "") {
+		return ScreenContext(ctx, src, c) // as ScreenContext chooses; no storage of u's to reuse
+	}
+	defer u.release()
+	s, err := describe.DescribeInto(&u.ws, src.SMILES)
+	if err != nil {
+		return Result{}, err
+	}
+	return screenStructure(ctx, s, c, u)
+}
+
+// release empties u's molecule, dropping its storage when a huge structure grew it (as
+// putWorkspace does for the pool).
+func (u *Reuse) release() {
+	if cap(u.ws.Mol.Atoms) > pooledAtomsMax {
+		u.ws = describe.Workspace{}
+		return
+	}
+	u.ws.Mol.Reset()
 }
 
 // workspaces holds the molecules and ring perceptions whose storage (atom, bond and index
@@ -202,7 +247,7 @@ func ScreenMolfileContext(ctx context.Context, text string, c Conditions) (Resul
 		}
 		return Result{}, err
 	}
-	return ScreenStructureContext(ctx, s, c)
+	return screenStructure(ctx, s, c, nil)
 }
 
 // ScreenStructure screens a described structure: every ring olefin is judged and the most
@@ -215,6 +260,11 @@ func ScreenStructure(s *Structure, c Conditions) (Result, error) {
 
 // ScreenStructureContext is ScreenStructure under ctx.
 func ScreenStructureContext(ctx context.Context, s *Structure, c Conditions) (Result, error) {
+	return screenStructure(ctx, s, c, nil)
+}
+
+// screenStructure is ScreenStructureContext reusing u's storage (nil: none).
+func screenStructure(ctx context.Context, s *Structure, c Conditions, u *Reuse) (Result, error) {
 	if err := checkWork(s); err != nil {
 		return Result{}, err
 	}
@@ -234,21 +284,25 @@ func ScreenStructureContext(ctx context.Context, s *Structure, c Conditions) (Re
 		d := base
 		d.RingSize = 0
 		d.FunctionalGroups = s.Groups
-		r := judge.Judge(&d, nil, c)
+		r := judge.JudgeWith(u.blockList(), &d, nil, c)
 		r.Reasons[0].Detail += s.WhyNoOlefin()
 		return r, nil
 	}
-	first, cands := rankOlefins(ctx, s, &base, c) // the olefin that opens, then the others
+	first, cands := rankOlefins(ctx, s, &base, c, u) // the olefin that opens, then the others
 	best := first.r
 	best.Descriptors.RingOlefins = 1 + len(cands)
 	// equivalent olefins (same ring, substitution, core and estimate) are listed once, counted
-	same := func(a, b olefinCand) bool {
+	same := func(a, b *olefinCand) bool {
 		return a.o.Desc.RingSize == b.o.Desc.RingSize && a.o.Desc.OlefinSubstitution == b.o.Desc.OlefinSubstitution &&
 			a.o.Desc.CoreKey == b.o.Desc.CoreKey && a.r.Verdict == b.r.Verdict && math.Abs(a.e.DHkJmol-b.e.DHkJmol) < 0.01
 	}
 	equivalentToBest := 0
-	for _, x := range cands {
-		if same(x, first) {
+	if u != nil && len(cands) > 0 {
+		best.Descriptors.OtherRingOlefins = u.others[:0]
+	}
+	for i := range cands {
+		x := &cands[i]
+		if same(x, &first) {
 			equivalentToBest++
 			continue
 		}
@@ -267,15 +321,21 @@ func ScreenStructureContext(ctx context.Context, s *Structure, c Conditions) (Re
 		}
 		best.Descriptors.OtherRingOlefins = append(best.Descriptors.OtherRingOlefins, describe.OlefinSummary{
 			RingSize: x.o.Desc.RingSize, RingSystem: x.o.Desc.RingSystem, OlefinSubstitution: x.o.Desc.OlefinSubstitution,
-			SkeletonKey: x.o.Desc.CoreKey, DHkJmol: describe.Round(x.e.DHkJmol, 2), Note: "verdict for this olefin alone: " + x.r.Verdict,
+			SkeletonKey: x.o.Desc.CoreKey, DHkJmol: describe.Round(x.e.DHkJmol, 2), Note: aloneNote(x.r.Verdict),
 		})
+	}
+	if u != nil && len(cands) > 0 {
+		u.others = best.Descriptors.OtherRingOlefins[:0]
+		if len(best.Descriptors.OtherRingOlefins) == 0 {
+			best.Descriptors.OtherRingOlefins = nil // as without reuse: no list
+		}
 	}
 	if equivalentToBest > 0 {
 		best.Descriptors.EquivalentRingOlefins = equivalentToBest
 	}
 	best.Descriptors.RingOlefins += s.Skipped
 	if n := 1 + len(cands) + s.Skipped; n > 1 {
-		det := fmt.Sprintf("%d ring olefins: screened on the most reactive; the others can react later (cross-linking, e.g. the cyclopentene ring of dicyclopentadiene)", n)
+		det := severalText(n)
 		if s.Skipped > 0 {
 			det += fmt.Sprintf("; %d were not analysed (more than %d ring olefins)", s.Skipped, describe.MaxOlefinsAnalysed)
 		}
@@ -292,15 +352,24 @@ func ScreenStructureContext(ctx context.Context, s *Structure, c Conditions) (Re
 
 // judgeOlefin estimates and judges ring olefin o of s (base: the molecule's descriptors);
 // measured marks the olefin the measurement meas (with its note) belongs to.
-func judgeOlefin(ctx context.Context, s *Structure, o *describe.Olefin, base *Descriptors, c Conditions, meas *thermo.Measurement, measNote string, measured bool) olefinCand {
-	e := thermo.EstimateFor(ctx, s, o, c.ThermoMethod)
+func judgeOlefin(ctx context.Context, s *Structure, o *describe.Olefin, base *Descriptors, c Conditions, meas *thermo.Measurement, measNote string, measured bool, u *Reuse) olefinCand {
+	var notes []thermo.Note
+	if u != nil {
+		notes = u.notes
+	}
+	e := thermo.EstimateInto(ctx, s, o, c.ThermoMethod, notes)
 	if measured {
 		e.Measured, e.MeasuredNote = meas, measNote
 	}
 	// the molecule's descriptors are merged into the olefin's own (they are the same for every
 	// olefin of s, so merging again changes nothing): no copy to allocate
 	o.Desc.MergeMolecule(base)
-	return olefinCand{o, judge.Judge(&o.Desc, &e, c), e}
+	cand := olefinCand{o, judge.JudgeWith(u.blockList(), &o.Desc, &e, c), e}
+	if u != nil {
+		// the result's reasons hold copies of the notes: their storage is the next olefin's
+		u.notes, cand.e.Notes = e.Notes[:0], nil
+	}
+	return cand
 }
 
 // olefinCand is one ring olefin of a structure with its estimate and verdict.
@@ -313,7 +382,7 @@ type olefinCand struct {
 // rankOlefins judges every analysed ring olefin of s (base: the molecule's descriptors) and
 // returns the most reactive, which opens, and the others in order. A structure with one ring
 // olefin (the common case) needs no candidates' slice (each candidate holds a whole result).
-func rankOlefins(ctx context.Context, s *Structure, base *Descriptors, c Conditions) (olefinCand, []olefinCand) {
+func rankOlefins(ctx context.Context, s *Structure, base *Descriptors, c Conditions, u *Reuse) (olefinCand, []olefinCand) {
 	meas, measNote := thermo.MeasuredFor(s)
 	var measOlefin *describe.Olefin
 	if meas != nil {
@@ -321,14 +390,26 @@ func rankOlefins(ctx context.Context, s *Structure, base *Descriptors, c Conditi
 	}
 	if len(s.Olefins) == 1 {
 		o := s.Olefins[0]
-		return judgeOlefin(ctx, s, o, base, c, meas, measNote, o == measOlefin), nil
+		return judgeOlefin(ctx, s, o, base, c, meas, measNote, o == measOlefin, u), nil
 	}
-	cands := make([]olefinCand, 0, len(s.Olefins))
+	var cands []olefinCand
+	if u != nil {
+		cands = u.cands[:0]
+	}
 	for _, o := range s.Olefins {
-		cands = append(cands, judgeOlefin(ctx, s, o, base, c, meas, measNote, o == measOlefin))
+		cands = append(cands, judgeOlefin(ctx, s, o, base, c, meas, measNote, o == measOlefin, u))
 	}
-	// by index: the candidates hold whole results, too large to copy per comparison
-	sort.SliceStable(cands, func(i, j int) bool { return judge.MoreReactive(&cands[i].r, &cands[j].r) })
+	if u != nil {
+		u.cands = cands
+	}
+	// most reactive first; stable (equally reactive olefins keep their order). An insertion
+	// sort: a structure has at most MaxOlefinsAnalysed, and sort.SliceStable's swapper costs
+	// two allocations.
+	for i := 1; i < len(cands); i++ {
+		for j := i; j > 0 && judge.MoreReactive(&cands[j].r, &cands[j-1].r); j-- {
+			cands[j], cands[j-1] = cands[j-1], cands[j]
+		}
+	}
 	return cands[0], cands[1:]
 }
 
@@ -352,7 +433,7 @@ func Depict(text string) (*Drawing, error) {
 		c := DefaultConditions()
 		c.ThermoMethod = units.ThermoTable
 		base := s.MoleculeDescriptors()
-		first, _ := rankOlefins(context.Background(), s, &base, c)
+		first, _ := rankOlefins(context.Background(), s, &base, c, nil)
 		d.OpeningBond = first.o.Bond
 	}
 	return d, nil
@@ -371,6 +452,45 @@ func ScreenDescriptors(d Descriptors, c Conditions) (Result, error) {
 	}
 	e := thermo.EstimateRecord(&d)
 	return judge.Judge(&d, &e, c), nil
+}
+
+// severalTexts is the several_ring_olefins reason's text per count of ring olefins up to
+// MaxOlefinsAnalysed, written once.
+var severalTexts = func() []string {
+	out := make([]string, describe.MaxOlefinsAnalysed+1)
+	for n := range out {
+		out[n] = makeSeveralText(n)
+	}
+	return out
+}()
+
+func severalText(n int) string {
+	if n < len(severalTexts) {
+		return severalTexts[n]
+	}
+	return makeSeveralText(n)
+}
+
+func makeSeveralText(n int) string {
+	return fmt.Sprintf("%d ring olefins: screened on the most reactive; the others can react later (cross-linking, e.g. the cyclopentene ring of dicyclopentadiene)", n)
+}
+
+// aloneNotes is the note of another ring olefin's summary for each verdict (judge.Verdicts'
+// order), written once.
+var aloneNotes = func() []string {
+	out := make([]string, len(judge.Verdicts))
+	for i, v := range judge.Verdicts {
+		out[i] = "verdict for this olefin alone: " + v
+	}
+	return out
+}()
+
+// aloneNote is the note of another ring olefin's summary whose verdict is v.
+func aloneNote(v string) string {
+	if i := judge.VerdictRank(v); i < len(aloneNotes) {
+		return aloneNotes[i]
+	}
+	return "verdict for this olefin alone: " + v
 }
 
 // saltTexts holds the counter_ion reason's text per list of other components (design choice:

@@ -2,6 +2,7 @@ package screening_test
 
 import (
 	"bytes"
+	"context"
 	"encoding/json"
 	"errors"
 	"fmt"
@@ -275,4 +276,76 @@ func TestCachesDoNotChangeResults(t *testing.T) {
 			t.Errorf("%s: the result with caches differs from the one computed from scratch", s)
 		}
 	}
+}
+
+// TestScreenWithMatchesScreen: a worker that reuses its storage (Reuse) gets, structure after
+// structure, the results a screening on storage of its own gives — nothing of one structure's result leaks into
+// the next (the corpus in order mixes one and several ring olefins, measured and estimated
+// monomers, salts and failures) — under the default and two other condition sets, for SMILES,
+// molfile and descriptor sources. Each result is encoded before the next screening, as the
+// contract asks.
+func TestScreenWithMatchesScreen(t *testing.T) {
+	// measured monomers (norbornene, cyclooctene, cyclopentene), a macrocycle (ring–chain), two
+	// ring olefins, a salt, no ring olefin and a failure, each between corpus structures
+	special := []string{"C1=CC2CCC1C2", "C1=CCCCCCC1", "C1=CCCC1", "C1=CCCCCCCCCCCCCCC1", "C1=CC2CC1C=C2",
+		"[Na+].[O-]C(=O)C1CC2C=CC1C2", "CCO", "not a smiles"}
+	var corpus []string
+	for i, s := range loadCorpus(t)[:3000] {
+		corpus = append(corpus, s)
+		if i%7 == 0 {
+			corpus = append(corpus, special[(i/7)%len(special)])
+		}
+	}
+	hot := DefaultConditions()
+	hot.Temp, _ = units.NewTempK(453.15)
+	hot.Conc, _ = units.NewConcMolL(0.01)
+	bulk := DefaultConditions()
+	bulk.Bulk = true
+	for _, cond := range []Conditions{DefaultConditions(), hot, bulk} {
+		cond.ThermoMethod = units.ThermoTable
+		var u Reuse
+		for i, s := range corpus {
+			src := Source{SMILES: s}
+			switch i % 97 {
+			case 1: // a molfile of the same structure, as the workers meet them in a mixed file
+				if d, err := Depict(s); err == nil {
+					var mb strings.Builder
+					if d.WriteMolfile(&mb, "reuse") == nil {
+						src = Source{Molfile: mb.String()}
+					}
+				}
+			case 2:
+				src = Source{Descriptors: &Descriptors{RingSize: 8, RingSystem: describe.SystemMonocyclic, OlefinSubstitution: 2}}
+			}
+			want, wantErr := screenFresh(src, cond)
+			got, gotErr := ScreenWith(context.Background(), &u, src, cond)
+			if (wantErr == nil) != (gotErr == nil) || (wantErr != nil && wantErr.Error() != gotErr.Error()) {
+				t.Fatalf("%d %q: error %v with reuse, %v without", i, s, gotErr, wantErr)
+			}
+			if wantErr != nil {
+				continue
+			}
+			wb, err1 := want.AppendJSON(nil)
+			gb, err2 := got.AppendJSON(nil)
+			if err1 != nil || err2 != nil {
+				t.Fatal(err1, err2)
+			}
+			if !bytes.Equal(wb, gb) {
+				t.Fatalf("%d %q: result with reuse differs:\n got %s\nwant %s", i, s, gb, wb)
+			}
+		}
+	}
+}
+
+// screenFresh screens src on storage of its own: a new molecule and structure for a SMILES
+// (describe.Describe), nothing pooled.
+func screenFresh(src Source, cond Conditions) (Result, error) {
+	if src.SMILES == "" {
+		return Screen(src, cond)
+	}
+	s, err := describe.Describe(src.SMILES)
+	if err != nil {
+		return Result{}, err
+	}
+	return ScreenStructure(s, cond)
 }

@@ -309,3 +309,9 @@ func ScreenItem(it InputItem, c screening.Conditions) (screening.Result, error) 
 func ScreenItemContext(ctx context.Context, it InputItem, c screening.Conditions) (screening.Result, error) {
 	return screening.ScreenContext(ctx, screening.Source{SMILES: it.SMILES, Molfile: it.Molfile}, c)
 }
+
+// ScreenItemWith is ScreenItemContext reusing u's storage: the result is valid only until the
+// next screening with u (see screening.Reuse).
+func ScreenItemWith(ctx context.Context, u *screening.Reuse, it InputItem, c screening.Conditions) (screening.Result, error) {
+	return screening.ScreenWith(ctx, u, screening.Source{SMILES: it.SMILES, Molfile: it.Molfile}, c)
+}

@@ -124,3 +124,39 @@ func TestConjKindsSorted(t *testing.T) {
 		}
 	}
 }
+
+// TestOlefinsHaveStorageOfTheirOwn: the ring olefins of a structure are distinct, each with its
+// own bond and ring size, also when a workspace describes such structures one after another and
+// lends its spare olefins again (ring sizes: structure facts, common practice).
+func TestOlefinsHaveStorageOfTheirOwn(t *testing.T) {
+	var w Workspace
+	for _, c := range []struct {
+		smiles string
+		sizes  []int
+	}{
+		{"C1=CCC(C1)CC1CC=CCC1CC1CCC=CCCC1", []int{5, 6, 8}},        // cyclopentene, cyclohexene, cyclooctene
+		{"C1=CCCC(C1)CC1CCC=CCCC1CC1CC=CC1", []int{5, 6, 8}},        // the same rings in another order
+		{"C1=CCC(C1)C1CCC=CC1", []int{5, 6}},                        // fewer olefins after more
+		{"C1CC=CCCC1C1CC=CC1CC1C=CCC1CC1CC=CC1", []int{5, 5, 5, 7}}, // four
+	} {
+		s, err := DescribeInto(&w, c.smiles)
+		if err != nil {
+			t.Fatalf("%s: %v", c.smiles, err)
+		}
+		var sizes []int
+		bonds := map[int]bool{}
+		seen := map[*Olefin]bool{}
+		for _, o := range s.Olefins {
+			if seen[o] {
+				t.Errorf("%s: an olefin is listed twice (shared storage)", c.smiles)
+			}
+			seen[o] = true
+			bonds[o.Bond] = true
+			sizes = append(sizes, o.Desc.RingSize)
+		}
+		slices.Sort(sizes)
+		if !slices.Equal(sizes, c.sizes) || len(bonds) != len(c.sizes) {
+			t.Errorf("%s: ring sizes %v on %d bonds, want %v on distinct bonds", c.smiles, sizes, len(bonds), c.sizes)
+		}
+	}
+}

@@ -41,23 +41,47 @@ type Structure struct {
 	sysAtomsArr [2][]int
 	derivedArr  [2]derivedValue
 	systemsArr  [2][]int
-	ints        intArena
+	// storage kept when a workspace's structure is described again (see keep)
+	ints         intArena
+	spareOlefins []*Olefin // olefins after the first, lent again from the start
+	nSpare       int
 }
 
-// intArena hands out int lists from one array allocated with the structure (the screened
-// component's atoms, ring systems, their atoms, the olefins' cores and smallest rings); a list
-// that does not fit is allocated on its own.
+// keep returns the storage of s that a structure described into the same place reuses: the
+// lists' arena and the olefins after the first. The lists and olefins of the structure
+// described before are written again, as the workspace's contract allows (DescribeInto).
+func (s *Structure) keep() (intArena, []*Olefin) {
+	a := s.ints
+	a.used = 0
+	return a, s.spareOlefins
+}
+
+// nextOlefin returns storage for an olefin after the first: a spare one when s has one.
+func (s *Structure) nextOlefin() *Olefin {
+	if s.nSpare == len(s.spareOlefins) {
+		s.spareOlefins = append(s.spareOlefins, new(Olefin))
+	}
+	o := s.spareOlefins[s.nSpare]
+	s.nSpare++
+	return o
+}
+
+// intArena hands out int lists from one growing array (the screened component's atoms, ring
+// systems, their atoms, the olefins' cores and smallest rings). When the array is full the
+// arena moves to a larger one and leaves the full one to the lists that point into it, so a
+// list handed out is never written by a later one; a structure described into the same
+// workspace starts from the front of the largest array (keep).
 type intArena struct {
 	used int
-	arr  [96]int
+	buf  []int
 }
 
-// room returns an empty slice with capacity n, from the arena when it has room.
+// room returns an empty slice with capacity n from the arena.
 func (a *intArena) room(n int) []int {
-	if a.used+n > len(a.arr) {
-		return make([]int, 0, n)
+	if a.used+n > len(a.buf) {
+		a.buf, a.used = make([]int, max(2*len(a.buf), n, 128)), 0
 	}
-	s := a.arr[a.used : a.used : a.used+n]
+	s := a.buf[a.used : a.used : a.used+n]
 	a.used += n
 	return s
 }
@@ -168,7 +192,8 @@ func describeMoleculeInto(s *Structure, m *mol.Molecule, p *rings.Rings, text st
 	} else {
 		rings.PerceiveInto(p, m)
 	}
-	*s = Structure{Mol: m, Rings: p}
+	ints, spare := s.keep()
+	*s = Structure{Mol: m, Rings: p, ints: ints, spareOlefins: spare}
 	s.Olefins, s.derived = s.olefinArr[:0], s.derivedArr[:0]
 	s.pickMain(text)
 	nr := len(p.SSSR)
@@ -397,7 +422,7 @@ func (s *Structure) analyse(bi int) *Olefin {
 	b := m.Bonds[bi]
 	o := &s.firstOlefin
 	if len(s.Olefins) > 0 {
-		o = new(Olefin)
+		o = s.nextOlefin()
 	}
 	*o = Olefin{Bond: bi, A: b.A, B: b.B}
 	// ring system and core

@@ -161,7 +161,7 @@ func LOOPredict(m Measurement, delta float64) (row LOORow, class string, err err
 	}
 	o := firstOlefin(s)
 	excl := ConstitutionKey(s)
-	tab := estimateTable(s, o, excl)
+	tab := estimateTable(s, o, excl, nil)
 	parent, pbond, pname, err := coreParent(s, o)
 	if err != nil {
 		return row, "", err
@@ -179,7 +179,7 @@ func LOOPredict(m Measurement, delta float64) (row LOORow, class string, err err
 	if po == nil {
 		return row, "", fmt.Errorf("%s: parent olefin not found", m.ID)
 	}
-	pe := estimateTable(ps, po, excl)
+	pe := estimateTable(ps, po, excl, nil)
 	bare := ConstitutionKey(ps) == excl
 	row = LOORow{ID: m.ID, Name: m.Name, Measured: m.DH, Table: tab.DHkJmol, UTable: tab.UH,
 		FF: pe.DHkJmol + delta, UFF: pe.UH, FFDelta: delta, MeasuredDS: m.DS, TableDS: tab.DSJmolK, ForceFieldApplied: !bare}

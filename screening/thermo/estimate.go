@@ -14,8 +14,10 @@ import (
 type Note struct {
 	Code   string
 	Detail string
-	Value  *float64
-	Unit   string
+	// Value, in Unit, when HasValue (held in the note itself: a note costs no allocation)
+	Value    float64
+	HasValue bool
+	Unit     string
 }
 
 // Estimate is ΔH_p and ΔS_p° (1 mol/L standard state) of one monomer with their basis and
@@ -81,13 +83,13 @@ const (
 func note(code, detail string) Note { return Note{Code: code, Detail: detail} }
 
 func noteValue(code, detail string, v float64, unit string) Note {
-	return Note{Code: code, Detail: detail, Value: &v, Unit: unit}
+	return Note{Code: code, Detail: detail, Value: v, HasValue: true, Unit: unit}
 }
 
 // EstimateOlefin estimates the thermodynamics of opening ring olefin o of structure s with the
 // ring table, measurements included (EstimateFor is the leave-self-out estimate with a method).
 func EstimateOlefin(s *describe.Structure, o *describe.Olefin) Estimate {
-	return estimateTable(s, o, "")
+	return estimateTable(s, o, "", nil)
 }
 
 // applyCorrections adds the substituent corrections for the record's features.

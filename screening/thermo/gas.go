@@ -352,16 +352,21 @@ type GasEstimate struct {
 	Path     string   // "monomer terms → surviving terms", for the result's source
 
 	source string // the table estimate's source text, made once per cached estimate
+	// missNote is the skeleton_not_in_table note's text when not every term hit the table (made
+	// once per cached estimate; empty when the caller gave no skeleton key)
+	missNote string
 }
 
 // gasEstimate computes the ring-correction part for opening bond bi of the ring system atoms
 // (r: the rings perceived on m).
 func (t *ringTable) gasEstimate(m *mol.Molecule, r *rings.Rings, systemAtoms []int, bi int, trans bool) GasEstimate {
-	return t.gasEstimateSig(m, systemAtoms, bi, trans, canon.WrittenSignature(m, r, systemAtoms, -1, ""))
+	return t.gasEstimateSig(m, systemAtoms, bi, trans, canon.WrittenSignature(m, r, systemAtoms, -1, ""), "")
 }
 
 // gasEstimateSig is gasEstimate with the system's written signature already computed.
-func (t *ringTable) gasEstimateSig(m *mol.Molecule, systemAtoms []int, bi int, trans bool, base string) GasEstimate {
+// skeletonKey is the system's canonical key (a function of base, which the cache key holds) for
+// the note of a table miss; "" leaves the note to the caller.
+func (t *ringTable) gasEstimateSig(m *mol.Molecule, systemAtoms []int, bi int, trans bool, base, skeletonKey string) GasEstimate {
 	var stack [512]byte
 	key := appendGasKey(stack[:0], m, systemAtoms, bi, trans, base)
 	return gasMemo.DoBytes(key, func(sig string) GasEstimate {
@@ -370,8 +375,17 @@ func (t *ringTable) gasEstimateSig(m *mol.Molecule, systemAtoms []int, bi int, t
 			g = t.gasEstimateUncached(m, systemAtoms, bi, trans)
 		}
 		g.source = "ring-correction table: " + g.Path
+		if !g.AllHits && skeletonKey != "" {
+			g.missNote = missNoteText(skeletonKey, g.Path)
+		}
 		return g
 	})
+}
+
+// missNoteText is the skeleton_not_in_table note's text for ring system key and the estimate's
+// path.
+func missNoteText(key, path string) string {
+	return "ring system " + key + " is not in the strain table; estimated from its rings (" + path + "), uncertainty widened"
 }
 
 // gasKey is the gas-estimate cache key: the system's written signature, the opened bond named by

@@ -60,6 +60,10 @@ type RingRow struct {
 
 	constKey string // constitution key of the row's SMILES (to leave its own measurement out)
 	atoms    int    // ring atoms of the row's system
+
+	// texts of an estimate anchored on the row's measurement, written once when the table loads
+	anchorSource string // the estimate's source
+	anchorNote   string // the measured_parent note
 }
 
 type ringTable struct {
@@ -193,6 +197,8 @@ func loadTable(pre *precomputed) (*ringTable, error) {
 			}
 		}
 		row.Key, row.constKey, row.Rings, row.atoms = rk.key, rk.constKey, rk.rings, rk.atoms
+		row.anchorSource = row.Name + " measured: " + row.Source
+		row.anchorNote = "starts from the measured values of the parent " + row.Name + "; substituent corrections added"
 		t.maxAtoms = max(t.maxAtoms, rk.atoms)
 		if prev, dup := t.byKey[row.Key]; dup {
 			return nil, fmt.Errorf("ring_table.csv: %s and %s have the same skeleton key %s", prev.Name, row.Name, row.Key)

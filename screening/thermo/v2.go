@@ -234,8 +234,15 @@ func ffAllowed(ctx context.Context) bool {
 // leaving out every measurement of s itself. It never fails: where the force field cannot be
 // applied the table estimate is returned with a note saying why.
 func EstimateFor(ctx context.Context, s *describe.Structure, o *describe.Olefin, method units.ThermoMethod) Estimate {
+	return EstimateInto(ctx, s, o, method, nil)
+}
+
+// EstimateInto is EstimateFor with the estimate's notes appended to notes[:0] (a caller's
+// storage, reused from one olefin to the next while the notes are read before the next call;
+// nil: storage of their own).
+func EstimateInto(ctx context.Context, s *describe.Structure, o *describe.Olefin, method units.ThermoMethod, notes []Note) Estimate {
 	excl := exclusionKey(s)
-	tab := estimateTable(s, o, excl)
+	tab := estimateTable(s, o, excl, notes)
 	tab.Method = MethodTable
 	// the table tier needs the parent's name alone (cheaper, and shipped for common skeletons)
 	var pi parentInfo
@@ -298,7 +305,7 @@ func EstimateFor(ctx context.Context, s *describe.Structure, o *describe.Olefin,
 		tab.Notes = append(tab.Notes, note("forcefield_unavailable", "force-field strain difference not available ("+err.Error()+"): ring-table estimate"))
 		return tab
 	}
-	pe := estimateTable(ps, po, excl)
+	pe := estimateTable(ps, po, excl, nil)
 	e := pe
 	e.Notes = append([]Note(nil), pe.Notes...)
 	e.Method = MethodForceField
@@ -334,10 +341,9 @@ func EstimateFor(ctx context.Context, s *describe.Structure, o *describe.Olefin,
 // applied), ΔS_p° = −R ln B from Jacobson–Stockmayer statistics (see ringchain.go).
 func macrocycleEstimate(s *describe.Structure, o *describe.Olefin, tab Estimate) Estimate {
 	t := Table()
-	g := t.gasEstimateSig(s.Mol, o.SystemAtoms, o.Bond, o.Desc.TransOlefin, o.Signature)
+	g := t.gasEstimateSig(s.Mol, o.SystemAtoms, o.Bond, o.Desc.TransOlefin, o.Signature, o.Desc.SkeletonKey)
 	ds, rc := MacrocycleEntropy(o.Desc.RingSize, true)
-	e := tab
-	e.Notes = append([]Note(nil), tab.Notes...)
+	e := tab // tab is this call's own copy: its notes can grow in place
 	e.DHkJmol = math.Min(0, g.DH)
 	e.UH = math.Hypot(g.UH, 5)
 	e.DSJmolK = ds
@@ -625,10 +631,10 @@ func classOf(s *describe.Structure, o *describe.Olefin, parent string) string {
 
 // estimateTable is the ring-table estimate of olefin o with the measurements of constitution
 // excl left out (its anchor, its rows in the offset fit, corrections derived from it).
-func estimateTable(s *describe.Structure, o *describe.Olefin, excl string) Estimate {
+func estimateTable(s *describe.Structure, o *describe.Olefin, excl string, notes []Note) Estimate {
 	t := Table()
 	d := &o.Desc
-	g := t.gasEstimateSig(s.Mol, o.SystemAtoms, o.Bond, d.TransOlefin, o.Signature)
+	g := t.gasEstimateSig(s.Mol, o.SystemAtoms, o.Bond, d.TransOlefin, o.Signature, d.SkeletonKey)
 	sigma := 1.0
 	parentOnly := g.Row != nil && s.Mol.HeavyAtomCount() == len(o.SystemAtoms) && s.Mol.NumComponents() == 1
 	if parentOnly {
@@ -641,6 +647,7 @@ func estimateTable(s *describe.Structure, o *describe.Olefin, excl string) Estim
 		UH:      math.Hypot(g.UH, ohu),
 		US:      math.Hypot(g.US, osu),
 		Basis:   BasisRingTable,
+		Notes:   notes[:0],
 	}
 	if g.Row != nil {
 		e.Parent, e.Bare, e.parentRow = g.Row.Name, parentOnly, g.Row
@@ -648,8 +655,11 @@ func estimateTable(s *describe.Structure, o *describe.Olefin, excl string) Estim
 	e.Source = g.source
 	if !g.AllHits {
 		e.Basis = BasisAdditive
-		e.Notes = append(e.Notes, Note{Code: "skeleton_not_in_table",
-			Detail: "ring system " + d.SkeletonKey + " is not in the strain table; estimated from its rings (" + g.Path + "), uncertainty widened"})
+		text := g.missNote
+		if text == "" {
+			text = missNoteText(d.SkeletonKey, g.Path)
+		}
+		e.Notes = append(e.Notes, note("skeleton_not_in_table", text))
 	}
 	if g.Spectate > 0 {
 		e.Notes = append(e.Notes, note("annulated_rings_spectator", spectatorText(g.Spectate)))
@@ -658,13 +668,13 @@ func estimateTable(s *describe.Structure, o *describe.Olefin, excl string) Estim
 	if g.Row != nil && g.Row.AnchorDH != nil && g.Row.constKey != excl {
 		e.DHkJmol = *g.Row.AnchorDH
 		e.UH = g.Row.AnchorUH
-		e.Source = g.Row.Name + " measured: " + g.Row.Source
+		e.Source = g.Row.anchorSource
 		if g.Row.AnchorDS != nil {
 			e.DSJmolK = *g.Row.AnchorDS
 			e.US = g.Row.AnchorUS
 		}
 		if !parentOnly {
-			e.Notes = append(e.Notes, note("measured_parent", "starts from the measured values of the parent "+g.Row.Name+"; substituent corrections added"))
+			e.Notes = append(e.Notes, note("measured_parent", g.Row.anchorNote))
 		}
 	}
 	if t.oxaBridge(s, o) {
