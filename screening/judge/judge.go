@@ -296,13 +296,14 @@ func (bs *Blocks) next() *judged {
 	return blk
 }
 
-// reset empties a block for reuse; the text array needs no clearing (only join's writes are
-// read).
+// reset empties a block for reuse. The text buffer keeps its storage (a buffer that outgrew the
+// block's array is reused too: the texts in it belonged to results that are no longer read) and
+// needs no clearing, as only join's writes are read; th and est are written whole by JudgeWith
+// before they are read.
 func (b *judged) reset() {
-	b.th, b.est = thermo.Thermo{}, thermo.EstimateOut{}
 	b.reasons, b.cautions = [8]Reason{}, [6]string{}
 	b.nValues, b.ceiling = 0, 0
-	b.text = b.textArr[:0]
+	b.text = b.text[:0]
 }
 
 // textRoom is the room for a result's own texts inside its block: a typical result writes two
