@@ -173,6 +173,7 @@ type Reuse struct {
 	cands  []olefinCand             // a structure's judged ring olefins, when it has several
 	notes  []thermo.Note            // an olefin's estimate notes, read into its result's reasons
 	others []describe.OlefinSummary // the result's other ring olefins
+	text   []byte                   // the result's formulas (describe.MoleculeDescriptorsIn)
 }
 
 // blockList is u's result blocks; nil (blocks of their own) when u is nil.
@@ -187,6 +188,7 @@ func (u *Reuse) blockList() *judge.Blocks {
 // next call with u).
 func ScreenWith(ctx context.Context, u *Reuse, src Source, c Conditions) (Result, error) {
 	u.blocks.Reset()
+	u.text = u.text[:0]
 	if src.Molfile != "" || (src.Descriptors != nil && strings.TrimSpace(src.SMILES) == "") {
 		return ScreenContext(ctx, src, c) // as ScreenContext chooses; no storage of u's to reuse
 	}
@@ -268,7 +270,11 @@ func screenStructure(ctx context.Context, s *Structure, c Conditions, u *Reuse) 
 	if err := checkWork(s); err != nil {
 		return Result{}, err
 	}
-	base := s.MoleculeDescriptors()
+	var text *[]byte
+	if u != nil {
+		text = &u.text
+	}
+	base := s.MoleculeDescriptorsIn(text)
 	var bulkNote *Reason
 	if c.Bulk {
 		conc, rel, ok := s.BulkConcentration()

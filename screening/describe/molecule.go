@@ -3,6 +3,7 @@ package describe
 import (
 	"math"
 	"strings"
+	"unsafe"
 
 	"ringsieve/screening/internal/memo"
 	"ringsieve/screening/mol"
@@ -12,6 +13,14 @@ import (
 // MoleculeDescriptors returns the descriptors of the screened component as a whole: SMILES,
 // formula, masses (rounded as reported), heavy atoms, rings, aromatic atoms and counter-ions.
 func (s *Structure) MoleculeDescriptors() Descriptors {
+	return s.MoleculeDescriptorsIn(nil)
+}
+
+// MoleculeDescriptorsIn is MoleculeDescriptors with the formulas written into *text (their
+// strings share its bytes, which are never written again while the descriptors are read: a full
+// buffer moves to a new array) rather than looked up in the shared formula cache — for a caller
+// that reuses *text once it is done with the descriptors (a streaming worker). nil: the cache.
+func (s *Structure) MoleculeDescriptorsIn(text *[]byte) Descriptors {
 	m := s.Mol
 	arom := 0
 	for _, a := range s.Main {
@@ -39,10 +48,10 @@ func (s *Structure) MoleculeDescriptors() Descriptors {
 			}
 		}
 	}
-	formula, weight := formulaOf(m, s.Main), m.MolWeightOf(s.Main)
+	formula, weight := formulaIn(text, m, s.Main), m.MolWeightOf(s.Main)
 	recordFormula, recordWeight := formula, weight
 	if len(s.Main) != len(m.Atoms) { // counter-ions or other components: the record differs
-		recordFormula, recordWeight = formulaOf(m, nil), m.MolWeight()
+		recordFormula, recordWeight = formulaIn(text, m, nil), m.MolWeight()
 	}
 	return Descriptors{
 		FromStructure:       true,
@@ -166,4 +175,18 @@ var formulas = memo.New[string](1 << 16)
 func formulaOf(m *mol.Molecule, atoms []int) string {
 	var stack [64]byte
 	return formulas.DoBytes(m.AppendFormulaOf(stack[:0], atoms), func(k string) string { return k })
+}
+
+// formulaIn is m.FormulaOf(atoms) written into *text (see MoleculeDescriptorsIn), or formulaOf
+// when text is nil.
+func formulaIn(text *[]byte, m *mol.Molecule, atoms []int) string {
+	if text == nil {
+		return formulaOf(m, atoms)
+	}
+	from := len(*text)
+	*text = m.AppendFormulaOf(*text, atoms)
+	if len(*text) == from {
+		return ""
+	}
+	return unsafe.String(&(*text)[from], len(*text)-from)
 }
