@@ -3,7 +3,9 @@ package main
 import (
 	"bufio"
 	"bytes"
+	"cmp"
 	"context"
+	"encoding/binary"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -30,12 +32,23 @@ import (
 // compactRow is one screened item as the ranking needs it. It holds no pointer, so the
 // garbage collector does not scan the rows.
 type compactRow struct {
-	key    batch.Key
+	key    sortKey
 	failed bool
 	keep   bool  // passes the output filter
 	n      int32 // the length of the rendered row; 0 for a row the filter drops
 	seq    int
 	off    int64 // the rendered row without its rank in the spool (format-specific, see renderRow)
+}
+
+// sortKey is a rank key read once as its byte and two words (batch.Compare's reading), so that
+// the sort of a large list compares integers.
+type sortKey struct {
+	first  byte
+	w1, w2 uint64
+}
+
+func sortKeyOf(k batch.Key) sortKey {
+	return sortKey{first: k[0], w1: binary.BigEndian.Uint64(k[1:9]), w2: binary.BigEndian.Uint64(k[9:17])}
 }
 
 // streamStats is what the summary line reports.
@@ -72,28 +85,27 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 		go func() {
 			defer wg.Done()
 			var batches [][]compactRow
-			var buf bytes.Buffer // one per worker: not re-made per row
-			var text []byte      // a batch's rendered rows, spooled at once
+			var text bytes.Buffer // a batch's rendered rows, one after another, spooled at once
 			// storage reused from one item to the next: a result is rendered into a row and
 			// dropped before the next item is screened, and the row keeps nothing of it
 			var reuse screening.Reuse
 			for w := range work {
 				items := w.items
 				rows := make([]compactRow, 0, len(items))
-				text = text[:0]
+				text.Reset()
 				for k, it := range items {
 					if ctx.Err() != nil {
 						break
 					}
 					res, err := batch.ScreenItemWith(ctx, &reuse, it, cond)
-					cr := renderRow(&buf, format, w.first+k, it, &res, err, filter)
+					at := text.Len()
+					cr := renderRow(&text, format, w.first+k, it, &res, err, filter)
 					if cr.keep {
-						cr.off, cr.n = int64(len(text)), int32(buf.Len())
-						text = append(text, buf.Bytes()...)
+						cr.off, cr.n = int64(at), int32(text.Len()-at)
 					}
 					rows = append(rows, cr)
 				}
-				base, err := sp.add(text)
+				base, err := sp.add(text.Bytes())
 				if err != nil {
 					cancel(err)
 				}
@@ -150,10 +162,7 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 		return streamStats{}, err
 	}
 	slices.SortFunc(rows, func(a, b compactRow) int {
-		if c := batch.Compare(a.key, b.key); c != 0 {
-			return c
-		}
-		return a.seq - b.seq
+		return cmp.Or(cmp.Compare(a.key.first, b.key.first), cmp.Compare(a.key.w1, b.key.w1), cmp.Compare(a.key.w2, b.key.w2), a.seq-b.seq)
 	})
 	st = streamStats{inputErrors: in.Errors, extraColumns: in.ExtraColumns}
 	for _, r := range rows {
@@ -166,8 +175,8 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 	return st, writeCompact(out, format, rows, sp, in.ExtraColumns)
 }
 
-// renderRow screens nothing: it renders one outcome for the output format into buf (nothing
-// for a row the filter drops: only its rank key and place count).
+// renderRow screens nothing: it renders one outcome for the output format after what buf holds
+// (nothing for a row the filter drops: only its rank key and place count).
 //
 //	csv:   the CSV record with rank 0 (the rank is put in front when writing)
 //	jsonl: the JSON object's members after "rank" — {"error"|"extra","id","line" before it and
@@ -185,8 +194,7 @@ func renderRow(buf *bytes.Buffer, format string, seq int, it batch.InputItem, re
 	} else {
 		key = batch.KeyOf(res)
 	}
-	cr := compactRow{key: key, seq: seq, failed: err != nil, keep: !f.Active() || (res != nil && f.Keeps(res))}
-	buf.Reset()
+	cr := compactRow{key: sortKeyOf(key), seq: seq, failed: err != nil, keep: !f.Active() || (res != nil && f.Keeps(res))}
 	if !cr.keep {
 		return cr
 	}

@@ -2,11 +2,13 @@ package main
 
 import (
 	"bytes"
+	"cmp"
 	"context"
 	"encoding/csv"
 	"encoding/json"
 	"fmt"
 	"io"
+	"math"
 	"os"
 	"strings"
 	"testing"
@@ -134,5 +136,28 @@ func writeRanked(out io.Writer, format string, items []batch.InputItem, rs []bat
 		}
 		_, err := fmt.Fprintln(out, "* extrapolated: far outside any measured ceiling temperature (200–500 K)")
 		return err
+	}
+}
+
+// TestSortKeyOrdersAsCompare: the words a row's key is read into order rows as batch.Compare
+// orders the keys (and so as bytes.Compare orders their bytes), on scores and ΔG_p values
+// around every boundary and on the failed key.
+func TestSortKeyOrdersAsCompare(t *testing.T) {
+	var keys []batch.Key
+	for _, score := range []float64{0, 0.02, 0.35, 0.5, 0.7, 0.9999, 1} {
+		for _, dg := range []float64{math.Inf(-1), -50, -1e-9, 0, math.Copysign(0, -1), 1e-9, 12.5, math.Inf(1)} {
+			keys = append(keys, batch.ScoreKey(score, dg))
+		}
+	}
+	keys = append(keys, batch.FailedKey())
+	sign := func(c int) int { return cmp.Compare(c, 0) }
+	for _, a := range keys {
+		for _, b := range keys {
+			x, y := sortKeyOf(a), sortKeyOf(b)
+			got := cmp.Or(cmp.Compare(x.first, y.first), cmp.Compare(x.w1, y.w1), cmp.Compare(x.w2, y.w2))
+			if want := batch.Compare(a, b); sign(got) != want || bytes.Compare(a[:], b[:]) != want {
+				t.Fatalf("%x vs %x: sort key gives %d, Compare %d, bytes %d", a, b, got, want, bytes.Compare(a[:], b[:]))
+			}
+		}
 	}
 }
