@@ -355,28 +355,31 @@ func parentNameFor(p *mol.Molecule) string {
 // with the olefin's bond in it.
 func coreParentMolecule(s *describe.Structure, o *describe.Olefin) (*mol.Molecule, int, error) {
 	m := s.Mol
-	p := &mol.Molecule{}
-	idx := map[int]int{}
-	for _, a := range o.CoreAtoms {
-		idx[a] = len(p.Atoms)
-		p.Atoms = append(p.Atoms, mol.Atom{Z: 6})
+	n := len(o.CoreAtoms)
+	p := &mol.Molecule{Atoms: make([]mol.Atom, n), Bonds: make([]mol.Bond, 0, n+n/2+1)}
+	idx := make([]int32, len(m.Atoms)) // local number + 1 of each core atom; 0: not in the core
+	for i, a := range o.CoreAtoms {
+		idx[a] = int32(i) + 1
+		p.Atoms[i] = mol.Atom{Z: 6}
 	}
 	for bi, b := range m.Bonds {
-		x, okx := idx[b.A]
-		y, oky := idx[b.B]
-		if !okx || !oky {
+		x, y := idx[b.A], idx[b.B]
+		if x == 0 || y == 0 {
 			continue
 		}
 		order := mol.BondSingle
 		if bi == o.Bond || (b.Order == mol.BondDouble && !s.Rings.AromaticBond[bi]) {
 			order = b.Order
 		}
-		p.Bonds = append(p.Bonds, mol.Bond{A: x, B: y, Order: order})
+		p.Bonds = append(p.Bonds, mol.Bond{A: int(x - 1), B: int(y - 1), Order: order})
 	}
 	sortLocalBonds(p.Bonds) // the parent is cached by the core's written signature
 	p.Index()
 	p.AssignImplicitHydrogens()
-	pb := p.BondBetween(idx[o.A], idx[o.B])
+	pb := -1
+	if idx[o.A] > 0 && idx[o.B] > 0 {
+		pb = p.BondBetween(int(idx[o.A]-1), int(idx[o.B]-1))
+	}
 	if pb < 0 {
 		return nil, 0, fmt.Errorf("olefin not in its core: %w", ErrFFNotApplicable)
 	}

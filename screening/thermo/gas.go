@@ -46,10 +46,11 @@ func systemKey(m *mol.Molecule, atoms []int, skip int, trans bool) string {
 // extract copies the atoms (and the bonds among them, less skip) into a new molecule with no
 // hydrogens and perceives it. It returns the copy and its rings.
 func extract(m *mol.Molecule, atoms []int, skip int) (*mol.Molecule, *rings.Rings) {
-	sub := &mol.Molecule{}
-	idx := map[int]int{}
+	// sized once: a ring system has about as many bonds as atoms (one more per extra ring)
+	sub := &mol.Molecule{Atoms: make([]mol.Atom, 0, len(atoms)), Bonds: make([]mol.Bond, 0, len(atoms)+len(atoms)/2+1)}
+	idx := make([]int32, len(m.Atoms)) // local number + 1 of each atom copied so far; 0: not (yet) copied
 	for _, a := range atoms {
-		idx[a] = len(sub.Atoms)
+		idx[a] = int32(len(sub.Atoms)) + 1
 		at := m.Atoms[a]
 		at.HCount, at.Bracket, at.Chiral, at.NChiral = 0, true, 0, 0
 		if at.Z == 7 || at.Z == 15 || at.Z == 5 {
@@ -67,11 +68,9 @@ func extract(m *mol.Molecule, atoms []int, skip int) (*mol.Molecule, *rings.Ring
 		if bi == skip {
 			continue
 		}
-		x, okx := idx[b.A]
-		y, oky := idx[b.B]
-		if okx && oky {
+		if x, y := idx[b.A], idx[b.B]; x > 0 && y > 0 {
 			nb := b
-			nb.A, nb.B, nb.Dir = x, y, 0
+			nb.A, nb.B, nb.Dir = int(x-1), int(y-1), 0
 			sub.Bonds = append(sub.Bonds, nb)
 		}
 	}
@@ -90,11 +89,11 @@ func sortLocalBonds(bonds []mol.Bond) {
 	})
 }
 
-// heavyNbrsIn counts the non-hydrogen neighbours of a that are in idx.
-func heavyNbrsIn(m *mol.Molecule, a int, idx map[int]int) int {
+// heavyNbrsIn counts the non-hydrogen neighbours of a that are marked in idx (non-zero).
+func heavyNbrsIn(m *mol.Molecule, a int, idx []int32) int {
 	n := 0
 	for _, x := range m.HeavyNbrs(a) {
-		if _, ok := idx[x]; ok {
+		if idx[x] != 0 {
 			n++
 		}
 	}
