@@ -47,26 +47,42 @@ func (g *subgraph) largeKey() string {
 }
 
 type subgraph struct {
-	atoms []int       // molecule atom indices
-	local map[int]int // molecule index -> local index
-	nbr   [][]int     // local adjacency
-	ord   [][]int     // bond order to each neighbour (4 = aromatic)
-	label []string    // atom label: element symbol, lower-case when aromatic
+	atoms []int    // molecule atom indices
+	nbr   [][]int  // local adjacency
+	ord   [][]int  // bond order to each neighbour (4 = aromatic)
+	label []string // atom label: element symbol, lower-case when aromatic
 }
 
 // newSubgraph builds the subgraph of atoms (without bond skipBond when ≥ 0). With full, atom
 // labels carry charge, isotope and unusual hydrogen counts (whole structures); without, element
 // and aromaticity only (ring skeletons).
 func newSubgraph(m *mol.Molecule, r *rings.Rings, atoms []int, skipBond int, full bool) *subgraph {
-	g := &subgraph{atoms: append([]int(nil), atoms...), local: map[int]int{}}
+	g := &subgraph{atoms: append([]int(nil), atoms...)}
 	sort.Ints(g.atoms)
+	local := make([]int32, len(m.Atoms)) // local index + 1 of each atom of the subgraph; 0: not in it
 	for i, a := range g.atoms {
-		g.local[a] = i
+		local[a] = int32(i) + 1
 	}
 	n := len(g.atoms)
+	// the neighbour and order lists carved from one array each, in the molecule's neighbour
+	// order: count each atom's neighbours in the subgraph, then fill
+	deg := make([]int, n+1)
+	for i, a := range g.atoms {
+		for _, bi := range m.Neighbors(a) {
+			if bi != skipBond && local[m.Other(bi, a)] != 0 {
+				deg[i]++
+			}
+		}
+	}
+	total := 0
+	for _, d := range deg {
+		total += d
+	}
+	nbrArr, ordArr := make([]int, total), make([]int, total)
 	g.nbr = make([][]int, n)
 	g.ord = make([][]int, n)
 	g.label = make([]string, n)
+	at0 := 0
 	for i, a := range g.atoms {
 		at := &m.Atoms[a]
 		sym := "*"
@@ -74,30 +90,53 @@ func newSubgraph(m *mol.Molecule, r *rings.Rings, atoms []int, skipBond int, ful
 			sym = e.Symbol
 		}
 		if r.AromaticAtom[a] {
-			sym = strings.ToLower(sym)
+			sym = lowerSymbol(at.Z, sym)
 		}
 		if full {
 			sym = fullLabel(m, a, sym)
 		}
 		g.label[i] = sym
+		nbr, ord := nbrArr[at0:at0:at0+deg[i]], ordArr[at0:at0:at0+deg[i]]
+		at0 += deg[i]
 		for _, bi := range m.Neighbors(a) {
 			if bi == skipBond {
 				continue
 			}
-			o := m.Other(bi, a)
-			j, ok := g.local[o]
-			if !ok {
+			j := local[m.Other(bi, a)]
+			if j == 0 {
 				continue
 			}
-			ord := m.Bonds[bi].Order
+			o := m.Bonds[bi].Order
 			if r.AromaticBond[bi] {
-				ord = 4
+				o = 4
 			}
-			g.nbr[i] = append(g.nbr[i], j)
-			g.ord[i] = append(g.ord[i], ord)
+			nbr = append(nbr, int(j-1))
+			ord = append(ord, o)
+		}
+		if len(nbr) > 0 { // as before: an atom without neighbours in the subgraph has nil lists
+			g.nbr[i], g.ord[i] = nbr, ord
 		}
 	}
 	return g
+}
+
+// lowerSymbols holds each element's lower-case symbol (an aromatic atom's label), by atomic
+// number, written once.
+var lowerSymbols = func() (out [mol.NumElements + 1]string) {
+	for z := range out {
+		if e := mol.ElementByZ(z); e != nil {
+			out[z] = strings.ToLower(e.Symbol)
+		}
+	}
+	return out
+}()
+
+// lowerSymbol is strings.ToLower(sym) for the symbol sym of atomic number z, shared per element.
+func lowerSymbol(z int, sym string) string {
+	if z >= 0 && z < len(lowerSymbols) && lowerSymbols[z] != "" {
+		return lowerSymbols[z]
+	}
+	return strings.ToLower(sym)
 }
 
 // refine runs colour refinement from the given colours until the partition is stable and returns
