@@ -54,7 +54,9 @@ func IsRecomputeMark(b []byte) bool { return bytes.HasPrefix(b, []byte{0, 'r'}) 
 
 // Recompute screens a stored item again under the job's conditions and returns its JSON result.
 func Recompute(ctx context.Context, src ItemSource, c screening.Conditions) ([]byte, error) {
-	res, err := screening.ScreenContext(ctx, screening.Source{SMILES: src.SMILES, Molfile: src.Molfile, Descriptors: src.Descriptors}, c)
+	u := reuses.Get().(*screening.Reuse) // the result is encoded before u is used again
+	defer reuses.Put(u)
+	res, err := screening.ScreenWith(ctx, u, screening.Source{SMILES: src.SMILES, Molfile: src.Molfile, Descriptors: src.Descriptors}, c)
 	if err != nil {
 		return nil, err
 	}

@@ -8,6 +8,7 @@ import (
 	"errors"
 	"fmt"
 	"log/slog"
+	"sync"
 	"time"
 
 	"ringsieve/screening"
@@ -337,7 +338,11 @@ func (r *Runner) screenOne(ctx context.Context, it Item, cond screening.Conditio
 		}
 		src = s
 	}
-	res, err := screening.ScreenContext(ctx, src, cond)
+	// storage reused from one item to the next: the outcome keeps nothing of the result (its
+	// key, verdict name, summary and encoded bytes are copies or constants)
+	u := reuses.Get().(*screening.Reuse)
+	defer reuses.Put(u)
+	res, err := screening.ScreenWith(ctx, u, src, cond)
 	if err != nil {
 		return failed(it.Seq, NewItemError(err))
 	}
@@ -350,6 +355,9 @@ func (r *Runner) screenOne(ctx context.Context, it Item, cond screening.Conditio
 	}
 	return Outcome{Seq: it.Seq, Verdict: res.Verdict, Key: KeyOf(&res), Result: EncodeResult(b), Summary: Summary(&res, "")}
 }
+
+// reuses holds the screening storage of the runner's workers (screening.Reuse).
+var reuses = sync.Pool{New: func() any { return new(screening.Reuse) }}
 
 func failed(seq int, e *ItemError) Outcome {
 	b, _ := json.Marshal(e) // an ItemError always encodes
