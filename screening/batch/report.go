@@ -22,5 +22,6 @@ const SummarySep = "\x1f"
 // Summary returns the result's CSV fields (verdict to error, without rank, id, line and extra
 // columns) joined by SummarySep: what a job stores to write its CSV without decoding results.
 func Summary(r *screening.Result, errMsg string) string {
-	return string(appendSummary(make([]byte, 0, 256), r, errMsg))
+	var stack [512]byte // the fields are written on the stack and copied once into the string
+	return string(appendSummary(stack[:0], r, errMsg))
 }
