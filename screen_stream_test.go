@@ -9,7 +9,9 @@ import (
 	"fmt"
 	"io"
 	"math"
+	"math/rand/v2"
 	"os"
+	"slices"
 	"strings"
 	"testing"
 	"text/tabwriter"
@@ -158,6 +160,31 @@ func TestSortKeyOrdersAsCompare(t *testing.T) {
 			if want := batch.Compare(a, b); sign(got) != want || bytes.Compare(a[:], b[:]) != want {
 				t.Fatalf("%x vs %x: sort key gives %d, Compare %d, bytes %d", a, b, got, want, bytes.Compare(a[:], b[:]))
 			}
+		}
+	}
+}
+
+// TestMergeRunsSorts: merging runs that are each in rank order gives the order a sort of all
+// the rows gives, for runs of every length including empty ones and keys with many ties.
+func TestMergeRunsSorts(t *testing.T) {
+	rng := rand.New(rand.NewPCG(1, 2))
+	for trial := 0; trial < 200; trial++ {
+		var runs [][]compactRow
+		var all []compactRow
+		seq := 0
+		for k := rng.IntN(12); k >= 0; k-- {
+			run := make([]compactRow, rng.IntN(40))
+			for i := range run {
+				run[i] = compactRow{key: sortKey{first: byte(rng.IntN(2)), w1: uint64(rng.IntN(4)), w2: uint64(rng.IntN(3))}, seq: seq}
+				seq++
+			}
+			slices.SortFunc(run, func(a, b compactRow) int { return compareRows(&a, &b) })
+			runs = append(runs, run)
+			all = append(all, run...)
+		}
+		slices.SortFunc(all, func(a, b compactRow) int { return compareRows(&a, &b) })
+		if got := mergeRuns(runs); !slices.Equal(got, all) {
+			t.Fatalf("trial %d: merged order differs from the sorted order", trial)
 		}
 	}
 }
