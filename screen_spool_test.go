@@ -105,8 +105,8 @@ func TestRowSpoolFileError(t *testing.T) {
 	}
 }
 
-// The compact rows stay at 40 bytes (17 of rank key, the place, the sequence and two flags):
-// the whole of what a screened item costs the process until ranking.
+// The compact rows stay at 40 bytes (the rank key as two words and a byte, the place, the
+// sequence and two flags): the whole of what a screened item costs the process until ranking.
 func TestCompactRowSize(t *testing.T) {
 	if n := unsafe.Sizeof(compactRow{}); n != 40 {
 		t.Errorf("compactRow is %d bytes", n)

@@ -32,7 +32,10 @@ import (
 // compactRow is one screened item as the ranking needs it. It holds no pointer, so the
 // garbage collector does not scan the rows.
 type compactRow struct {
-	key    sortKey
+	// the rank key read once as its byte and two words (batch.Compare's reading), so that the
+	// ranking compares integers (setKey)
+	w1, w2 uint64
+	first  byte
 	failed bool
 	keep   bool  // passes the output filter
 	n      int32 // the length of the rendered row; 0 for a row the filter drops
@@ -40,20 +43,14 @@ type compactRow struct {
 	off    int64 // the rendered row without its rank in the spool (format-specific, see renderRow)
 }
 
-// sortKey is a rank key read once as its byte and two words (batch.Compare's reading), so that
-// the sort of a large list compares integers.
-type sortKey struct {
-	first  byte
-	w1, w2 uint64
-}
-
-func sortKeyOf(k batch.Key) sortKey {
-	return sortKey{first: k[0], w1: binary.BigEndian.Uint64(k[1:9]), w2: binary.BigEndian.Uint64(k[9:17])}
+// setKey stores rank key k in the row.
+func (r *compactRow) setKey(k batch.Key) {
+	r.first, r.w1, r.w2 = k[0], binary.BigEndian.Uint64(k[1:9]), binary.BigEndian.Uint64(k[9:17])
 }
 
 // compareRows orders rows by rank: by key (batch.Compare's order), ties in submission order.
 func compareRows(a, b *compactRow) int {
-	return cmp.Or(cmp.Compare(a.key.first, b.key.first), cmp.Compare(a.key.w1, b.key.w1), cmp.Compare(a.key.w2, b.key.w2), cmp.Compare(a.seq, b.seq))
+	return cmp.Or(cmp.Compare(a.first, b.first), cmp.Compare(a.w1, b.w1), cmp.Compare(a.w2, b.w2), cmp.Compare(a.seq, b.seq))
 }
 
 // mergeRuns merges runs, each sorted by compareRows, into one sorted list: a binary heap of the
@@ -242,7 +239,8 @@ func renderRow(buf *bytes.Buffer, format string, seq int, it batch.InputItem, re
 	} else {
 		key = batch.KeyOf(res)
 	}
-	cr := compactRow{key: sortKeyOf(key), seq: seq, failed: err != nil, keep: !f.Active() || (res != nil && f.Keeps(res))}
+	cr := compactRow{seq: seq, failed: err != nil, keep: !f.Active() || (res != nil && f.Keeps(res))}
+	cr.setKey(key)
 	if !cr.keep {
 		return cr
 	}

@@ -141,7 +141,7 @@ func writeRanked(out io.Writer, format string, items []batch.InputItem, rs []bat
 	}
 }
 
-// TestSortKeyOrdersAsCompare: the words a row's key is read into order rows as batch.Compare
+// TestSortKeyOrdersAsCompare: the words a row's key is read into (setKey) order rows as batch.Compare
 // orders the keys (and so as bytes.Compare orders their bytes), on scores and ΔG_p values
 // around every boundary and on the failed key.
 func TestSortKeyOrdersAsCompare(t *testing.T) {
@@ -155,8 +155,10 @@ func TestSortKeyOrdersAsCompare(t *testing.T) {
 	sign := func(c int) int { return cmp.Compare(c, 0) }
 	for _, a := range keys {
 		for _, b := range keys {
-			x, y := sortKeyOf(a), sortKeyOf(b)
-			got := cmp.Or(cmp.Compare(x.first, y.first), cmp.Compare(x.w1, y.w1), cmp.Compare(x.w2, y.w2))
+			var x, y compactRow // the same sequence number: only the keys decide
+			x.setKey(a)
+			y.setKey(b)
+			got := compareRows(&x, &y)
 			if want := batch.Compare(a, b); sign(got) != want || bytes.Compare(a[:], b[:]) != want {
 				t.Fatalf("%x vs %x: sort key gives %d, Compare %d, bytes %d", a, b, got, want, bytes.Compare(a[:], b[:]))
 			}
@@ -175,7 +177,7 @@ func TestMergeRunsSorts(t *testing.T) {
 		for k := rng.IntN(12); k >= 0; k-- {
 			run := make([]compactRow, rng.IntN(40))
 			for i := range run {
-				run[i] = compactRow{key: sortKey{first: byte(rng.IntN(2)), w1: uint64(rng.IntN(4)), w2: uint64(rng.IntN(3))}, seq: seq}
+				run[i] = compactRow{first: byte(rng.IntN(2)), w1: uint64(rng.IntN(4)), w2: uint64(rng.IntN(3)), seq: seq}
 				seq++
 			}
 			slices.SortFunc(run, func(a, b compactRow) int { return compareRows(&a, &b) })
