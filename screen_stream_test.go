@@ -141,9 +141,9 @@ func writeRanked(out io.Writer, format string, items []batch.InputItem, rs []bat
 	}
 }
 
-// TestSortKeyOrdersAsCompare: the words a row's key is read into (setKey) order rows as batch.Compare
-// orders the keys (and so as bytes.Compare orders their bytes), on scores and ΔG_p values
-// around every boundary and on the failed key.
+// TestSortKeyOrdersAsCompare: the words a row's key is read into (setKey) order rows as
+// batch.Compare orders the keys (and so as bytes.Compare orders their bytes), on scores and
+// ΔG_p values around every boundary and on the failed key.
 func TestSortKeyOrdersAsCompare(t *testing.T) {
 	var keys []batch.Key
 	for _, score := range []float64{0, 0.02, 0.35, 0.5, 0.7, 0.9999, 1} {
