@@ -834,3 +834,76 @@ func TestRestartFreesClaimsOfTheCrashedProcess(t *testing.T) {
 		t.Fatalf("both chunks should be claimable after the restart: %+v %+v %v", a, b, err)
 	}
 }
+
+// TestUnsyncedTransactionLeavesConnectionsSynced: an upload's middle chunks commit on a
+// connection set to synchronous=NORMAL (beginTxUnsynced), and the connection goes back to the
+// pool at FULL (2), whether the transaction commits or rolls back; what it wrote is there.
+func TestUnsyncedTransactionLeavesConnectionsSynced(t *testing.T) {
+	s, _ := openTemp(t)
+	ctx := context.Background()
+	s.db.SetMaxOpenConns(1) // every statement below runs on the one connection
+	for _, commit := range []bool{true, false} {
+		tx, end, err := s.beginTxUnsynced(ctx)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var mode int
+		if err := tx.QueryRowContext(ctx, "PRAGMA synchronous").Scan(&mode); err != nil || mode != 1 {
+			t.Fatalf("inside the transaction: synchronous = %d (%v), want 1 (NORMAL)", mode, err)
+		}
+		if _, err := s.exec(ctx, tx, `INSERT INTO api_keys (id, name, hash, created_at) VALUES (?, ?, ?, ?)`, fmt.Sprint("k", commit), "test", fmt.Sprint("h", commit), now()); err != nil {
+			t.Fatal(err)
+		}
+		var endErr error
+		if !commit {
+			endErr = errors.New("rolled back on purpose")
+		}
+		if err := end(endErr); (err == nil) != commit {
+			t.Fatalf("end: %v", err)
+		}
+		if err := s.db.QueryRowContext(ctx, "PRAGMA synchronous").Scan(&mode); err != nil || mode != 2 {
+			t.Fatalf("after the transaction (commit %v): synchronous = %d (%v), want 2 (FULL)", commit, mode, err)
+		}
+		var n int
+		if err := s.db.QueryRowContext(ctx, `SELECT COUNT(*) FROM api_keys WHERE id = ?`, fmt.Sprint("k", commit)).Scan(&n); err != nil || (n == 1) != commit {
+			t.Fatalf("commit %v: %d rows written (%v)", commit, n, err)
+		}
+	}
+}
+
+// TestFirstChunkIsShort: an upload's first chunk holds at most firstChunkMax items, so workers
+// start while the rest is read; the later chunks have the job's chunk size.
+func TestFirstChunkIsShort(t *testing.T) {
+	s, _ := openTemp(t)
+	ctx := context.Background()
+	n := firstChunkMax + DefaultChunkSize + 10
+	cond := screening.DefaultConditions()
+	cond.ThermoMethod = "table" // the fast tier's chunk size
+	out := batch.EffectiveConditions(cond)
+	_, err := s.CreateJob(ctx, JobSpec{Conditions: &out}, func(add func(JobInput) error) (JobMeta, error) {
+		for i := 0; i < n; i++ {
+			if err := add(JobInput{ItemID: fmt.Sprint("item-", i), Line: i + 1, Source: batch.ItemSource{SMILES: "C1=CCCC1"}}); err != nil {
+				return JobMeta{}, err
+			}
+		}
+		return JobMeta{Format: "smiles"}, nil
+	})
+	if err != nil {
+		t.Fatal(err)
+	}
+	var got []string
+	for {
+		c, err := s.ClaimChunk(ctx, "w", time.Minute)
+		if errors.Is(err, ErrNotFound) {
+			break
+		}
+		if err != nil {
+			t.Fatal(err)
+		}
+		got = append(got, fmt.Sprintf("%d:%d-%d", c.No, c.FirstSeq, c.LastSeq))
+	}
+	want := fmt.Sprintf("[0:0-%d 1:%d-%d 2:%d-%d]", firstChunkMax-1, firstChunkMax, firstChunkMax+DefaultChunkSize-1, firstChunkMax+DefaultChunkSize, n-1)
+	if fmt.Sprint(got) != want {
+		t.Fatalf("chunks %v, want %s", got, want)
+	}
+}

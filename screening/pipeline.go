@@ -164,9 +164,11 @@ func ScreenSMILESContext(ctx context.Context, text string, c Conditions) (Result
 
 // Reuse is storage that screening reuses from one structure to the next, for a caller that is
 // done with each result before it screens the next (a streaming worker that renders a row and
-// drops the result): the molecule's workspace and the result blocks (judge.Blocks). A result
-// screened with a Reuse — its texts and lists included — is valid only until the next
-// screening with the same Reuse. The zero value is ready; a Reuse is for one goroutine.
+// drops the result; a job worker that encodes it): the molecule's workspace, the result blocks
+// (judge.Blocks), the olefin candidates, the estimate notes, the other-olefin list and the
+// formulas' bytes. A result screened with a Reuse — its texts and lists included — is valid
+// only until the next screening with the same Reuse: render, encode or copy it first, never
+// keep it. The zero value is ready; a Reuse is for one goroutine.
 type Reuse struct {
 	ws     describe.Workspace
 	blocks judge.Blocks
