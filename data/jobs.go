@@ -56,7 +56,7 @@ const (
 
 // firstChunkMax bounds an upload's first chunk (design choice: an eighth of the fast tier's
 // chunk): workers start on it while the rest of the upload is read and stored, instead of
-// waiting for a whole chunk's lines (about 60 ms of a 100,000-line job's head).
+// waiting for a whole chunk's 4,096 lines to be read and stored.
 const firstChunkMax = DefaultChunkSize / 8
 
 // chunkSize is the spec's chunk size, or ChunkSizeFor the job's thermo method.
@@ -151,15 +151,8 @@ func (s *Store) createJobStreaming(ctx context.Context, j *batch.Job, ts string,
 	}
 	size := spec.chunkSize(spec.Conditions.ThermoMethod)
 	var end func(error) error // the open transaction's
-	// the middle chunks commit without waiting for the disk (no client knows of them yet; a
-	// load cut short is purged as before); the last transaction, which answers the upload,
-	// is synced and makes them durable with it
-	open := func(last bool) error {
-		begin := s.beginTxUnsynced
-		if last {
-			begin = s.beginTx
-		}
-		tx, e, err := begin(ctx)
+	open := func() error {
+		tx, e, err := s.beginTx(ctx)
 		if err != nil {
 			return err
 		}
@@ -183,7 +176,7 @@ func (s *Store) createJobStreaming(ctx context.Context, j *batch.Job, ts string,
 		}
 		// a transaction (and the store's write slot) only while a full chunk is written: the
 		// workers' result writes are not held up while the next lines are read
-		if l.err = open(false); l.err != nil {
+		if l.err = open(); l.err != nil {
 			return l.err
 		}
 		err := l.writeChunks(want)
@@ -202,7 +195,7 @@ func (s *Store) createJobStreaming(ctx context.Context, j *batch.Job, ts string,
 		err = l.err // a failed write that fill did not pass on
 	}
 	if err == nil {
-		err = open(true)
+		err = open()
 	}
 	if err == nil {
 		err, end = end(l.finish(meta)), nil

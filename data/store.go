@@ -8,7 +8,6 @@ import (
 	"context"
 	"crypto/rand"
 	"database/sql"
-	"database/sql/driver"
 	"encoding/hex"
 	"errors"
 	"fmt"
@@ -139,52 +138,6 @@ func (s *Store) tx1(ctx context.Context, fn func(*sql.Tx) error) error {
 	return end(fn(t))
 }
 
-// beginTxUnsynced is beginTx for a transaction whose durability a later synced commit gives:
-// on SQLite it runs on a connection set to synchronous=NORMAL, so its commit appends to the WAL
-// without waiting for the disk; the next commit at the store's synchronous=FULL syncs the WAL
-// file, and with it this transaction's frames. A crash (of the machine; a process crash loses
-// nothing in WAL mode) before that commit may lose it — callers use it only for writes that no
-// client has been told of yet, whose loss leaves a state the store already recovers from (the
-// middle chunks of an upload, acknowledged by the upload's last, synced transaction). On
-// PostgreSQL it is beginTx.
-func (s *Store) beginTxUnsynced(ctx context.Context) (*sql.Tx, func(error) error, error) {
-	if s.dialect.name != sqliteDialect.name {
-		return s.beginTx(ctx)
-	}
-	release := func() {}
-	if s.writeSlot != nil {
-		select {
-		case s.writeSlot <- struct{}{}:
-			release = func() { <-s.writeSlot }
-		case <-ctx.Done():
-			return nil, nil, ctx.Err()
-		}
-	}
-	conn, err := s.db.Conn(ctx)
-	if err != nil {
-		release()
-		return nil, nil, s.fault(err)
-	}
-	// the connection goes back to the pool at FULL again (or is discarded when that fails)
-	done := func() {
-		if _, err := conn.ExecContext(context.WithoutCancel(ctx), "PRAGMA synchronous = FULL"); err != nil {
-			conn.Raw(func(any) error { return driver.ErrBadConn })
-		}
-		conn.Close()
-		release()
-	}
-	if _, err := conn.ExecContext(ctx, "PRAGMA synchronous = NORMAL"); err != nil {
-		done()
-		return nil, nil, s.fault(err)
-	}
-	t, err := conn.BeginTx(ctx, nil)
-	if err != nil {
-		done()
-		return nil, nil, s.fault(err)
-	}
-	return t, s.ender(t, done), nil
-}
-
 // beginTx begins a write transaction (on SQLite after taking this process's write slot). end
 // finishes it: it commits when given nil and rolls back otherwise, gives the slot back, and
 // returns the error to report (storage faults wrap ErrUnavailable, as for tx).
@@ -203,13 +156,7 @@ func (s *Store) beginTx(ctx context.Context) (*sql.Tx, func(error) error, error)
 		release()
 		return nil, nil, s.fault(err)
 	}
-	return t, s.ender(t, release), nil
-}
-
-// ender returns the end function of transaction t: it commits when given nil and rolls back
-// otherwise, then calls release, and returns the error to report.
-func (s *Store) ender(t *sql.Tx, release func()) func(error) error {
-	return func(err error) error {
+	end := func(err error) error {
 		defer release()
 		if err != nil {
 			if rb := t.Rollback(); rb != nil && !errors.Is(rb, sql.ErrTxDone) {
@@ -223,6 +170,7 @@ func (s *Store) ender(t *sql.Tx, release func()) func(error) error {
 		s.recovered()
 		return nil
 	}
+	return t, end, nil
 }
 
 // exec and queryRow run a ?-placeholder query in a transaction on the store's engine.

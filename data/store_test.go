@@ -835,42 +835,6 @@ func TestRestartFreesClaimsOfTheCrashedProcess(t *testing.T) {
 	}
 }
 
-// TestUnsyncedTransactionLeavesConnectionsSynced: an upload's middle chunks commit on a
-// connection set to synchronous=NORMAL (beginTxUnsynced), and the connection goes back to the
-// pool at FULL (2), whether the transaction commits or rolls back; what it wrote is there.
-func TestUnsyncedTransactionLeavesConnectionsSynced(t *testing.T) {
-	s, _ := openTemp(t)
-	ctx := context.Background()
-	s.db.SetMaxOpenConns(1) // every statement below runs on the one connection
-	for _, commit := range []bool{true, false} {
-		tx, end, err := s.beginTxUnsynced(ctx)
-		if err != nil {
-			t.Fatal(err)
-		}
-		var mode int
-		if err := tx.QueryRowContext(ctx, "PRAGMA synchronous").Scan(&mode); err != nil || mode != 1 {
-			t.Fatalf("inside the transaction: synchronous = %d (%v), want 1 (NORMAL)", mode, err)
-		}
-		if _, err := s.exec(ctx, tx, `INSERT INTO api_keys (id, name, hash, created_at) VALUES (?, ?, ?, ?)`, fmt.Sprint("k", commit), "test", fmt.Sprint("h", commit), now()); err != nil {
-			t.Fatal(err)
-		}
-		var endErr error
-		if !commit {
-			endErr = errors.New("rolled back on purpose")
-		}
-		if err := end(endErr); (err == nil) != commit {
-			t.Fatalf("end: %v", err)
-		}
-		if err := s.db.QueryRowContext(ctx, "PRAGMA synchronous").Scan(&mode); err != nil || mode != 2 {
-			t.Fatalf("after the transaction (commit %v): synchronous = %d (%v), want 2 (FULL)", commit, mode, err)
-		}
-		var n int
-		if err := s.db.QueryRowContext(ctx, `SELECT COUNT(*) FROM api_keys WHERE id = ?`, fmt.Sprint("k", commit)).Scan(&n); err != nil || (n == 1) != commit {
-			t.Fatalf("commit %v: %d rows written (%v)", commit, n, err)
-		}
-	}
-}
-
 // TestFirstChunkIsShort: an upload's first chunk holds at most firstChunkMax items, so workers
 // start while the rest is read; the later chunks have the job's chunk size.
 func TestFirstChunkIsShort(t *testing.T) {
