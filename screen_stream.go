@@ -27,7 +27,8 @@ import (
 // core as they arrive, and each result is kept only as a compact row — its rank key and the
 // place of its output, already rendered, in a spool (screen_spool.go) — so the heap grows by
 // about 40 bytes per item instead of a whole result, and reading, screening and rendering
-// overlap. Ranking sorts the compact rows; the ranked write reads each row's text back.
+// overlap. Ranking: each worker sorts its batches' compact rows, and the sorted batches are
+// merged at the end; the ranked write reads each row's text back.
 
 // compactRow is one screened item as the ranking needs it. It holds no pointer, so the
 // garbage collector does not scan the rows.
@@ -54,8 +55,8 @@ func compareRows(a, b *compactRow) int {
 }
 
 // mergeRuns merges runs, each sorted by compareRows, into one sorted list: a binary heap of the
-// runs' first rows, n log k comparisons for n rows in k runs (a sort of the joined runs took
-// about twice as long, and the join itself a copy).
+// runs' first rows, about n log k comparisons for n rows in k runs (a sort of all the rows
+// joined needs about n log n, after copying them into one list).
 func mergeRuns(runs [][]compactRow) []compactRow {
 	total := 0
 	h := make([][]compactRow, 0, len(runs))
