@@ -4,6 +4,7 @@ import (
 	"context"
 	"runtime"
 	"sync"
+	"sync/atomic"
 )
 
 // Map calls fn(i) for i in [0, n) on up to workers goroutines (workers ≤ 0: one per core) and
@@ -26,16 +27,18 @@ func Map(ctx context.Context, n, workers int, fn func(i int)) error {
 		}
 		return nil
 	}
-	var next int
-	var mu sync.Mutex
+	// the next index, handed out by an atomic counter: a mutex here was contended by every
+	// worker for every item (a job's execution trace showed goroutines waiting on its unlock)
+	var next atomic.Int64
 	take := func() (int, bool) {
-		mu.Lock()
-		defer mu.Unlock()
-		if next >= n || ctx.Err() != nil {
+		if ctx.Err() != nil {
 			return 0, false
 		}
-		next++
-		return next - 1, true
+		i := next.Add(1) - 1 // past n once every index is taken: the worker stops
+		if i >= int64(n) {
+			return 0, false
+		}
+		return int(i), true
 	}
 	var wg sync.WaitGroup
 	for w := 0; w < workers; w++ {
@@ -48,7 +51,7 @@ func Map(ctx context.Context, n, workers int, fn func(i int)) error {
 		}()
 	}
 	wg.Wait()
-	if next < n {
+	if next.Load() < int64(n) { // stopped before every index was taken
 		return ctx.Err()
 	}
 	return nil
