@@ -5,7 +5,6 @@ import (
 	"bytes"
 	"cmp"
 	"context"
-	"encoding/binary"
 	"encoding/json"
 	"fmt"
 	"io"
@@ -33,8 +32,8 @@ import (
 // compactRow is one screened item as the ranking needs it. It holds no pointer, so the
 // garbage collector does not scan the rows.
 type compactRow struct {
-	// the rank key read once as its byte and two words (batch.Compare's reading), so that the
-	// ranking compares integers (setKey)
+	// the rank key read once as its byte and two words (batch.Key.Words), so that the ranking
+	// compares integers (setKey)
 	w1, w2 uint64
 	first  byte
 	failed bool
@@ -45,9 +44,7 @@ type compactRow struct {
 }
 
 // setKey stores rank key k in the row.
-func (r *compactRow) setKey(k batch.Key) {
-	r.first, r.w1, r.w2 = k[0], binary.BigEndian.Uint64(k[1:9]), binary.BigEndian.Uint64(k[9:17])
-}
+func (r *compactRow) setKey(k batch.Key) { r.first, r.w1, r.w2 = k.Words() }
 
 // compareRows orders rows by rank: by key (batch.Compare's order), ties in submission order.
 func compareRows(a, b *compactRow) int {

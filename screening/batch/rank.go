@@ -52,13 +52,15 @@ func Less(a, b Key) bool { return Compare(a, b) < 0 }
 // Compare orders keys as bytes.Compare orders their bytes (−1, 0, +1), reading them as a byte
 // and two big-endian words: the ranking of a large list compares keys about 40 times per item.
 func Compare(a, b Key) int {
-	if a[0] != b[0] {
-		return cmp.Compare(a[0], b[0])
-	}
-	if x, y := binary.BigEndian.Uint64(a[1:9]), binary.BigEndian.Uint64(b[1:9]); x != y {
-		return cmp.Compare(x, y)
-	}
-	return cmp.Compare(binary.BigEndian.Uint64(a[9:17]), binary.BigEndian.Uint64(b[9:17]))
+	a0, a1, a2 := a.Words()
+	b0, b1, b2 := b.Words()
+	return cmp.Or(cmp.Compare(a0, b0), cmp.Compare(a1, b1), cmp.Compare(a2, b2))
+}
+
+// Words reads k as its first byte and two big-endian words, whose order (in that sequence) is
+// the keys' byte order: what a list that compares keys many times keeps instead of the bytes.
+func (k Key) Words() (first byte, w1, w2 uint64) {
+	return k[0], binary.BigEndian.Uint64(k[1:9]), binary.BigEndian.Uint64(k[9:17])
 }
 
 // sortable maps a float64 to a uint64 whose unsigned order is the numeric order (−0 and +0 map

@@ -66,7 +66,7 @@ func newSubgraph(m *mol.Molecule, r *rings.Rings, atoms []int, skipBond int, ful
 	n := len(g.atoms)
 	// the neighbour and order lists carved from one array each, in the molecule's neighbour
 	// order: count each atom's neighbours in the subgraph, then fill
-	deg := make([]int, n+1)
+	deg := make([]int, n)
 	for i, a := range g.atoms {
 		for _, bi := range m.Neighbors(a) {
 			if bi != skipBond && local[m.Other(bi, a)] != 0 {

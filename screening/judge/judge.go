@@ -283,16 +283,21 @@ func (bs *Blocks) Reset() { bs.used = 0 }
 // of bs's blocks, emptied.
 func (bs *Blocks) next() *judged {
 	if bs == nil {
-		blk := new(judged)
-		blk.text = blk.textArr[:0]
-		return blk
+		return newJudged()
 	}
 	if bs.used == len(bs.list) {
-		bs.list = append(bs.list, new(judged))
+		bs.list = append(bs.list, newJudged())
 	}
 	blk := bs.list[bs.used]
 	bs.used++
 	blk.reset()
+	return blk
+}
+
+// newJudged returns an empty block whose texts start in its own array.
+func newJudged() *judged {
+	blk := new(judged)
+	blk.text = blk.textArr[:0]
 	return blk
 }
 
