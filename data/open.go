@@ -36,6 +36,8 @@ func IsPostgresURL(dsn string) bool {
 // a write acknowledged to a client has been flushed to the disk with its WAL frame, so it
 // survives a crash of the process and of the machine (power loss), at the cost of one sync per
 // commit (design choice; job results are committed a chunk at a time, so the cost is small).
+// The log is copied back into the file when the store is idle, not inside a busy commit
+// (checkpoint.go).
 //
 // The file is opened through SQLite's "unix-excl" VFS: the first access takes an exclusive lock
 // for this process (its connections share the file; another process gets ErrInUse), and the WAL
@@ -55,7 +57,8 @@ func openSQLite(ctx context.Context, path string) (*Store, error) {
 	q.Set("vfs", "unix-excl")
 	// the path is part of a URI: escape the characters that would end or change it
 	esc := strings.NewReplacer("%", "%25", "?", "%3f", "#", "%23").Replace(path)
-	db, err := sql.Open("sqlite3", "file:"+esc+"?"+q.Encode())
+	registerSQLiteDriver()
+	db, err := sql.Open(sqliteDriverName, "file:"+esc+"?"+q.Encode())
 	if err != nil {
 		return nil, fmt.Errorf("open %s: %w", path, err)
 	}
@@ -87,6 +90,7 @@ func openSQLite(ctx context.Context, path string) (*Store, error) {
 		db.Close()
 		return nil, fmt.Errorf("open %s: remove jobs whose upload an earlier process left unfinished: %w", path, err)
 	}
+	s.ckpt = newCheckpointer(db)
 	return s, nil
 }
 

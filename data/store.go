@@ -48,6 +48,8 @@ type Store struct {
 	// this process (unix-excl), so a writer that queues here instead of in SQLite's busy
 	// handler starts the moment the previous commit ends rather than after a back-off sleep.
 	writeSlot chan struct{}
+	// ckpt copies the SQLite log back into the file when the store is idle; nil for PostgreSQL
+	ckpt *checkpointer
 }
 
 // dialect holds what differs between the engines the SQL runs on.
@@ -86,7 +88,12 @@ func (s *Store) q(query string) string {
 }
 
 // Close closes the database.
-func (s *Store) Close() error { return s.db.Close() }
+func (s *Store) Close() error {
+	if s.ckpt != nil {
+		s.ckpt.close()
+	}
+	return s.db.Close()
+}
 
 // DB exposes the handle for tests and maintenance.
 func (s *Store) DB() *sql.DB { return s.db }
@@ -166,6 +173,9 @@ func (s *Store) beginTx(ctx context.Context) (*sql.Tx, func(error) error, error)
 		}
 		if err := t.Commit(); err != nil {
 			return s.fault(err)
+		}
+		if s.ckpt != nil {
+			s.ckpt.committed()
 		}
 		s.recovered()
 		return nil
