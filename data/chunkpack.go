@@ -46,6 +46,14 @@ type itemPacker struct {
 }
 
 func (p *itemPacker) add(it JobInput) error {
+	if smilesOnly(it.Source) {
+		if n, ok := smilesSourceLen(it.Source.SMILES); ok { // written in place: no copy made
+			b := p.head(it.ItemID, it.Line, n)
+			b = appendSMILESSource(b, it.Source.SMILES)
+			p.tail(b, it.Extra)
+			return nil
+		}
+	}
 	src, err := encodeSource(it.Source)
 	if err != nil {
 		return err
@@ -57,10 +65,18 @@ func (p *itemPacker) add(it JobInput) error {
 // addEncoded adds an item whose source is already encoded (batch.DecodeItemSource reads it):
 // the one place the packed item format is written.
 func (p *itemPacker) addEncoded(id string, line int, src []byte, extra []string) {
+	p.tail(append(p.head(id, line, len(src)), src...), extra)
+}
+
+// head appends an item's id, line and the length of its source, which the caller appends next.
+func (p *itemPacker) head(id string, line, srcLen int) []byte {
 	b := putStr(p.buf, id)
 	b = binary.AppendUvarint(b, uint64(max(line, 0)))
-	b = binary.AppendUvarint(b, uint64(len(src)))
-	b = append(b, src...)
+	return binary.AppendUvarint(b, uint64(srcLen))
+}
+
+// tail appends an item's extra columns after its source and ends the item.
+func (p *itemPacker) tail(b []byte, extra []string) {
 	b = binary.AppendUvarint(b, uint64(len(extra)))
 	for _, e := range extra {
 		b = putStr(b, e)

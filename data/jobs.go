@@ -8,6 +8,7 @@ import (
 	"errors"
 	"fmt"
 	"slices"
+	"strings"
 	"time"
 
 	"ringsieve/screening"
@@ -325,19 +326,52 @@ func (l *jobLoad) finish(meta JobMeta) error {
 }
 
 // encodeSource is json.Marshal of an item source; one holding only a SMILES (almost every
-// uploaded item) is written without reflecting over the struct.
+// uploaded item) is written without reflecting over the struct (appendSMILESSource).
 func encodeSource(s batch.ItemSource) ([]byte, error) {
-	if s.Molfile != "" || s.Descriptors != nil || s.MonomerID != "" || s.SMILES == "" {
-		return json.Marshal(s)
+	if smilesOnly(s) {
+		if n, ok := smilesSourceLen(s.SMILES); ok {
+			return appendSMILESSource(make([]byte, 0, n), s.SMILES), nil
+		}
 	}
-	v, err := json.Marshal(s.SMILES)
-	if err != nil {
-		return nil, err
+	return json.Marshal(s)
+}
+
+// smilesOnly reports whether a source holds a SMILES and nothing else.
+func smilesOnly(s batch.ItemSource) bool {
+	return s.SMILES != "" && s.Molfile == "" && s.Descriptors == nil && s.MonomerID == ""
+}
+
+// smilesSourceLen returns the length of the stored form of a SMILES-only source, the bytes
+// json.Marshal writes: {"smiles":"…"} with " and \ escaped by a backslash. ok is false for a
+// SMILES with a byte json.Marshal writes otherwise (a control or non-ASCII byte, or <, > and &,
+// which it writes as \u escapes); such a source takes the reflecting path.
+func smilesSourceLen(smi string) (n int, ok bool) {
+	n = len(`{"smiles":""}`) + len(smi)
+	for i := 0; i < len(smi); i++ {
+		switch c := smi[i]; {
+		case c < 0x20 || c > 0x7e || c == '<' || c == '>' || c == '&':
+			return 0, false
+		case c == '"' || c == '\\':
+			n++
+		}
 	}
-	b := make([]byte, 0, len(v)+12)
-	b = append(b, `{"smiles":`...)
-	b = append(b, v...)
-	return append(b, '}'), nil
+	return n, true
+}
+
+// appendSMILESSource appends the stored form of a SMILES-only source whose smilesSourceLen
+// was ok.
+func appendSMILESSource(b []byte, smi string) []byte {
+	b = append(b, `{"smiles":"`...)
+	for {
+		i := strings.IndexAny(smi, "\"\\")
+		if i < 0 {
+			break
+		}
+		b = append(append(b, smi[:i]...), '\\', smi[i])
+		smi = smi[i+1:]
+	}
+	b = append(b, smi...)
+	return append(b, `"}`...)
 }
 
 const jobCols = `id, status, conditions, total, done, failed, source_format, extra_columns, error, created_at, started_at, finished_at`

@@ -1,6 +1,8 @@
 package batch
 
 import (
+	"encoding/json"
+	"reflect"
 	"strings"
 	"testing"
 
@@ -29,6 +31,22 @@ func FuzzReadInput(f *testing.F) {
 				}
 			}
 			ScreenItem(it, screening.DefaultConditions())
+		}
+	})
+}
+
+// FuzzDecodeItemSource: any stored text is read as json.Unmarshal reads it, or refused as it
+// refuses it.
+func FuzzDecodeItemSource(f *testing.F) {
+	for _, s := range []string{`{"smiles":"C1=CCCC1"}`, `{"smiles":"F/C=C\\F"}`, `{"smiles":"C\"}`, `{"smiles":"C\u00e9"}`, `{"monomer_id":"m"}`} {
+		f.Add(s)
+	}
+	f.Fuzz(func(t *testing.T, src string) {
+		var want ItemSource
+		werr := json.Unmarshal([]byte(src), &want)
+		got, gerr := DecodeItemSource(src)
+		if (werr == nil) != (gerr == nil) || (werr == nil && !reflect.DeepEqual(got, want)) {
+			t.Fatalf("%q: got %+v (%v), json.Unmarshal %+v (%v)", src, got, gerr, want, werr)
 		}
 	})
 }

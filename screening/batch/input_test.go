@@ -80,7 +80,9 @@ func TestDecodeItemSourceAsJSON(t *testing.T) {
 		}
 		srcs = append(srcs, string(b))
 	}
-	srcs = append(srcs, `{"smiles":"C\u00e9C"}`, `{"smiles":""}`, `{"smiles":"a"b"}`, `{"smiles":"\xffC"}`, `{"smiles":"C"} `, `{}`)
+	srcs = append(srcs, `{"smiles":"C\u00e9C"}`, `{"smiles":""}`, `{"smiles":"a"b"}`, `{"smiles":"\xffC"}`, `{"smiles":"C"} `, `{}`,
+		`{"smiles":"F/C=C\\F"}`, `{"smiles":"C\"C"}`, `{"smiles":"C\\"}`, `{"smiles":"C\"}`, `{"smiles":"C\nC"}`, `{"smiles":"C\\\\C"}`,
+		`{"smiles":"C\/C"}`, `{"smiles":"\\"}`, `{"smiles":"C\\\"}`, `{"smiles":"C\"}"}`)
 	for _, src := range srcs {
 		var want ItemSource
 		werr := json.Unmarshal([]byte(src), &want)

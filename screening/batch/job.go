@@ -6,7 +6,6 @@ import (
 	"errors"
 	"fmt"
 	"time"
-	"unicode/utf8"
 
 	"ringsieve/screening"
 	"ringsieve/screening/judge"
@@ -256,21 +255,46 @@ func DecodeConditions(b []byte) (screening.ConditionsOut, error) {
 }
 
 // DecodeItemSource reads a stored item source (the JSON of an ItemSource). A source holding
-// only a SMILES with nothing to unescape — almost every stored item — is read without the JSON
-// decoder; the result is the same as json.Unmarshal's.
+// only a SMILES of printable ASCII — almost every stored item — is read without the JSON
+// decoder: as it stands when it has nothing to unescape, with \\ and \" undone when those are
+// its only escapes; the result is the same as json.Unmarshal's.
 func DecodeItemSource(src string) (ItemSource, error) {
 	const head, tail = `{"smiles":"`, `"}`
-	if len(src) >= len(head)+len(tail) && src[:len(head)] == head && src[len(src)-len(tail):] == tail {
-		v := src[len(head) : len(src)-len(tail)]
-		plain := utf8.ValidString(v)
-		for i := 0; plain && i < len(v); i++ {
-			plain = v[i] >= 0x20 && v[i] != '"' && v[i] != '\\'
-		}
-		if plain && v != "" {
-			return ItemSource{SMILES: v}, nil
+	if len(src) > len(head)+len(tail) && src[:len(head)] == head && src[len(src)-len(tail):] == tail {
+		if smi, ok := plainJSONString(src[len(head) : len(src)-len(tail)]); ok {
+			return ItemSource{SMILES: smi}, nil
 		}
 	}
 	var s ItemSource
 	err := json.Unmarshal([]byte(src), &s)
 	return s, err
+}
+
+// plainJSONString reads the inside of a JSON string of printable ASCII whose only escapes are
+// \\ and \"; ok is false for anything else (which the JSON decoder then reads or refuses).
+func plainJSONString(v string) (string, bool) {
+	escapes := 0
+	for i := 0; i < len(v); i++ {
+		switch c := v[i]; {
+		case c < 0x20 || c > 0x7e || c == '"':
+			return "", false
+		case c == '\\':
+			if i+1 == len(v) || (v[i+1] != '\\' && v[i+1] != '"') {
+				return "", false
+			}
+			escapes++
+			i++
+		}
+	}
+	if escapes == 0 {
+		return v, true
+	}
+	b := make([]byte, 0, len(v)-escapes)
+	for i := 0; i < len(v); i++ {
+		if v[i] == '\\' {
+			i++
+		}
+		b = append(b, v[i])
+	}
+	return string(b), true
 }
