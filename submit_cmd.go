@@ -103,8 +103,16 @@ func submitCmd(getenv func(string) string) *cobra.Command {
 				Total  int    `json:"total"`
 				Error  string `json:"error"`
 			}
+			// with a progress bar the status is read every poll interval; without one the server
+			// holds each reading until the job ends or waitSeconds pass (GET …?wait=N), so the
+			// results are fetched the moment the job is done
+			status := "/v1/jobs/" + created.ID
+			if bar == nil {
+				status += "?wait=" + strconv.Itoa(waitSeconds)
+			}
 			for {
-				if err := cl.json(ctx, http.MethodGet, "/v1/jobs/"+created.ID, nil, "", "", &st); err != nil {
+				asked := time.Now()
+				if err := cl.json(ctx, http.MethodGet, status, nil, "", "", &st); err != nil {
 					return err
 				}
 				if bar != nil {
@@ -116,10 +124,14 @@ func submitCmd(getenv func(string) string) *cobra.Command {
 				if st.Status == "failed" || st.Status == "canceled" {
 					return fmt.Errorf("job %s %s %s", created.ID, st.Status, st.Error)
 				}
+				pause := poll
+				if bar == nil && time.Since(asked) >= time.Second {
+					pause = 0 // the server waited: ask again at once
+				}
 				select {
 				case <-ctx.Done():
 					return fmt.Errorf("interrupted; the job %s goes on: fetch %s/v1/jobs/%s/results later", created.ID, cl.base, created.ID)
-				case <-time.After(poll):
+				case <-time.After(pause):
 				}
 			}
 			if bar != nil {
@@ -165,6 +177,10 @@ func submitCmd(getenv func(string) string) *cobra.Command {
 	fl.DurationVar(&poll, "poll", 500*time.Millisecond, "status poll interval")
 	return cmd
 }
+
+// waitSeconds is how long submit asks the server to hold a status reading for a job to end
+// (GET /v1/jobs/{id}?wait=N; the server takes at most 60).
+const waitSeconds = 30
 
 func multipartBody(name string, content []byte, fields map[string]string) ([]byte, string, error) {
 	var buf bytes.Buffer

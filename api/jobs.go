@@ -269,15 +269,26 @@ func uploadConditions(vals map[string]string) (screening.Conditions, error) {
 
 // getJob godoc
 //
-//	@Summary	Job status with counts, percent and ETA
-//	@Tags		jobs
-//	@Produce	json
-//	@Param		id	path		string	true	"job id"
-//	@Success	200	{object}	JobStatus
-//	@Failure	404	{object}	Problem
-//	@Router		/v1/jobs/{id} [get]
+//	@Summary		Job status with counts, percent and ETA
+//	@Description	With wait=N (whole seconds, at most 60) the answer is held until the job is done, failed or canceled, or N seconds have passed, whichever comes first: a caller learns of the end at once without polling.
+//	@Tags			jobs
+//	@Produce		json
+//	@Param			id		path		string	true	"job id"
+//	@Param			wait	query		int		false	"seconds to wait for the job to finish (0–60)"
+//	@Success		200		{object}	JobStatus
+//	@Failure		404		{object}	Problem
+//	@Failure		422		{object}	Problem	"wait out of range"
+//	@Router			/v1/jobs/{id} [get]
 func (s *Server) getJob(c *gin.Context) {
+	wait, err := intQuery(c, "wait", 0, 0, maxWaitSeconds)
+	if err != nil {
+		fail(c, err)
+		return
+	}
 	j, err := s.store.GetJob(c.Request.Context(), c.Param("id"))
+	if err == nil && wait > 0 && !finished(j) {
+		j, err = s.awaitJob(c.Request.Context(), c.Param("id"), time.Duration(wait)*time.Second)
+	}
 	if err != nil {
 		fail(c, err)
 		return
@@ -301,6 +312,7 @@ func (s *Server) cancelJob(c *gin.Context) {
 		fail(c, err)
 		return
 	}
+	s.events.fire() // requests waiting for this job answer now
 	c.JSON(http.StatusOK, jobStatus(j))
 }
 

@@ -70,7 +70,9 @@ type Server struct {
 	degraded atomic.Bool
 	// limiters holds one token bucket per API key id (*rate.Limiter).
 	limiters sync.Map
-	wg       sync.WaitGroup
+	// events wakes requests waiting for a job to finish (jobwait.go)
+	events jobEvents
+	wg     sync.WaitGroup
 }
 
 // orDefault sets a zero or negative setting to its default.
@@ -104,7 +106,10 @@ func New(cfg Config, store *data.Store, log *slog.Logger) *Server {
 		cfg.Workers = runtime.NumCPU()
 	}
 	if !cfg.ServeOnly {
-		s.runner = &batch.Runner{Store: store, Workers: cfg.Workers, Log: log, Observe: s.metrics.observeChunk,
+		s.runner = &batch.Runner{Store: store, Workers: cfg.Workers, Log: log, Observe: func(outs []batch.Outcome) {
+			s.metrics.observeChunk(outs)
+			s.events.fire()
+		},
 			OnClaim: s.metrics.claims.Inc, OnLeaseLost: s.metrics.leaseLost.Inc}
 	}
 	return s

@@ -1,0 +1,62 @@
+package api
+
+import (
+	"strings"
+	"testing"
+	"time"
+
+	"ringsieve/screening/batch"
+)
+
+// TestJobWait: GET /v1/jobs/{id}?wait=N holds the answer until the job finishes or N seconds
+// pass; a job that ends meanwhile (here canceled) is answered at once; wait outside 0–60 is a
+// 422 naming the parameter. Design choices (jobwait.go), no published values.
+func TestJobWait(t *testing.T) {
+	ts, _ := newTestServer(t, Config{ServeOnly: true}) // nobody works the job: it stays queued
+	r := do(t, ts, "POST", "/v1/jobs", `{"items":[{"id":"a","smiles":"C1=CC2CCC1C2"}]}`)
+	var created JobCreated
+	r.json(t, &created)
+	if r.status != 202 {
+		t.Fatalf("submit: %d %s", r.status, r.body)
+	}
+	for _, bad := range []string{"61", "-1", "soon", "1.5"} {
+		r := do(t, ts, "GET", "/v1/jobs/"+created.ID+"?wait="+bad, "")
+		if r.status != 422 || !strings.Contains(string(r.body), `"wait"`) {
+			t.Errorf("wait=%s: %d %s", bad, r.status, r.body)
+		}
+	}
+	start := time.Now()
+	var st JobStatus
+	do(t, ts, "GET", "/v1/jobs/"+created.ID+"?wait=1", "").json(t, &st)
+	if held := time.Since(start); held < time.Second || st.Status != batch.JobQueued {
+		t.Errorf("wait=1 on a queued job: answered after %v with %q, want after the full second with queued", held, st.Status)
+	}
+	// a cancel while a request waits: the waiter answers with the canceled job long before its
+	// 60 s are up
+	go func() {
+		time.Sleep(300 * time.Millisecond)
+		do(t, ts, "DELETE", "/v1/jobs/"+created.ID, "")
+	}()
+	start = time.Now()
+	do(t, ts, "GET", "/v1/jobs/"+created.ID+"?wait=60", "").json(t, &st)
+	if held := time.Since(start); st.Status != batch.JobCanceled || held > 30*time.Second {
+		t.Errorf("wait=60 across a cancel: answered after %v with %q, want canceled at once", held, st.Status)
+	}
+	if r := do(t, ts, "GET", "/v1/jobs/job_nonesuch?wait=5", ""); r.status != 404 {
+		t.Errorf("waiting for a job that does not exist: %d, want 404 at once", r.status)
+	}
+}
+
+// TestJobWaitUntilDone: on a server that works its jobs, one waiting request sees the job done
+// with every item counted.
+func TestJobWaitUntilDone(t *testing.T) {
+	ts, _ := newTestServer(t, Config{})
+	r := do(t, ts, "POST", "/v1/jobs", `{"items":[{"id":"a","smiles":"C1=CC2CCC1C2"},{"id":"b","smiles":"C1=CCCC1"},{"id":"c","smiles":"oops("}]}`)
+	var created JobCreated
+	r.json(t, &created)
+	var st JobStatus
+	do(t, ts, "GET", "/v1/jobs/"+created.ID+"?wait=60", "").json(t, &st)
+	if st.Status != batch.JobDone || st.Done != 3 || st.Failed != 1 {
+		t.Errorf("after one wait: %+v, want done with 3 items (1 failed)", st)
+	}
+}
