@@ -54,7 +54,13 @@ func Less(a, b Key) bool { return Compare(a, b) < 0 }
 func Compare(a, b Key) int {
 	a0, a1, a2 := a.Words()
 	b0, b1, b2 := b.Words()
-	return cmp.Or(cmp.Compare(a0, b0), cmp.Compare(a1, b1), cmp.Compare(a2, b2))
+	switch { // a word is compared only when the ones before are equal
+	case a0 != b0:
+		return cmp.Compare(a0, b0)
+	case a1 != b1:
+		return cmp.Compare(a1, b1)
+	}
+	return cmp.Compare(a2, b2)
 }
 
 // Words reads k as its first byte and two big-endian words, whose order (in that sequence) is
