@@ -14,10 +14,10 @@ import (
 
 // SQLite copies the pages a commit appended to the write-ahead log back into the database file
 // in a "checkpoint". Left to itself it does so inside the commit that takes the log past 1,000
-// pages (4 MB), so every fourth chunk of a job's outcomes paid for writing the last 4 MB a
+// pages (4 MB), so every few chunks of a job's outcomes paid for writing the last 4 MB a
 // second time (and for two syncs) while workers and an upload waited for the write slot: about a
-// tenth of a 100,000-item job's wall time on two cores (the job ÷ offline screen ratio went
-// from 1.29 to 1.18 when checkpoints were taken off the job's path; README, Performance).
+// tenth of a 100,000-item job's wall time on two cores (job ÷ offline screen, medians of six
+// alternated rounds: 1.26 before, 1.12 with checkpoints off the job's path; README, Performance).
 //
 // Here the log is copied back when the store has been idle, by a goroutine of the store
 // (checkpointer); a commit checkpoints by itself only past walBackstopPages, so a long busy
