@@ -158,6 +158,7 @@ func serve(ctx context.Context, cfg Config, logOut interface{ Write([]byte) (int
 		IdleTimeout:       cfg.IdleTimeout,
 		MaxHeaderBytes:    1 << 20,
 	}
+	hs.RegisterOnShutdown(srv.Drain) // requests waiting for a job answer as the shutdown begins
 	log.Info("ringsieve listening", "addr", ln.Addr().String(), "db", redactDB(cfg.DBPath), "api_keys_required", cfg.API.RequireKeys)
 	errc := make(chan error, 1)
 	go func() { errc <- hs.Serve(ln) }()

@@ -45,6 +45,13 @@ func (e *jobEvents) fire() {
 	}
 }
 
+// Drain answers the requests waiting for a job with the job as it stands, and the ones that
+// come later at once: the HTTP server calls it as its shutdown begins (RegisterOnShutdown), so
+// a waiting request does not hold the shutdown's grace period.
+func (s *Server) Drain() {
+	s.drainOnce.Do(func() { close(s.draining) })
+}
+
 // finished reports whether a job has reached an end state.
 func finished(j batch.Job) bool {
 	return j.Status == batch.JobDone || j.Status == batch.JobFailed || j.Status == batch.JobCanceled
@@ -68,6 +75,8 @@ func (s *Server) awaitJob(ctx context.Context, id string, wait time.Duration) (b
 		case <-tick.C:
 		case <-deadline.C:
 			return s.store.GetJob(ctx, id)
+		case <-s.draining:
+			return s.store.GetJob(ctx, id) // the server is shutting down: answer now
 		case <-ctx.Done():
 			return j, nil // the client has gone; nothing is written to it
 		}

@@ -12,7 +12,7 @@ import (
 // pass; a job that ends meanwhile (here canceled) is answered at once; wait outside 0–60 is a
 // 422 naming the parameter. Design choices (jobwait.go), no published values.
 func TestJobWait(t *testing.T) {
-	ts, _ := newTestServer(t, Config{ServeOnly: true}) // nobody works the job: it stays queued
+	ts, srv := newTestServer(t, Config{ServeOnly: true}) // nobody works the job: it stays queued
 	r := do(t, ts, "POST", "/v1/jobs", `{"items":[{"id":"a","smiles":"C1=CC2CCC1C2"}]}`)
 	var created JobCreated
 	r.json(t, &created)
@@ -44,6 +44,19 @@ func TestJobWait(t *testing.T) {
 	}
 	if r := do(t, ts, "GET", "/v1/jobs/job_nonesuch?wait=5", ""); r.status != 404 {
 		t.Errorf("waiting for a job that does not exist: %d, want 404 at once", r.status)
+	}
+	// the server's shutdown beginning (Drain): a waiting request answers with the job as it
+	// stands, so it does not hold the grace period
+	r = do(t, ts, "POST", "/v1/jobs", `{"items":[{"id":"b","smiles":"C1=CCCC1"}]}`)
+	r.json(t, &created)
+	go func() {
+		time.Sleep(300 * time.Millisecond)
+		srv.Drain()
+	}()
+	start = time.Now()
+	do(t, ts, "GET", "/v1/jobs/"+created.ID+"?wait=60", "").json(t, &st)
+	if held := time.Since(start); st.Status != batch.JobQueued || held > 30*time.Second {
+		t.Errorf("wait=60 across the start of a shutdown: answered after %v with %q, want queued at once", held, st.Status)
 	}
 }
 

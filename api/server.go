@@ -70,9 +70,12 @@ type Server struct {
 	degraded atomic.Bool
 	// limiters holds one token bucket per API key id (*rate.Limiter).
 	limiters sync.Map
-	// events wakes requests waiting for a job to finish (jobwait.go)
-	events jobEvents
-	wg     sync.WaitGroup
+	// events wakes requests waiting for a job to finish, draining (closed by Drain) ends their
+	// waits (jobwait.go)
+	events    jobEvents
+	draining  chan struct{}
+	drainOnce sync.Once
+	wg        sync.WaitGroup
 }
 
 // orDefault sets a zero or negative setting to its default.
@@ -101,7 +104,7 @@ func New(cfg Config, store *data.Store, log *slog.Logger) *Server {
 	var rb [4]byte
 	rand.Read(rb[:])
 	s := &Server{cfg: cfg, store: store, log: log, metrics: newMetrics(), compute: make(computeSlots, cfg.ComputeSlots), idPrefix: hex.EncodeToString(rb[:]) + "-",
-		inFlight: make(slots, cfg.MaxInFlight), uploads: make(slots, cfg.MaxUploads)}
+		inFlight: make(slots, cfg.MaxInFlight), uploads: make(slots, cfg.MaxUploads), draining: make(chan struct{})}
 	if cfg.Workers <= 0 {
 		cfg.Workers = runtime.NumCPU()
 	}
