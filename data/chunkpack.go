@@ -62,8 +62,9 @@ func (p *itemPacker) add(it JobInput) error {
 	return nil
 }
 
-// addEncoded adds an item whose source is already encoded (batch.DecodeItemSource reads it):
-// the one place the packed item format is written.
+// addEncoded adds an item whose source is already encoded (batch.DecodeItemSource reads it).
+// It and add's in-place path write the packed item format through head and tail, the one place
+// it is written.
 func (p *itemPacker) addEncoded(id string, line int, src []byte, extra []string) {
 	p.tail(append(p.head(id, line, len(src)), src...), extra)
 }
