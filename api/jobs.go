@@ -526,14 +526,20 @@ func (s *Server) jobResults(c *gin.Context) {
 		c.Header("Content-Disposition", fmt.Sprintf(`attachment; filename="%s.jsonl"`, j.ID))
 		c.Status(http.StatusOK)
 		// items are taken in windows whose results are screened again and encoded in
-		// parallel, then written in rank order (each line is what json.Encoder writes)
+		// parallel, then written in rank order (each line is what json.Encoder writes). The
+		// lines go through one large buffered writer: written one by one (about 4 kB each) they
+		// cost a system call or two apiece, a quarter of a 100,000-item download's CPU. Each
+		// place in the window keeps its line's buffer for the next window.
+		const windowSize = 512
 		type ranked struct {
 			rank int
 			it   data.RankedItem
-			line []byte // the encoded row with its newline; nil when the filter drops it
+			keep bool // the filter keeps it (its line is in lines at the same place)
 			err  error
 		}
 		var window []ranked
+		lines := make([][]byte, windowSize)
+		out := bufio.NewWriterSize(c.Writer, 256<<10)
 		flush := func() error {
 			batch.Map(ctx, len(window), 0, func(i int) {
 				w := &window[i]
@@ -545,16 +551,17 @@ func (s *Server) jobResults(c *gin.Context) {
 					w.err = err
 					return
 				}
-				w.line = append(appendResultRow(nil, resultRow(w.rank, w.it, j.ExtraColumns)), '\n')
+				lines[i] = append(appendResultRow(lines[i][:0], resultRow(w.rank, w.it, j.ExtraColumns)), '\n')
+				w.keep = true
 			})
-			for _, w := range window {
+			for i, w := range window {
 				if w.err != nil {
 					return w.err
 				}
-				if w.line == nil {
+				if !w.keep {
 					continue
 				}
-				if _, err := c.Writer.Write(w.line); err != nil {
+				if _, err := out.Write(lines[i]); err != nil {
 					return err
 				}
 			}
@@ -563,13 +570,16 @@ func (s *Server) jobResults(c *gin.Context) {
 		}
 		err := s.store.RankedItems(ctx, j.ID, 0, 0, func(rank int, it data.RankedItem) error {
 			window = append(window, ranked{rank: rank, it: it})
-			if len(window) == 512 {
+			if len(window) == windowSize {
 				return flush()
 			}
 			return nil
 		})
 		if err == nil {
 			err = flush()
+		}
+		if ferr := out.Flush(); err == nil {
+			err = ferr
 		}
 		s.streamError(c, err)
 	case "csv":
