@@ -310,7 +310,8 @@ func TestFaultsStoreTurnsReadOnly(t *testing.T) {
 	st, b, _ = call(t, "GET", s.base+"/healthz", "", nil)
 	json.Unmarshal(b, &hz)
 	if st != 200 || hz.Status != "degraded" || hz.Store.Writable || !hz.Store.Reachable || hz.Store.Since == "" {
-		t.Errorf("healthz while read-only: %d %s", st, b)
+		// the service's log says which write failed and whether one succeeded since
+		t.Errorf("healthz while read-only: %d %s\nservice log:\n%s", st, b, s.logs)
 	}
 	if s.cmd.ProcessState != nil || s.cmd.Process.Signal(syscall.Signal(0)) != nil {
 		t.Fatalf("the process died: %s", s.logs)
