@@ -1,6 +1,7 @@
 package api
 
 import (
+	"fmt"
 	"strings"
 	"testing"
 	"time"
@@ -61,15 +62,31 @@ func TestJobWait(t *testing.T) {
 }
 
 // TestJobWaitUntilDone: on a server that works its jobs, one waiting request sees the job done
-// with every item counted.
+// with every item counted. The job is large enough (12,000 items, several chunks) that it is
+// still being screened when the request arrives, so an answer that did not wait would say
+// queued or running.
 func TestJobWaitUntilDone(t *testing.T) {
 	ts, _ := newTestServer(t, Config{})
-	r := do(t, ts, "POST", "/v1/jobs", `{"items":[{"id":"a","smiles":"C1=CC2CCC1C2"},{"id":"b","smiles":"C1=CCCC1"},{"id":"c","smiles":"oops("}]}`)
+	const n = 12000
+	var body strings.Builder
+	body.WriteString(`{"conditions":{"thermo_method":"table"},"items":[`)
+	for i := range n {
+		if i > 0 {
+			body.WriteByte(',')
+		}
+		smi := []string{"C1=CC2CCC1C2", "C1=CCCC1", "oops("}[i%3] // every third item fails
+		fmt.Fprintf(&body, `{"id":"m%d","smiles":%q}`, i, smi)
+	}
+	body.WriteString("]}")
+	r := do(t, ts, "POST", "/v1/jobs", body.String())
 	var created JobCreated
 	r.json(t, &created)
+	if r.status != 202 {
+		t.Fatalf("submit: %d %s", r.status, r.body)
+	}
 	var st JobStatus
 	do(t, ts, "GET", "/v1/jobs/"+created.ID+"?wait=60", "").json(t, &st)
-	if st.Status != batch.JobDone || st.Done != 3 || st.Failed != 1 {
-		t.Errorf("after one wait: %+v, want done with 3 items (1 failed)", st)
+	if st.Status != batch.JobDone || st.Done != n || st.Failed != n/3 {
+		t.Errorf("after one wait: %+v, want done with %d items (%d failed)", st, n, n/3)
 	}
 }
