@@ -1,7 +1,6 @@
 package batch
 
 import (
-	"cmp"
 	"encoding/binary"
 	"math"
 	"sort"
@@ -54,13 +53,28 @@ func Less(a, b Key) bool { return Compare(a, b) < 0 }
 func Compare(a, b Key) int {
 	a0, a1, a2 := a.Words()
 	b0, b1, b2 := b.Words()
-	switch { // a word is compared only when the ones before are equal
+	return CompareWords(a0, a1, a2, b0, b1, b2)
+}
+
+// CompareWords is Compare of two keys read as Words: the one place their order is written, for
+// lists that keep the words instead of the keys.
+func CompareWords(a0 byte, a1, a2 uint64, b0 byte, b1, b2 uint64) int {
+	// a word is compared only when the ones before are equal
+	var less bool
+	switch {
 	case a0 != b0:
-		return cmp.Compare(a0, b0)
+		less = a0 < b0
 	case a1 != b1:
-		return cmp.Compare(a1, b1)
+		less = a1 < b1
+	case a2 != b2:
+		less = a2 < b2
+	default:
+		return 0
 	}
-	return cmp.Compare(a2, b2)
+	if less {
+		return -1
+	}
+	return 1
 }
 
 // Words reads k as its first byte and two big-endian words, whose order (in that sequence) is
