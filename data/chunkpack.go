@@ -49,7 +49,7 @@ func (p *itemPacker) add(it JobInput) error {
 	if smilesOnly(it.Source) {
 		if n, ok := smilesSourceLen(it.Source.SMILES); ok { // written in place: no copy made
 			b := p.head(it.ItemID, it.Line, n)
-			b = appendSMILESSource(b, it.Source.SMILES)
+			b = appendSMILESSource(b, it.Source.SMILES, n)
 			p.tail(b, it.Extra)
 			return nil
 		}

@@ -330,7 +330,7 @@ func (l *jobLoad) finish(meta JobMeta) error {
 func encodeSource(s batch.ItemSource) ([]byte, error) {
 	if smilesOnly(s) {
 		if n, ok := smilesSourceLen(s.SMILES); ok {
-			return appendSMILESSource(make([]byte, 0, n), s.SMILES), nil
+			return appendSMILESSource(make([]byte, 0, n), s.SMILES, n), nil
 		}
 	}
 	return json.Marshal(s)
@@ -358,15 +358,13 @@ func smilesSourceLen(smi string) (n int, ok bool) {
 	return n, true
 }
 
-// appendSMILESSource appends the stored form of a SMILES-only source whose smilesSourceLen
-// was ok.
-func appendSMILESSource(b []byte, smi string) []byte {
+// appendSMILESSource appends the stored form of a SMILES-only source whose stored length
+// smilesSourceLen gave as n: the SMILES with a backslash before each of its n − 13 − len(smi)
+// quotes and backslashes (none: copied as it is).
+func appendSMILESSource(b []byte, smi string, n int) []byte {
 	b = append(b, `{"smiles":"`...)
-	for {
+	for escapes := n - len(`{"smiles":""}`) - len(smi); escapes > 0; escapes-- {
 		i := strings.IndexAny(smi, "\"\\")
-		if i < 0 {
-			break
-		}
 		b = append(append(b, smi[:i]...), '\\', smi[i])
 		smi = smi[i+1:]
 	}
