@@ -272,8 +272,9 @@ func (g *subgraph) initialLabels() []string {
 func (g *subgraph) canonical() (string, []int) {
 	n := len(g.atoms)
 	init := g.initialLabels()
-	best := ""
+	var best, cand []byte
 	var bestRank []int
+	var w keyWriter
 	budget := canonBranchBudget
 	var search func(col []int)
 	search = func(col []int) {
@@ -283,9 +284,10 @@ func (g *subgraph) canonical() (string, []int) {
 		col = g.refine(col)
 		if countDistinct(col) == n {
 			budget--
-			s := g.write(col)
-			if best == "" || s < best {
-				best, bestRank = s, col
+			cand = w.write(g, col, cand)
+			if best == nil || bytes.Compare(cand, best) < 0 {
+				best, cand = cand, best
+				bestRank = col
 			}
 			return
 		}
@@ -316,136 +318,216 @@ func (g *subgraph) canonical() (string, []int) {
 		}
 	}
 	search(denseRanks(init))
-	return best, bestRank
+	return string(best), bestRank
 }
 
-// write renders the subgraph as SMILES-like text from a complete ranking: depth-first from the
-// lowest-ranked atom of each connected piece, neighbours in rank order, ring closures numbered in
-// order of opening.
-func (g *subgraph) write(rank []int) string {
+// resize returns s with length n and every element zero, reusing its array when it is large
+// enough.
+func resize[T any](s []T, n int) []T {
+	if cap(s) < n {
+		return make([]T, n)
+	}
+	s = s[:n]
+	clear(s)
+	return s
+}
+
+// keyWriter renders the subgraph as SMILES-like text from a complete ranking: depth-first from
+// the lowest-ranked atom of each connected piece, neighbours in rank order, ring closures
+// numbered in order of opening (the smallest free digit first). Its storage is kept across the
+// leaves of one canonical search: the
+// neighbour lists in rank order, the depth-first tree and the ring closures, all indexed by local
+// atom or closure number (no maps), so that writing a key allocates nothing once warm.
+type keyWriter struct {
+	g        *subgraph
+	rank     []int
+	order    []int  // atoms by rank
+	sorted   []int  // every atom's neighbours in rank order, carved like g.nbr
+	nbrOff   []int  // atom i's sorted neighbours are sorted[nbrOff[i]:nbrOff[i+1]]
+	visited  []bool // per atom
+	parent   []int  // per atom: its parent in the depth-first tree, -1 for a root
+	seenEdge []bool // n × n: the edge was followed (either way)
+	closures []closure
+	ringsOff []int // closure numbers at atom i: ringsAt[ringsOff[i]:ringsOff[i+1]]
+	ringsAt  []int
+	fill     []int
+	digitOf  []int // per closure: its open digit, 0 while not open
+	free     []int // digits freed by closed rings, ascending
+	roots    []int
+	out      []byte
+}
+
+// closure is a ring-closure bond of the depth-first tree, from the atom visited later (a) back to
+// one visited earlier (b).
+type closure struct{ a, b int }
+
+// write renders g under rank into dst (whose contents are replaced) and returns it.
+func (w *keyWriter) write(g *subgraph, rank []int, dst []byte) []byte {
 	n := len(g.atoms)
-	order := make([]int, n)
-	for i := range order {
-		order[i] = i
+	w.g, w.rank = g, rank
+	w.order = resize(w.order, n)
+	for i := range w.order {
+		w.order[i] = i
 	}
-	slices.SortFunc(order, func(a, b int) int { return cmp.Compare(rank[a], rank[b]) })
-	visited := make([]bool, n)
-	var sb strings.Builder
-	bondSym := func(o int) string {
-		switch o {
-		case 2:
-			return "="
-		case 3:
-			return "#"
-		case 4:
-			return ":"
-		}
-		return ""
-	}
-	// first pass: DFS tree to find ring-closure pairs
-	type edge struct{ a, b int }
-	parent := make([]int, n)
-	for i := range parent {
-		parent[i] = -1
-	}
-	var closures []edge
-	seenEdge := map[[2]int]bool{}
-	var dfs1 func(a int)
-	dfs1 = func(a int) {
-		visited[a] = true
-		nb := g.sortedNbrs(a, rank)
-		for _, j := range nb {
-			key := [2]int{min(a, j), max(a, j)}
-			if seenEdge[key] {
-				continue
-			}
-			seenEdge[key] = true
-			if visited[j] {
-				closures = append(closures, edge{a, j})
-				continue
-			}
-			parent[j] = a
-			dfs1(j)
-		}
-	}
-	var roots []int
-	for _, s := range order {
-		if !visited[s] {
-			roots = append(roots, s)
-			dfs1(s)
-		}
-	}
-	// ring-closure digits per atom
-	ringsAt := make([][]int, n) // closure indices at each atom in order of appearance
-	for ci, c := range closures {
-		ringsAt[c.b] = append(ringsAt[c.b], ci)
-		ringsAt[c.a] = append(ringsAt[c.a], ci)
-	}
-	visited = make([]bool, n)
-	digitOf := map[int]int{}
-	free := []int{}
-	nextDigit := 1
-	var dfs2 func(a int)
-	dfs2 = func(a int) {
-		visited[a] = true
-		sb.WriteString(g.label[a])
-		for _, ci := range ringsAt[a] {
-			c := closures[ci]
-			if d, ok := digitOf[ci]; ok {
-				sb.WriteString(bondSym(g.orderBetween(c.a, c.b)))
-				sb.WriteString(ringDigit(d))
-				free = append(free, d)
-				sort.Ints(free)
-				delete(digitOf, ci)
-			} else {
-				d := 0
-				if len(free) > 0 {
-					d, free = free[0], free[1:]
-				} else {
-					d = nextDigit
-					nextDigit++
-				}
-				digitOf[ci] = d
-				sb.WriteString(ringDigit(d))
-			}
-		}
-		var kids []int
-		for _, j := range g.sortedNbrs(a, rank) {
-			if parent[j] == a && !visited[j] {
-				kids = append(kids, j)
-			}
-		}
-		for k, j := range kids {
-			if k < len(kids)-1 {
-				sb.WriteString("(")
-			}
-			sb.WriteString(bondSym(g.orderBetween(a, j)))
-			dfs2(j)
-			if k < len(kids)-1 {
-				sb.WriteString(")")
+	// the ranking is complete (every rank distinct), so the order is unique
+	slices.SortFunc(w.order, func(a, b int) int { return cmp.Compare(rank[a], rank[b]) })
+	w.nbrOff = resize(w.nbrOff, n+1)
+	w.sorted = w.sorted[:0]
+	for i := 0; i < n; i++ {
+		w.nbrOff[i] = len(w.sorted)
+		w.sorted = append(w.sorted, g.nbr[i]...)
+		nb := w.sorted[w.nbrOff[i]:]
+		for x := 1; x < len(nb); x++ { // insertion sort: a handful of neighbours
+			for y := x; y > 0 && rank[nb[y]] < rank[nb[y-1]]; y-- {
+				nb[y], nb[y-1] = nb[y-1], nb[y]
 			}
 		}
 	}
-	for i, r := range roots {
+	w.nbrOff[n] = len(w.sorted)
+	w.visited = resize(w.visited, n)
+	w.parent = resize(w.parent, n)
+	for i := range w.parent {
+		w.parent[i] = -1
+	}
+	w.seenEdge = resize(w.seenEdge, n*n)
+	w.closures = w.closures[:0]
+	w.roots = w.roots[:0]
+	// first pass: the depth-first tree and its ring-closure bonds
+	for _, s := range w.order {
+		if !w.visited[s] {
+			w.roots = append(w.roots, s)
+			w.tree(s)
+		}
+	}
+	// the closures at each atom in order of their numbers: counted, then filled
+	w.ringsOff = resize(w.ringsOff, n+1)
+	for _, c := range w.closures {
+		w.ringsOff[c.a+1]++
+		w.ringsOff[c.b+1]++
+	}
+	for i := 1; i <= n; i++ {
+		w.ringsOff[i] += w.ringsOff[i-1]
+	}
+	w.ringsAt = resize(w.ringsAt, 2*len(w.closures))
+	w.fill = append(w.fill[:0], w.ringsOff[:n]...)
+	for ci, c := range w.closures {
+		// each atom lists its closures in ascending number
+		w.ringsAt[w.fill[c.b]] = ci
+		w.fill[c.b]++
+		w.ringsAt[w.fill[c.a]] = ci
+		w.fill[c.a]++
+	}
+	// second pass: the text
+	clear(w.visited)
+	w.digitOf = resize(w.digitOf, len(w.closures))
+	w.free = w.free[:0]
+	next := 1
+	w.out = dst[:0]
+	for i, r := range w.roots {
 		if i > 0 {
-			sb.WriteString(".")
+			w.out = append(w.out, '.')
 		}
-		dfs2(r)
+		next = w.text(r, next)
 	}
-	return sb.String()
+	return w.out
 }
 
-func ringDigit(d int) string {
+// tree is the first pass's depth-first search from a.
+func (w *keyWriter) tree(a int) {
+	n := len(w.g.atoms)
+	w.visited[a] = true
+	for _, j := range w.sorted[w.nbrOff[a]:w.nbrOff[a+1]] {
+		e := min(a, j)*n + max(a, j)
+		if w.seenEdge[e] {
+			continue
+		}
+		w.seenEdge[e] = true
+		if w.visited[j] {
+			w.closures = append(w.closures, closure{a, j})
+			continue
+		}
+		w.parent[j] = a
+		w.tree(j)
+	}
+}
+
+// text is the second pass from a: its label, its ring-closure digits, then its children in rank
+// order, all but the last in parentheses. next is the next unused digit; text returns it.
+func (w *keyWriter) text(a, next int) int {
+	g := w.g
+	w.visited[a] = true
+	w.out = append(w.out, g.label[a]...)
+	for _, ci := range w.ringsAt[w.ringsOff[a]:w.ringsOff[a+1]] {
+		if d := w.digitOf[ci]; d != 0 {
+			c := w.closures[ci]
+			w.out = appendBondSymbol(w.out, g.orderBetween(c.a, c.b))
+			w.out = appendRingDigit(w.out, d)
+			// free the digit, keeping the free list ascending
+			k := len(w.free)
+			w.free = append(w.free, d)
+			for k > 0 && w.free[k-1] > d {
+				w.free[k] = w.free[k-1]
+				k--
+			}
+			w.free[k] = d
+			w.digitOf[ci] = 0
+			continue
+		}
+		d := 0
+		if len(w.free) > 0 {
+			d = w.free[0]
+			w.free = append(w.free[:0], w.free[1:]...)
+		} else {
+			d = next
+			next++
+		}
+		w.digitOf[ci] = d
+		w.out = appendRingDigit(w.out, d)
+	}
+	// the children: neighbours whose tree parent is a (none of them visited yet)
+	kids := 0
+	for _, j := range w.sorted[w.nbrOff[a]:w.nbrOff[a+1]] {
+		if w.parent[j] == a && !w.visited[j] {
+			kids++
+		}
+	}
+	k := 0
+	for _, j := range w.sorted[w.nbrOff[a]:w.nbrOff[a+1]] {
+		if w.parent[j] != a || w.visited[j] {
+			continue
+		}
+		if k < kids-1 {
+			w.out = append(w.out, '(')
+		}
+		w.out = appendBondSymbol(w.out, g.orderBetween(a, j))
+		next = w.text(j, next)
+		if k < kids-1 {
+			w.out = append(w.out, ')')
+		}
+		k++
+	}
+	return next
+}
+
+// appendBondSymbol writes a bond of order o: nothing for a single bond, = # and : (aromatic).
+func appendBondSymbol(b []byte, o int) []byte {
+	switch o {
+	case 2:
+		return append(b, '=')
+	case 3:
+		return append(b, '#')
+	case 4:
+		return append(b, ':')
+	}
+	return b
+}
+
+// appendRingDigit writes ring-closure digit d: one digit below 10, else % and the number.
+func appendRingDigit(b []byte, d int) []byte {
 	if d < 10 {
-		return strconv.Itoa(d)
+		return append(b, byte('0'+d))
 	}
-	return "%" + strconv.Itoa(d)
-}
-
-func (g *subgraph) sortedNbrs(a int, rank []int) []int {
-	nb := append([]int(nil), g.nbr[a]...)
-	slices.SortFunc(nb, func(x, y int) int { return cmp.Compare(rank[x], rank[y]) })
-	return nb
+	return strconv.AppendInt(append(b, '%'), int64(d), 10)
 }
 
 func (g *subgraph) orderBetween(a, b int) int {
