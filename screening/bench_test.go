@@ -4,6 +4,7 @@ import (
 	"context"
 	"ringsieve/screening/describe"
 	"ringsieve/screening/units"
+	"runtime"
 	"testing"
 
 	. "ringsieve/screening"
@@ -215,5 +216,25 @@ func TestAllocationGuard(t *testing.T) {
 		if g.allocs > g.max {
 			t.Errorf("%s: %.1f allocations per structure, more than the guard of %.0f", g.name, g.allocs, g.max)
 		}
+	}
+	// the bytes too: in a short process every new byte is a new page for the system to map,
+	// which costs more than the allocation itself (DEVELOPERS.md: "Fresh memory"); a result
+	// whose reasons outgrow its block's array allocates a new one
+	bytesPer := func(fn func(s string)) float64 {
+		var before, after runtime.MemStats
+		runtime.ReadMemStats(&before)
+		for range 3 {
+			for _, s := range c {
+				fn(s)
+			}
+		}
+		runtime.ReadMemStats(&after)
+		return float64(after.TotalAlloc-before.TotalAlloc) / float64(3*len(c))
+	}
+	const maxBytes = 64 // design choice: today's 43 plus a margin (93 with the reasons array of eight)
+	got := bytesPer(func(s string) { ScreenWith(context.Background(), &reuse, Source{SMILES: s}, cond) })
+	t.Logf("screen (table tier), reused: %.0f bytes allocated per structure (guard %d)", got, maxBytes)
+	if got > maxBytes {
+		t.Errorf("screen (table tier), reused: %.0f bytes allocated per structure, more than the guard of %d", got, maxBytes)
 	}
 }
