@@ -8,6 +8,7 @@ import (
 	"encoding/json"
 	"fmt"
 	"io"
+	"iter"
 	"runtime"
 	"slices"
 	"sort"
@@ -54,48 +55,49 @@ func compareRows(a, b *compactRow) int {
 	return cmp.Compare(a.seq, b.seq)
 }
 
-// mergeRuns merges runs, each sorted by compareRows, into one sorted list: a binary heap of the
-// runs' first rows, about n log k comparisons for n rows in k runs (a sort of all the rows
-// joined needs about n log n, after copying them into one list).
-func mergeRuns(runs [][]compactRow) []compactRow {
-	total := 0
-	h := make([][]compactRow, 0, len(runs))
-	for _, r := range runs {
-		total += len(r)
-		if len(r) > 0 {
-			h = append(h, r)
+// rankedRows yields the rows of runs, each sorted by compareRows, in rank order: a binary heap
+// of the runs' first rows, about n log k comparisons for n rows in k runs (a sort of all the rows
+// joined needs about n log n), and no merged copy (its 40 bytes a row were new pages to map, on
+// one core after the screening).
+func rankedRows(runs [][]compactRow) iter.Seq[*compactRow] {
+	return func(yield func(*compactRow) bool) {
+		h := make([][]compactRow, 0, len(runs))
+		for _, r := range runs {
+			if len(r) > 0 {
+				h = append(h, r)
+			}
 		}
-	}
-	out := make([]compactRow, 0, total)
-	less := func(i, j int) bool { return compareRows(&h[i][0], &h[j][0]) < 0 }
-	down := func(i int) {
-		for {
-			m := 2*i + 1
-			if m >= len(h) {
+		less := func(i, j int) bool { return compareRows(&h[i][0], &h[j][0]) < 0 }
+		down := func(i int) {
+			for {
+				m := 2*i + 1
+				if m >= len(h) {
+					return
+				}
+				if r := m + 1; r < len(h) && less(r, m) {
+					m = r
+				}
+				if !less(m, i) {
+					return
+				}
+				h[i], h[m] = h[m], h[i]
+				i = m
+			}
+		}
+		for i := len(h)/2 - 1; i >= 0; i-- {
+			down(i)
+		}
+		for len(h) > 0 {
+			if !yield(&h[0][0]) {
 				return
 			}
-			if r := m + 1; r < len(h) && less(r, m) {
-				m = r
+			if h[0] = h[0][1:]; len(h[0]) == 0 {
+				h[0] = h[len(h)-1]
+				h = h[:len(h)-1]
 			}
-			if !less(m, i) {
-				return
-			}
-			h[i], h[m] = h[m], h[i]
-			i = m
+			down(0)
 		}
 	}
-	for i := len(h)/2 - 1; i >= 0; i-- {
-		down(i)
-	}
-	for len(h) > 0 {
-		out = append(out, h[0][0])
-		if h[0] = h[0][1:]; len(h[0]) == 0 {
-			h[0] = h[len(h)-1]
-			h = h[:len(h)-1]
-		}
-		down(0)
-	}
-	return out
 }
 
 // streamStats is what the summary line reports.
@@ -126,6 +128,10 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 	// each worker's rows, one slice per batch it screened (sized once: no regrowing copies)
 	type part struct{ batches [][]compactRow }
 	parts := make(chan part, runtime.NumCPU())
+	// item lists the workers are done with, filled again by the reader: new ones were an eighth
+	// of the bytes a screen allocates, and in a short process every new byte is a new page the
+	// system has to map (DEVELOPERS.md: "Fresh memory")
+	spare := make(chan []batch.InputItem, 4*runtime.NumCPU())
 	var wg sync.WaitGroup
 	for w := 0; w < runtime.NumCPU(); w++ {
 		wg.Add(1)
@@ -165,6 +171,12 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 				if bar != nil {
 					bar.Add(len(items))
 				}
+				// the batch's item list back to the reader (its texts left to the collector)
+				clear(items)
+				select {
+				case spare <- items[:0]:
+				default:
+				}
 			}
 			parts <- part{batches}
 		}()
@@ -182,7 +194,12 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 			seq++
 			if len(pending.items) == batchSize {
 				work <- pending
-				pending = run{first: seq, items: make([]batch.InputItem, 0, batchSize)}
+				pending = run{first: seq}
+				select {
+				case pending.items = <-spare:
+				default:
+					pending.items = make([]batch.InputItem, 0, batchSize)
+				}
 			}
 			return nil
 		})
@@ -197,7 +214,6 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 	for p := range parts {
 		batches = append(batches, p.batches...)
 	}
-	rows := mergeRuns(batches) // each batch was sorted by its worker
 	if bar != nil {
 		bar.Finish()
 	}
@@ -211,14 +227,17 @@ func screenStream(ctx context.Context, r io.Reader, inFormat, idField string, co
 		return streamStats{}, err
 	}
 	st = streamStats{inputErrors: in.Errors, extraColumns: in.ExtraColumns}
-	for _, r := range rows {
-		if r.failed {
-			st.failed++
-		} else {
-			st.screened++
+	for _, b := range batches {
+		for _, r := range b {
+			if r.failed {
+				st.failed++
+			} else {
+				st.screened++
+			}
 		}
 	}
-	return st, writeCompact(out, format, rows, sp, in.ExtraColumns)
+	// each batch was sorted by its worker; they are merged as they are written
+	return st, writeCompact(out, format, rankedRows(batches), sp, in.ExtraColumns)
 }
 
 // renderRow screens nothing: it renders one outcome for the output format after what buf holds
@@ -310,7 +329,7 @@ func writeJSON(buf *bytes.Buffer, v any) {
 }
 
 // writeCompact writes the ranked compact rows.
-func writeCompact(out io.Writer, format string, rows []compactRow, sp *rowSpool, extraCols []string) error {
+func writeCompact(out io.Writer, format string, rows iter.Seq[*compactRow], sp *rowSpool, extraCols []string) error {
 	switch format {
 	case "csv":
 		bw := bufioWriter(out)
@@ -384,10 +403,11 @@ func writeCompact(out io.Writer, format string, rows []compactRow, sp *rowSpool,
 
 // eachKeptRow calls fn with the rank and the rendered text of every ranked row the output
 // filter keeps (a dropped row still takes its rank), reading the text back from the spool.
-func eachKeptRow(rows []compactRow, sp *rowSpool, fn func(rank int, text []byte)) error {
+func eachKeptRow(rows iter.Seq[*compactRow], sp *rowSpool, fn func(rank int, text []byte)) error {
 	var scratch []byte
-	for i := range rows {
-		r := &rows[i]
+	rank := 0
+	for r := range rows {
+		rank++
 		if !r.keep {
 			continue
 		}
@@ -395,7 +415,7 @@ func eachKeptRow(rows []compactRow, sp *rowSpool, fn func(rank int, text []byte)
 		if err != nil {
 			return err
 		}
-		fn(i+1, t)
+		fn(rank, t)
 	}
 	return nil
 }
