@@ -28,7 +28,8 @@ import (
 // place of its output, already rendered, in a spool (screen_spool.go) — so the heap grows by
 // about 40 bytes per item instead of a whole result, and reading, screening and rendering
 // overlap. Ranking: each worker sorts its batches' compact rows, and the sorted batches are
-// merged at the end; the ranked write reads each row's text back.
+// merged at the end as the ranked output is written (rankedRows), which reads each row's text
+// back.
 
 // compactRow is one screened item as the ranking needs it. It holds no pointer, so the
 // garbage collector does not scan the rows.
