@@ -14,6 +14,7 @@ var layers = map[string]int{
 	"ringsieve/screening/internal/memo":    0,
 	"ringsieve/screening/internal/reftest": 0,
 	"ringsieve/screening/internal/numfmt":  0,
+	"ringsieve/screening/internal/scratch": 0,
 	"ringsieve/screening/mol":              1,
 	"ringsieve/screening/smiles":           2,
 	"ringsieve/screening/molfile":          2,

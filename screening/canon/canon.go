@@ -11,6 +11,7 @@ import (
 	"strconv"
 	"strings"
 
+	"ringsieve/screening/internal/scratch"
 	"ringsieve/screening/mol"
 	"ringsieve/screening/rings"
 )
@@ -321,17 +322,6 @@ func (g *subgraph) canonical() (string, []int) {
 	return string(best), bestRank
 }
 
-// resize returns s with length n and every element zero, reusing its array when it is large
-// enough.
-func resize[T any](s []T, n int) []T {
-	if cap(s) < n {
-		return make([]T, n)
-	}
-	s = s[:n]
-	clear(s)
-	return s
-}
-
 // keyWriter renders the subgraph as SMILES-like text from a complete ranking: depth-first from
 // the lowest-ranked atom of each connected piece, neighbours in rank order, ring closures
 // numbered in order of opening (the smallest free digit first). Its storage is kept across the
@@ -365,13 +355,13 @@ type closure struct{ a, b int }
 func (w *keyWriter) write(g *subgraph, rank []int, dst []byte) []byte {
 	n := len(g.atoms)
 	w.g, w.rank = g, rank
-	w.order = resize(w.order, n)
+	w.order = scratch.Zeroed(w.order, n)
 	for i := range w.order {
 		w.order[i] = i
 	}
 	// the ranking is complete (every rank distinct), so the order is unique
 	slices.SortFunc(w.order, func(a, b int) int { return cmp.Compare(rank[a], rank[b]) })
-	w.nbrOff = resize(w.nbrOff, n+1)
+	w.nbrOff = scratch.Zeroed(w.nbrOff, n+1)
 	w.sorted = w.sorted[:0]
 	for i := 0; i < n; i++ {
 		w.nbrOff[i] = len(w.sorted)
@@ -384,12 +374,12 @@ func (w *keyWriter) write(g *subgraph, rank []int, dst []byte) []byte {
 		}
 	}
 	w.nbrOff[n] = len(w.sorted)
-	w.visited = resize(w.visited, n)
-	w.parent = resize(w.parent, n)
+	w.visited = scratch.Zeroed(w.visited, n)
+	w.parent = scratch.Zeroed(w.parent, n)
 	for i := range w.parent {
 		w.parent[i] = -1
 	}
-	w.seenEdge = resize(w.seenEdge, n*n)
+	w.seenEdge = scratch.Zeroed(w.seenEdge, n*n)
 	w.closures = w.closures[:0]
 	w.roots = w.roots[:0]
 	// first pass: the depth-first tree and its ring-closure bonds
@@ -400,7 +390,7 @@ func (w *keyWriter) write(g *subgraph, rank []int, dst []byte) []byte {
 		}
 	}
 	// the closures at each atom in order of their numbers: counted, then filled
-	w.ringsOff = resize(w.ringsOff, n+1)
+	w.ringsOff = scratch.Zeroed(w.ringsOff, n+1)
 	for _, c := range w.closures {
 		w.ringsOff[c.a+1]++
 		w.ringsOff[c.b+1]++
@@ -408,7 +398,7 @@ func (w *keyWriter) write(g *subgraph, rank []int, dst []byte) []byte {
 	for i := 1; i <= n; i++ {
 		w.ringsOff[i] += w.ringsOff[i-1]
 	}
-	w.ringsAt = resize(w.ringsAt, 2*len(w.closures))
+	w.ringsAt = scratch.Zeroed(w.ringsAt, 2*len(w.closures))
 	w.fill = append(w.fill[:0], w.ringsOff[:n]...)
 	for ci, c := range w.closures {
 		// each atom lists its closures in ascending number
@@ -419,7 +409,7 @@ func (w *keyWriter) write(g *subgraph, rank []int, dst []byte) []byte {
 	}
 	// second pass: the text
 	clear(w.visited)
-	w.digitOf = resize(w.digitOf, len(w.closures))
+	w.digitOf = scratch.Zeroed(w.digitOf, len(w.closures))
 	w.free = w.free[:0]
 	next := 1
 	w.out = dst[:0]

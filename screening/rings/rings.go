@@ -10,6 +10,7 @@ import (
 	"strings"
 	"sync"
 
+	"ringsieve/screening/internal/scratch"
 	"ringsieve/screening/mol"
 )
 
@@ -96,9 +97,9 @@ func PerceiveInto(p *Rings, m *mol.Molecule) {
 	w := p.ws
 	nb, na := len(m.Bonds), len(m.Atoms)
 	// the size lists and the path scratch (which perception alone uses) in one array
-	w.ints = resize(w.ints, nb+na+5*na)
+	w.ints = scratch.Zeroed(w.ints, nb+na+5*na)
 	p.BondRingSize, p.AtomRingSize = w.ints[:nb:nb], w.ints[nb:nb+na:nb+na]
-	scratch := w.ints[nb+na:]
+	pathScratch := w.ints[nb+na:]
 	w.arena, w.spans, w.seenMasks = w.arena[:0], w.spans[:0], w.seenMasks[:0]
 	inRing := w.ringBonds(m)
 	small := len(m.Bonds) <= 64
@@ -119,7 +120,7 @@ func PerceiveInto(p *Rings, m *mol.Molecule) {
 			}
 			continue
 		}
-		path, pathBonds := shortestPathAvoiding(m, m.Bonds[bi].A, m.Bonds[bi].B, bi, scratch)
+		path, pathBonds := shortestPathAvoiding(m, m.Bonds[bi].A, m.Bonds[bi].B, bi, pathScratch)
 		if path == nil {
 			continue
 		}
@@ -189,17 +190,6 @@ type workspace struct {
 // span is a candidate ring's place in the arena: n atoms from off, then its n bonds.
 type span struct{ off, n int }
 
-// resize returns s with length n and every element zero, reusing its array when it is large
-// enough.
-func resize[T any](s []T, n int) []T {
-	if cap(s) < n {
-		return make([]T, n)
-	}
-	s = s[:n]
-	clear(s)
-	return s
-}
-
 // addCandidate stores a closed path as a candidate ring, its atoms and bonds, and returns the
 // bonds as stored (valid until the next candidate is added).
 func (w *workspace) addCandidate(m *mol.Molecule, path []int) []int {
@@ -237,12 +227,12 @@ func (w *workspace) candidates() []Ring {
 // first element is a marker (0) followed by the atoms in ring order; other bonds get nil. Rings
 // of such systems need no shortest-path search, which keeps a 1,000-membered macrocycle linear.
 func (w *workspace) simpleCycles(m *mol.Molecule, inRing []bool) [][]int {
-	w.cycleOf = resize(w.cycleOf, len(m.Bonds))
+	w.cycleOf = scratch.Zeroed(w.cycleOf, len(m.Bonds))
 	out := w.cycleOf
 	n := len(m.Atoms)
 	// deg, then every cycle found (each a marker and its atoms: at most 2n in all, so cycles
 	// carved from it never move), then the bonds of the walk in progress
-	w.cycles = resize(w.cycles, n+2*n+n)
+	w.cycles = scratch.Zeroed(w.cycles, n+2*n+n)
 	buf := w.cycles
 	deg, cycles, walk := buf[:n], buf[n:n:3*n], buf[3*n:3*n]
 	for bi, r := range inRing {
@@ -257,7 +247,7 @@ func (w *workspace) simpleCycles(m *mol.Molecule, inRing []bool) [][]int {
 			continue
 		}
 		if seen == nil {
-			w.seen = resize(w.seen, n)
+			w.seen = scratch.Zeroed(w.seen, n)
 			seen = w.seen
 		}
 		// walk the ring-bond component from start; it is a plain cycle when every atom on it has
@@ -308,7 +298,7 @@ func (w *workspace) simpleCycles(m *mol.Molecule, inRing []bool) [][]int {
 
 // markComponent marks every atom reachable from s over ring bonds.
 func (w *workspace) markComponent(m *mol.Molecule, inRing []bool, s int, seen []bool) {
-	w.visited = resize(w.visited, len(m.Atoms))
+	w.visited = scratch.Zeroed(w.visited, len(m.Atoms))
 	visited := w.visited
 	stack := append(w.stack[:0], s)
 	defer func() { w.stack = stack[:0] }()
@@ -329,12 +319,12 @@ func (w *workspace) markComponent(m *mol.Molecule, inRing []bool, s int, seen []
 // (Tarjan's low-link, iterative depth-first search).
 func (ws *workspace) ringBonds(m *mol.Molecule) []bool {
 	n := len(m.Atoms)
-	ws.inRing = resize(ws.inRing, len(m.Bonds))
+	ws.inRing = scratch.Zeroed(ws.inRing, len(m.Bonds))
 	inRing := ws.inRing
 	for i := range inRing {
 		inRing[i] = true
 	}
-	ws.lowLink = resize(ws.lowLink, 2*n)
+	ws.lowLink = scratch.Zeroed(ws.lowLink, 2*n)
 	disc, low := ws.lowLink[:n], ws.lowLink[n:]
 	for i := range disc {
 		disc[i] = -1
@@ -484,7 +474,7 @@ func (w *workspace) selectSSSR(m *mol.Molecule, cands []Ring) []Ring {
 		seenMask := w.pickMasks[:0] // one-word bond masks when the molecule has at most 64 bonds
 		defer func() { w.pickMasks = seenMask[:0] }()
 		// the candidates' bond vectors, carved from one array
-		w.vecs = resize(w.vecs, words*len(cands))
+		w.vecs = scratch.Zeroed(w.vecs, words*len(cands))
 		vecs := w.vecs
 		for ci, c := range cands {
 			v := vecs[ci*words : (ci+1)*words : (ci+1)*words]
@@ -733,7 +723,7 @@ func piElectrons(m *mol.Molecule, a int, ring []bool) int {
 func (p *Rings) perceiveAromaticity(m *mol.Molecule) {
 	na := len(m.Atoms)
 	// the result flags and two scratch sets in one array
-	p.ws.flags = resize(p.ws.flags, 3*na+len(m.Bonds))
+	p.ws.flags = scratch.Zeroed(p.ws.flags, 3*na+len(m.Bonds))
 	flags := p.ws.flags
 	p.AromaticAtom, p.AromaticBond = flags[:na:na], flags[na:na+len(m.Bonds):na+len(m.Bonds)]
 	set, sp2 := flags[na+len(m.Bonds):2*na+len(m.Bonds)], flags[2*na+len(m.Bonds):]
