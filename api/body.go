@@ -41,8 +41,8 @@ func tooLarge(n int64) error {
 // allocates about 6 MB instead of the 16 MB of doublings io.ReadAll makes, while a header that
 // announces more than the client sends costs at most readBodyFirst.
 func readBody(c *gin.Context) ([]byte, error) {
-	if b, ok := c.Get(ctxKeyBody); ok {
-		return b.([]byte), nil
+	if rb, ok := c.Request.Body.(*readBack); ok {
+		return rb.b, nil
 	}
 	b, err := readAllSized(c.Request.Body, c.Request.ContentLength)
 	if err != nil {
@@ -52,13 +52,21 @@ func readBody(c *gin.Context) ([]byte, error) {
 		}
 		return nil, badRequest(errMalformed, "", "could not read the request body")
 	}
-	c.Set(ctxKeyBody, b)
-	c.Request.Body = io.NopCloser(bytes.NewReader(b))
+	rb := &readBack{b: b}
+	rb.r.Reset(b)
+	c.Request.Body = rb
 	return b, nil
 }
 
-// ctxKeyBody holds the request body readBody read.
-const ctxKeyBody = "ringsieve.body"
+// readBack is a request body readBody has read, put back to be read again: as a reader from the
+// start, or whole by the next readBody (one allocation per request).
+type readBack struct {
+	r bytes.Reader
+	b []byte
+}
+
+func (rb *readBack) Read(p []byte) (int, error) { return rb.r.Read(p) }
+func (rb *readBack) Close() error               { return nil }
 
 // readBodyFirst is the most readAllSized allocates before the body's bytes arrive (design
 // choice).

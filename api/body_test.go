@@ -5,9 +5,14 @@ import (
 	"errors"
 	"io"
 	"math/rand/v2"
+	"net/http"
+	"net/http/httptest"
 	"runtime"
+	"strings"
 	"testing"
 	"testing/iotest"
+
+	"github.com/gin-gonic/gin"
 )
 
 // TestReadAllSized: the body read in two steps from its announced length is the body, whatever
@@ -52,5 +57,26 @@ func TestReadAllSized(t *testing.T) {
 	runtime.ReadMemStats(&after)
 	if got := after.TotalAlloc - before.TotalAlloc; got > size+readBodyFirst+64<<10 {
 		t.Errorf("a 5 MB body with its length allocated %d bytes, more than the body and the first part", got)
+	}
+}
+
+// TestReadBodyTwice: a second readBody in a request (the handler after the idempotency
+// middleware) gets the same bytes without reading again, and the body put back reads from its
+// start.
+func TestReadBodyTwice(t *testing.T) {
+	const body = `{"smiles":"C1=CC2CCC1C2"}`
+	c, _ := gin.CreateTestContext(httptest.NewRecorder())
+	c.Request = httptest.NewRequest(http.MethodPost, "/v1/screen", strings.NewReader(body))
+	first, err := readBody(c)
+	if err != nil || string(first) != body {
+		t.Fatalf("first read: %q, %v", first, err)
+	}
+	second, err := readBody(c)
+	if err != nil || string(second) != body || &second[0] != &first[0] {
+		t.Fatalf("second read: %q, %v (same bytes: %v)", second, err, len(second) > 0 && &second[0] == &first[0])
+	}
+	again, err := io.ReadAll(c.Request.Body)
+	if err != nil || string(again) != body {
+		t.Fatalf("the body put back reads %q, %v", again, err)
 	}
 }
