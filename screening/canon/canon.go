@@ -325,9 +325,9 @@ func (g *subgraph) canonical() (string, []int) {
 // keyWriter renders the subgraph as SMILES-like text from a complete ranking: depth-first from
 // the lowest-ranked atom of each connected piece, neighbours in rank order, ring closures
 // numbered in order of opening (the smallest free digit first). Its storage is kept across the
-// leaves of one canonical search: the
-// neighbour lists in rank order, the depth-first tree and the ring closures, all indexed by local
-// atom or closure number (no maps), so that writing a key allocates nothing once warm.
+// leaves of one canonical search: the neighbour lists in rank order, the depth-first tree and
+// the ring closures, all indexed by local atom or closure number (no maps), so that writing a
+// key allocates nothing once warm.
 type keyWriter struct {
 	g        *subgraph
 	rank     []int
