@@ -14,6 +14,7 @@ import (
 	. "ringsieve/screening"
 	"ringsieve/screening/canon"
 	"ringsieve/screening/describe"
+	"ringsieve/screening/rings"
 	"ringsieve/screening/thermo"
 	"ringsieve/screening/units"
 )
@@ -251,6 +252,7 @@ func TestCachesDoNotChangeResults(t *testing.T) {
 		sample = append(sample, c[i])
 	}
 	canon.ResetCache()
+	rings.ResetCache()
 	thermo.ResetCache()
 	warm := make([][]byte, len(sample))
 	for i, s := range sample {
@@ -267,6 +269,7 @@ func TestCachesDoNotChangeResults(t *testing.T) {
 			continue
 		}
 		canon.ResetCache()
+		rings.ResetCache()
 		thermo.ResetCache()
 		r, err := ScreenSMILES(s, cond)
 		if err != nil {

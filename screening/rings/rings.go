@@ -105,6 +105,7 @@ func PerceiveInto(p *Rings, m *mol.Molecule) {
 	small := len(m.Bonds) <= 64
 	var seenHash map[[2]uint64]bool // larger molecules: bond-set hashes of the rings found
 	cycleOf := w.simpleCycles(m, inRing)
+	searched := w.searchSystems(m, inRing, cycleOf, pathScratch)
 	for bi := range m.Bonds {
 		if !inRing[bi] {
 			continue
@@ -117,6 +118,14 @@ func PerceiveInto(p *Rings, m *mol.Molecule) {
 			c[0] = -1
 			for _, b := range w.addCandidate(m, c[1:]) {
 				p.BondRingSize[b] = len(c) - 1
+			}
+			continue
+		}
+		if f := searched[bi]; f.sys != nil {
+			// the search's result for this bond, read from its ring system's cached searches
+			p.BondRingSize[bi] = int(f.sys.size[f.local])
+			if r := f.sys.ring[f.local]; r >= 0 {
+				w.addRing(f.sys.globalRing(r, w.sysAtoms[f.atomsAt:], w.sysBonds[f.bondsAt:], &w.tr))
 			}
 			continue
 		}
@@ -185,6 +194,16 @@ type workspace struct {
 	pickMasks []uint64   // selectSSSR: one-word bond masks seen
 	flags     []bool     // aromatic atoms and bonds, and two scratch sets
 	union     []int      // perceiveAromaticity: atoms of two fused rings
+	// searchSystems: per bond the cached searches of its ring system, the systems' atoms and
+	// bonds in ascending order (each system's run starting where its bonds' entries say), the
+	// system each atom belongs to, a key buffer and translation scratch
+	searched []systemBond
+	sysAtoms []int
+	sysBonds []int
+	sysOf    []int
+	sysLocal []int
+	sysKey   []byte
+	tr       [2][]int
 }
 
 // span is a candidate ring's place in the arena: n atoms from off, then its n bonds.
