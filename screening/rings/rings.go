@@ -90,7 +90,11 @@ func (p *Rings) clone() *Rings {
 // state of a worker that perceives one molecule after another into the same Rings it allocates
 // nothing (TestPerceiveIntoAllocatesNothing). Everything p held before is overwritten, slices
 // taken from it included.
-func PerceiveInto(p *Rings, m *mol.Molecule) {
+func PerceiveInto(p *Rings, m *mol.Molecule) { perceiveInto(p, m, true) }
+
+// perceiveInto is PerceiveInto, reading ring systems' searches from their cache when cached is
+// set (searching every time otherwise: the comparison in tests).
+func perceiveInto(p *Rings, m *mol.Molecule, cached bool) {
 	if p.ws == nil {
 		p.ws = &workspace{}
 	}
@@ -105,7 +109,7 @@ func PerceiveInto(p *Rings, m *mol.Molecule) {
 	small := len(m.Bonds) <= 64
 	var seenHash map[[2]uint64]bool // larger molecules: bond-set hashes of the rings found
 	cycleOf := w.simpleCycles(m, inRing)
-	searched := w.searchSystems(m, inRing, cycleOf, pathScratch)
+	searched := w.searchSystems(m, inRing, cycleOf, pathScratch, cached)
 	for bi := range m.Bonds {
 		if !inRing[bi] {
 			continue

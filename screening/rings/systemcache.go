@@ -42,9 +42,6 @@ var systemCache = memo.New[*systemSearch](50_000)
 // ResetCache empties the cache of ring systems' searches (benchmarks of a cold start, tests).
 func ResetCache() { systemCache.Reset() }
 
-// useSystemCache turns the cache off for comparisons (tests).
-var useSystemCache = true
-
 // maxSystemAtoms bounds the systems cached (their local numbers are written as single bytes).
 const maxSystemAtoms = 255
 
@@ -66,12 +63,12 @@ func (s *systemSearch) globalRing(r int32, atoms, bonds []int, tr *[2][]int) (pa
 
 // searchSystems returns, per bond, the cached searches of the ring system it lies on, for the
 // ring bonds that are not on a plain cycle; systems not yet cached are searched here and cached.
-// Bonds of systems too large to cache (and every bond, with the cache off) are left to the
+// Bonds of systems too large to cache (and every bond, without cached) are left to the
 // caller's search (sys nil).
-func (w *workspace) searchSystems(m *mol.Molecule, inRing []bool, cycleOf [][]int, pathScratch []int) []systemBond {
+func (w *workspace) searchSystems(m *mol.Molecule, inRing []bool, cycleOf [][]int, pathScratch []int, cached bool) []systemBond {
 	nb, na := len(m.Bonds), len(m.Atoms)
 	w.searched = scratch.Zeroed(w.searched, nb)
-	if !useSystemCache {
+	if !cached {
 		return w.searched
 	}
 	// the systems: atoms joined by ring bonds that are not on a plain cycle, numbered by their

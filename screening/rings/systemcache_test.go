@@ -20,15 +20,12 @@ func TestSystemCacheMatchesSearch(t *testing.T) {
 		}
 	}
 	systemCache.Reset()
-	defer func() { useSystemCache = true }()
 	want := make([]string, len(ms))
-	useSystemCache = false
 	var p Rings
 	for i, m := range ms {
-		PerceiveInto(&p, m)
+		perceiveInto(&p, m, false)
 		want[i] = exported(&p)
 	}
-	useSystemCache = true
 	hits := 0
 	for pass := 0; pass < 2; pass++ {
 		for k := range ms {
@@ -59,4 +56,56 @@ func countCached(p *Rings, m *mol.Molecule) int {
 		}
 	}
 	return n
+}
+
+// FuzzSystemCacheMatchesSearch: for any structure that parses, perception reading its ring
+// systems from the cache (filled by the first perception, read by the second) gives what
+// searching gives.
+func FuzzSystemCacheMatchesSearch(f *testing.F) {
+	f.Add("C1=CC2CCC1C2")
+	f.Add("O=C1OC(=O)C2C3C=CC(C3)C12")
+	f.Add("C12C3C4C1C5C2C3C45")
+	f.Add("C1CC2(CC1)CCC1(CC2)CC1")
+	f.Add("c1cc2ccc3cccc4ccc(c1)c2c34")
+	f.Fuzz(func(t *testing.T, s string) {
+		m, err := smiles.Parse(s)
+		if err != nil || len(m.Atoms) > 300 {
+			return
+		}
+		var want, got Rings
+		perceiveInto(&want, m, false)
+		perceiveInto(&got, m, true)
+		perceiveInto(&got, m, true)
+		if exported(&got) != exported(&want) {
+			t.Fatalf("%s: with the cache\n%s\nsearching:\n%s", s, exported(&got), exported(&want))
+		}
+	})
+}
+
+// TestSystemCacheKeepsBondDirection: a bond's search runs from its first atom to its second, so
+// a system whose bond is written the other way round (as a molfile may list it) is a system of
+// its own in the cache, not the same one read back with its path reversed.
+func TestSystemCacheKeepsBondDirection(t *testing.T) {
+	for _, s := range []string{"C1=CC2CCC1C2", "C1CC2CC1C1CCCC21", "O=C1OC(=O)C2C3C=CC(C3)C12", "C12C3C4C1C5C2C3C45"} {
+		m, err := smiles.Parse(s)
+		if err != nil {
+			t.Fatal(err)
+		}
+		var p Rings
+		perceiveInto(&p, m, true) // the system as written, cached
+		for bi := range m.Bonds {
+			if p.BondRingSize[bi] == 0 {
+				continue
+			}
+			r, _ := smiles.Parse(s)
+			r.Bonds[bi].A, r.Bonds[bi].B = r.Bonds[bi].B, r.Bonds[bi].A
+			r.Index()
+			var want, got Rings
+			perceiveInto(&want, r, false)
+			perceiveInto(&got, r, true)
+			if exported(&got) != exported(&want) {
+				t.Fatalf("%s with bond %d reversed: with the cache\n%s\nsearching:\n%s", s, bi, exported(&got), exported(&want))
+			}
+		}
+	}
 }
