@@ -335,9 +335,10 @@ func writeCompact(out io.Writer, format string, rows iter.Seq[*compactRow], sp *
 	case "csv":
 		bw := bufioWriter(out)
 		bw.Write(batch.AppendCSVRecord(nil, batch.CSVHeader(extraCols)))
+		var num [20]byte
 		if err := eachKeptRow(rows, sp, func(rank int, t []byte) {
-			bw.WriteString(strconv.Itoa(rank))
-			bw.Write(t[1:]) // the record after its "0"
+			bw.Write(strconv.AppendInt(num[:0], int64(rank), 10)) // no string per row
+			bw.Write(t[1:])                                       // the record after its "0"
 		}); err != nil {
 			return err
 		}

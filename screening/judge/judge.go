@@ -249,8 +249,8 @@ func JudgeWith(bs *Blocks, d *describe.Descriptors, e *thermo.Estimate, c units.
 
 // judged holds in one allocation what a judged result points to: its thermodynamics, the
 // estimate's summary, the reasons' first backing array (room for ten: the committed corpus's
-// results have 2 to 10, one in fifty more than 8; a longer list moves to an array of its own), the reasons' values, the cautions' array and the
-// texts written for this result. The result keeps the block alive as long as it refers to any
+// results have 2 to 10, one in fifty more than 8; a longer list moves to an array of its own),
+// the reasons' values, the cautions' array and the texts written for this result. The result keeps the block alive as long as it refers to any
 // part of it.
 type judged struct {
 	th       thermo.Thermo
@@ -306,7 +306,8 @@ func newJudged() *judged {
 // needs no clearing, as only join's writes are read; th and est are written whole by JudgeWith
 // before they are read.
 func (b *judged) reset() {
-	b.reasons, b.cautions = [10]Reason{}, [6]string{}
+	clear(b.reasons[:])
+	clear(b.cautions[:])
 	b.nValues, b.ceiling = 0, 0
 	b.text = b.text[:0]
 }

@@ -1,6 +1,8 @@
 package rings
 
 import (
+	"slices"
+
 	"ringsieve/screening/internal/memo"
 	"ringsieve/screening/internal/scratch"
 	"ringsieve/screening/mol"
@@ -71,8 +73,9 @@ func (w *workspace) searchSystems(m *mol.Molecule, inRing []bool, cycleOf [][]in
 	if !cached {
 		return w.searched
 	}
-	// the systems: atoms joined by ring bonds that are not on a plain cycle, numbered by their
-	// lowest atom's turn
+	// the systems: atoms joined by ring bonds that are not on a plain cycle (searched), numbered
+	// by their lowest atom's turn
+	searched := func(bi int) bool { return inRing[bi] && cycleOf[bi] == nil }
 	w.sysOf = scratch.Zeroed(w.sysOf, na)
 	sysOf := w.sysOf // system number + 1; 0: none
 	systems := 0
@@ -83,7 +86,7 @@ func (w *workspace) searchSystems(m *mol.Molecule, inRing []bool, cycleOf [][]in
 		}
 		on := false
 		for _, bi := range m.Neighbors(a) {
-			if inRing[bi] && cycleOf[bi] == nil {
+			if searched(bi) {
 				on = true
 				break
 			}
@@ -98,7 +101,7 @@ func (w *workspace) searchSystems(m *mol.Molecule, inRing []bool, cycleOf [][]in
 			x := stack[len(stack)-1]
 			stack = stack[:len(stack)-1]
 			for _, bi := range m.Neighbors(x) {
-				if o := m.Other(bi, x); inRing[bi] && cycleOf[bi] == nil && sysOf[o] == 0 {
+				if o := m.Other(bi, x); searched(bi) && sysOf[o] == 0 {
 					sysOf[o] = systems
 					stack = append(stack, o)
 				}
@@ -121,7 +124,7 @@ func (w *workspace) searchSystems(m *mol.Molecule, inRing []bool, cycleOf [][]in
 			}
 		}
 		for bi := 0; bi < nb; bi++ {
-			if inRing[bi] && cycleOf[bi] == nil && sysOf[m.Bonds[bi].A] == s {
+			if searched(bi) && sysOf[m.Bonds[bi].A] == s {
 				w.sysBonds = append(w.sysBonds, bi)
 			}
 		}
@@ -150,18 +153,6 @@ func (w *workspace) searchSystems(m *mol.Molecule, inRing []bool, cycleOf [][]in
 // atoms' local number.
 func searchSystem(m *mol.Molecule, atoms, bonds, local []int, pathScratch []int) *systemSearch {
 	s := &systemSearch{size: make([]int32, len(bonds)), ring: make([]int32, len(bonds))}
-	localBond := func(bi int) int32 { // bonds is ascending
-		lo, hi := 0, len(bonds)
-		for lo < hi {
-			mid := (lo + hi) / 2
-			if bonds[mid] < bi {
-				lo = mid + 1
-			} else {
-				hi = mid
-			}
-		}
-		return int32(lo)
-	}
 	var seen [][]int32 // the rings kept, as sorted local bond sets
 	for j, bi := range bonds {
 		s.ring[j] = -1
@@ -175,18 +166,12 @@ func searchSystem(m *mol.Molecule, atoms, bonds, local []int, pathScratch []int)
 			lr = append(lr, int32(local[a]))
 		}
 		for _, b := range pathBonds {
-			lr = append(lr, localBond(b))
+			lb, _ := slices.BinarySearch(bonds, b) // bonds is ascending and holds b
+			lr = append(lr, int32(lb))
 		}
-		set := append([]int32(nil), lr[len(path):]...)
-		sortInt32(set)
-		dup := false
-		for _, o := range seen {
-			if equalInt32(o, set) {
-				dup = true
-				break
-			}
-		}
-		if dup {
+		set := slices.Clone(lr[len(path):])
+		slices.Sort(set)
+		if slices.ContainsFunc(seen, func(o []int32) bool { return slices.Equal(o, set) }) {
 			continue
 		}
 		seen = append(seen, set)
@@ -194,24 +179,4 @@ func searchSystem(m *mol.Molecule, atoms, bonds, local []int, pathScratch []int)
 		s.rings = append(s.rings, lr)
 	}
 	return s
-}
-
-func sortInt32(x []int32) {
-	for i := 1; i < len(x); i++ {
-		for k := i; k > 0 && x[k] < x[k-1]; k-- {
-			x[k], x[k-1] = x[k-1], x[k]
-		}
-	}
-}
-
-func equalInt32(a, b []int32) bool {
-	if len(a) != len(b) {
-		return false
-	}
-	for i := range a {
-		if a[i] != b[i] {
-			return false
-		}
-	}
-	return true
 }
